@@ -1,0 +1,57 @@
+"""The ``sheetpump`` command line: one module per command, each a thin face over the library.
+
+Exit codes: 0 all good, 1 a rule failed (or, with ``--strict``, warned), 2 bad input or usage. Bad input
+prints one line naming the file, sheet, cell and field and what to do, never a traceback.
+"""
+
+from __future__ import annotations
+
+import argparse
+import importlib
+import sys
+from collections.abc import Sequence
+
+from .. import __version__
+from ..errors import SheetpumpError
+
+# Each module defines register(subparsers) -> parser and sets ``run`` (args -> exit code).
+COMMANDS = ("functions",)
+
+EXIT_OK, EXIT_FAIL, EXIT_INPUT = 0, 1, 2
+
+
+def build_parser() -> argparse.ArgumentParser:
+    parser = argparse.ArgumentParser(
+        prog="sheetpump",
+        description="Evaluate hydraulic pump datasheets against a machine's duty cycle.",
+    )
+    parser.add_argument("--version", action="version", version=f"sheetpump {__version__}")
+    sub = parser.add_subparsers(dest="command", metavar="COMMAND")
+    for name in COMMANDS:
+        importlib.import_module(f"{__name__}.{name}").register(sub)
+    return parser
+
+
+def main(argv: Sequence[str] | None = None) -> int:
+    """Run the command line; returns the exit code."""
+    parser = build_parser()
+    try:
+        args = parser.parse_args(argv)
+    except SystemExit as exc:  # argparse: usage errors are exit code 2 already
+        return int(exc.code or 0)
+    if not getattr(args, "run", None):
+        parser.print_help(sys.stderr)
+        return EXIT_INPUT
+    try:
+        return int(args.run(args))
+    except SheetpumpError as exc:
+        print(f"sheetpump: error: {exc}", file=sys.stderr)
+        return EXIT_INPUT
+    except KeyboardInterrupt:
+        print("sheetpump: interrupted", file=sys.stderr)
+        return 130
+
+
+def entry() -> None:
+    """Console-script entry point."""
+    sys.exit(main())

@@ -1,0 +1,67 @@
+"""Errors that reach the user, with the place they concern.
+
+Every error a user can cause carries where it happened (file, sheet, cell, field or argument) and, where
+it helps, what to do about it, so the command line can print one clear line and a cell can show a short
+text.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+
+
+@dataclass
+class Where:
+    """The place a value came from: file, sheet, cell and the field it fills."""
+
+    file: str | None = None
+    sheet: str | None = None
+    cell: str | None = None
+    field: str | None = None
+
+    def __str__(self) -> str:
+        parts = []
+        if self.file:
+            parts.append(str(self.file))
+        if self.sheet and self.cell:
+            parts.append(f"{self.sheet}!{self.cell}")
+        elif self.sheet:
+            parts.append(f"sheet {self.sheet!r}")
+        elif self.cell:
+            parts.append(self.cell)
+        if self.field:
+            parts.append(f"({self.field})")
+        return " ".join(parts)
+
+
+class SheetpumpError(Exception):
+    """Base of every error sheetpump raises on purpose."""
+
+
+@dataclass
+class InputError(SheetpumpError):
+    """Bad input: a value, a file or an argument that sheetpump cannot use.
+
+    ``message`` says what is wrong, ``where`` where, ``hint`` what to do.
+    """
+
+    message: str
+    where: Where = field(default_factory=Where)
+    hint: str = ""
+
+    def __post_init__(self) -> None:
+        super().__init__(self.message)
+
+    def __str__(self) -> str:
+        place = str(self.where)
+        text = f"{place}: {self.message}" if place else self.message
+        if self.hint:
+            text += f" ({self.hint})"
+        return text
+
+    def at(self, **where: str | None) -> InputError:
+        """Return this error with the missing parts of its place filled in."""
+        merged = Where(
+            **{k: getattr(self.where, k) or where.get(k) for k in ("file", "sheet", "cell", "field")}
+        )
+        return InputError(self.message, merged, self.hint)
