@@ -11,7 +11,17 @@ from ..calc import Registry
 #: Every declared calculation, by cell-function name, in declaration order.
 CATALOGUE = Registry()
 
-# Each module declares into CATALOGUE when imported; add new modules here.
-from . import pump  # noqa: E402,F401
+
+def _load() -> None:
+    # Every submodule declares into CATALOGUE when imported: pump first, then by name.
+    import importlib
+    import pkgutil
+
+    names = sorted((m.name for m in pkgutil.iter_modules(__path__)), key=lambda n: (n != "pump", n))
+    for name in names:
+        importlib.import_module(f"{__name__}.{name}")
+
+
+_load()
 
 __all__ = ["CATALOGUE"]

@@ -8,14 +8,17 @@ from __future__ import annotations
 
 import argparse
 import importlib
+import pkgutil
 import sys
 from collections.abc import Sequence
 
 from .. import __version__
 from ..errors import SheetpumpError
 
-# Each module defines register(subparsers) -> parser and sets ``run`` (args -> exit code).
-COMMANDS = ("functions",)
+
+def _commands() -> list[str]:
+    # Each submodule is one command: it defines register(subparsers), which sets ``run``.
+    return sorted(m.name for m in pkgutil.iter_modules(__path__) if not m.name.startswith("_"))
 
 EXIT_OK, EXIT_FAIL, EXIT_INPUT = 0, 1, 2
 
@@ -27,7 +30,7 @@ def build_parser() -> argparse.ArgumentParser:
     )
     parser.add_argument("--version", action="version", version=f"sheetpump {__version__}")
     sub = parser.add_subparsers(dest="command", metavar="COMMAND")
-    for name in COMMANDS:
+    for name in _commands():
         importlib.import_module(f"{__name__}.{name}").register(sub)
     return parser
 
