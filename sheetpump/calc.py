@@ -14,8 +14,8 @@ a short error text naming the argument, and a result that is not finite is an er
 20.0
 >>> power.cell("3000 psi", "10 gpm", "hp")
 17.50...
->>> power.cell("200 rpm", 60)
-'#SP! pressure: \\'rpm\\' is a speed, not a pressure (write e.g. \\'250 bar\\')'
+>>> print(power.cell("200 rpm", 60))
+#SP! pressure: 'rpm' is a speed, not a pressure (write e.g. '250 bar')
 """
 
 from __future__ import annotations
@@ -32,7 +32,7 @@ from .errors import InputError
 from .physics.pump import PhysicsError
 from .units import Kind, from_si, to_si, unit_factor
 
-__all__ = ["Arg", "Calculation", "ERROR_PREFIX", "Registry"]
+__all__ = ["ERROR_PREFIX", "Arg", "Calculation", "Registry"]
 
 #: Every error text a cell function returns starts with this, so a sheet can test for it.
 ERROR_PREFIX = "#SP! "

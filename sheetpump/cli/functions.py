@@ -5,8 +5,8 @@ from __future__ import annotations
 import argparse
 import json
 
-from ..catalogue import CATALOGUE
 from ..calc import Calculation
+from ..catalogue import CATALOGUE
 
 
 def describe(calc: Calculation) -> dict[str, object]:

@@ -25,19 +25,19 @@ from numpy.typing import ArrayLike
 
 __all__ = [
     "PhysicsError",
-    "geometric_flow",
-    "effective_flow",
     "displacement_for_flow",
-    "speed_for_flow",
-    "hydraulic_power",
     "drive_torque",
-    "shaft_power",
-    "input_power",
-    "volumetric_efficiency",
+    "effective_flow",
+    "geometric_flow",
+    "hydraulic_power",
     "hydromechanical_efficiency",
-    "total_efficiency",
+    "input_power",
     "power_loss",
     "pulsation_frequency",
+    "shaft_power",
+    "speed_for_flow",
+    "total_efficiency",
+    "volumetric_efficiency",
 ]
 
 TWO_PI = 2.0 * math.pi

@@ -1,0 +1,90 @@
+"""Cell functions as a spreadsheet calls them: numbers, unit strings, ranges, empties, errors."""
+
+from __future__ import annotations
+
+import numpy as np
+import pint
+import pytest
+
+from sheetpump import cells
+from sheetpump.catalogue import CATALOGUE
+
+REF = pint.UnitRegistry()  # outside reference
+
+
+def test_numbers_in_default_units():
+    # 200 bar x 60 L/min = 20 kW (P[kW] = p[bar]·Q[L/min]/600, common practice)
+    assert cells.SP_HYDRAULIC_POWER(200, 60) == pytest.approx(20.0, rel=1e-12)
+    # 28 cm³/rev x 1500 rpm x 0.95 = 39.9 L/min
+    assert cells.SP_EFFECTIVE_FLOW(28, 1500, 0.95) == pytest.approx(39.9, rel=1e-12)
+
+
+def test_unit_strings_and_result_unit():
+    hp = cells.SP_HYDRAULIC_POWER("3000 psi", "10 gpm", "hp")
+    expected = (REF.Quantity(3000, "psi") * REF.Quantity(10, "gallon/minute")).to("hp").magnitude
+    assert hp == pytest.approx(expected, rel=1e-12)
+    assert cells.SP_DRIVE_TORQUE(28, 200, 0.9, "lbf*ft") == pytest.approx(
+        REF.Quantity(28e-6 * 200e5 / (2 * 3.141592653589793 * 0.9), "N*m").to("lbf*ft").magnitude, rel=1e-12)
+    assert cells.SP_VOL_EFF(39.9, 28, 1500, "%") == pytest.approx(95.0, rel=1e-12)
+
+
+def test_single_cell_ranges_are_plain_values():
+    # xlwings with ndim=2 passes a single cell as [[x]]
+    assert cells.SP_HYDRAULIC_POWER([[200]], [[60]]) == pytest.approx(20.0)
+
+
+def test_ranges_spill_elementwise_and_broadcast():
+    column = cells.SP_HYDRAULIC_POWER([[100], [200], [300]], 60)
+    np.testing.assert_allclose(column, [[10.0], [20.0], [30.0]], rtol=1e-12)
+    grid = cells.SP_HYDRAULIC_POWER([[100, 200]], [[30], [60]])
+    assert grid == [[pytest.approx(5.0), pytest.approx(10.0)], [pytest.approx(10.0), pytest.approx(20.0)]]
+    mixed = cells.SP_HYDRAULIC_POWER([["3000 psi"], [200]], "40 L/min")
+    assert mixed[1][0] == pytest.approx(200 * 40 / 600)
+
+
+@pytest.mark.parametrize(
+    ("call", "text"),
+    [
+        (lambda: cells.SP_HYDRAULIC_POWER(None, 60),
+         "#SP! pressure: missing (empty cell) (give a pressure, e.g. '250 bar')"),
+        (lambda: cells.SP_HYDRAULIC_POWER("250 rpm", 60),
+         "#SP! pressure: 'rpm' is a speed, not a pressure (write e.g. '250 bar')"),
+        (lambda: cells.SP_HYDRAULIC_POWER("3,000", 60),
+         "#SP! pressure: '3,000' is ambiguous (write numbers without thousands separators and with a "
+         "point for decimals, e.g. '3000 psi' or '3.5 bar')"),
+        (lambda: cells.SP_HYDRAULIC_POWER(200, "plenty"),
+         "#SP! flow: 'plenty' is not a number with a unit (write e.g. '40 L/min')"),
+        (lambda: cells.SP_HYDRAULIC_POWER(200, 60, "rpm"),
+         "#SP! unit: 'rpm' is a speed, not a power (write e.g. '15 kW')"),
+        (lambda: cells.SP_HYDRAULIC_POWER(200, 60, "zorks"),
+         "#SP! unit: unknown unit 'zorks' (write e.g. '15 kW')"),
+        (lambda: cells.SP_DRIVE_TORQUE(28, 200, 90),
+         "#SP! hm_eff: must lie in (0, 1]; write 92 % as 0.92"),
+        (lambda: cells.SP_DISPLACEMENT_FOR_FLOW(40, 0, 0.9), "#SP! speed: must be greater than zero"),
+        (lambda: cells.SP_GEOMETRIC_FLOW(-28, 1500), "#SP! displacement: must not be negative"),
+        (lambda: cells.SP_HYDRAULIC_POWER([[1, "x"]], 2),
+         "#SP! pressure[0, 1]: 'x' is not a number with a unit (write e.g. '250 bar')"),
+        (lambda: cells.SP_HYDRAULIC_POWER([[1, 2, 3]], [[1, 2]]),
+         "#SP! SP_HYDRAULIC_POWER: ranges of different shapes cannot be combined"),
+        (lambda: cells.SP_HYDRAULIC_POWER(True, 60),
+         "#SP! pressure: True is a true/false value, not a pressure"),
+        (lambda: cells.SP_HYDRAULIC_POWER(1e308, 1e308),
+         "#SP! result is not a finite number (check for zero or huge inputs)"),
+    ],
+)
+def test_errors_are_texts_naming_the_argument(call, text):
+    assert call() == text
+
+
+def test_optional_argument_takes_its_default():
+    assert cells.SP_PULSATION_FREQ(9, 1500) == pytest.approx(225.0)  # 9 teeth x 25 rev/s
+    assert cells.SP_PULSATION_FREQ(9, 1500, None, "1/min") == pytest.approx(225.0 * 60)
+
+
+def test_every_declared_function_documents_its_arguments():
+    for calc in CATALOGUE.values():
+        assert calc.help and calc.help.endswith(".")
+        for arg in calc.args:
+            assert arg.help, (calc.name, arg.name)
+        assert calc.name.startswith("SP_")
+        assert calc.formula_source.startswith("sheetpump.physics.")
