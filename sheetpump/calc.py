@@ -74,6 +74,8 @@ class Calculation:
         Kind of the result; the optional last cell argument ``unit`` names its unit.
     help : str
         One line for the function wizard and the function list.
+    example : tuple
+        A sample call with invented values (a list stands for a range).
     """
 
     name: str
@@ -81,6 +83,9 @@ class Calculation:
     args: tuple[Arg, ...]
     result: Kind
     help: str
+    #: A sample call as a user would type it (arguments, then optionally the result unit); a list is a
+    #: range. Used by the worked-example workbook and the README.
+    example: tuple[Any, ...] = ()
     category: str = "sheetpump"
     _defaults: tuple[float | None, ...] = field(init=False, repr=False, compare=False)
     _physics_names: list[str] = field(init=False, repr=False, compare=False)

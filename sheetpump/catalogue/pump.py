@@ -22,48 +22,61 @@ declare = CATALOGUE.declare
 
 declare(Calculation(
     "SP_GEOMETRIC_FLOW", pump.geometric_flow, (_V, _N), FLOW,
-    "Geometric flow without leakage: displacement x speed."))
+    "Geometric flow without leakage: displacement x speed.",
+    example=(28, 1500)))
 declare(Calculation(
     "SP_EFFECTIVE_FLOW", pump.effective_flow, (_V, _N, _EV), FLOW,
-    "Delivered flow after leakage: displacement x speed x volumetric efficiency."))
+    "Delivered flow after leakage: displacement x speed x volumetric efficiency.",
+    example=("1.7 in^3/rev", "1800 rpm", 0.94, "gpm")))
 declare(Calculation(
     "SP_DISPLACEMENT_FOR_FLOW", pump.displacement_for_flow,
     (Arg("flow", FLOW, "Required effective flow"), _N, _EV), DISPLACEMENT,
-    "Displacement needed for a flow: flow / (speed x volumetric efficiency)."))
+    "Displacement needed for a flow: flow / (speed x volumetric efficiency).",
+    example=(40, 1500, 0.94)))
 declare(Calculation(
     "SP_SPEED_FOR_FLOW", pump.speed_for_flow,
     (Arg("flow", FLOW, "Required effective flow"), _V, _EV), SPEED,
-    "Speed needed for a flow: flow / (displacement x volumetric efficiency)."))
+    "Speed needed for a flow: flow / (displacement x volumetric efficiency).",
+    example=("10 gpm", 28, "94 %")))
 declare(Calculation(
     "SP_HYDRAULIC_POWER", pump.hydraulic_power, (_P, _Q), POWER,
-    "Hydraulic output power: pressure x flow."))
+    "Hydraulic output power: pressure x flow.",
+    example=(210, 39.5)))
 declare(Calculation(
     "SP_DRIVE_TORQUE", pump.drive_torque, (_V, _P, _EHM), TORQUE,
-    "Shaft torque: displacement x pressure / (2 pi x hydro-mechanical efficiency)."))
+    "Shaft torque: displacement x pressure / (2 pi x hydro-mechanical efficiency).",
+    example=(28, "3000 psi", 0.9, "lbf*ft")))
 declare(Calculation(
     "SP_SHAFT_POWER", pump.shaft_power, (Arg("torque", TORQUE, "Shaft torque"), _N), POWER,
-    "Shaft power from torque and speed: torque x 2 pi x speed."))
+    "Shaft power from torque and speed: torque x 2 pi x speed.",
+    example=(98, 1500)))
 declare(Calculation(
     "SP_INPUT_POWER", pump.input_power, (_P, _Q, _ET), POWER,
-    "Drive power: pressure x flow / total efficiency."))
+    "Drive power: pressure x flow / total efficiency.",
+    example=(210, 39.5, 0.85, "hp")))
 declare(Calculation(
     "SP_VOL_EFF", pump.volumetric_efficiency,
     (Arg("flow", FLOW, "Measured effective flow"), _V, _N), EFFICIENCY,
-    "Volumetric efficiency from measured flow: flow / (displacement x speed)."))
+    "Volumetric efficiency from measured flow: flow / (displacement x speed).",
+    example=(39.5, 28, 1500)))
 declare(Calculation(
     "SP_HM_EFF", pump.hydromechanical_efficiency,
     (_V, _P, Arg("torque", TORQUE, "Measured shaft torque")), EFFICIENCY,
-    "Hydro-mechanical efficiency from measured torque: displacement x pressure / (2 pi x torque)."))
+    "Hydro-mechanical efficiency from measured torque: displacement x pressure / (2 pi x torque).",
+    example=(28, 210, 103)))
 declare(Calculation(
     "SP_TOTAL_EFF", pump.total_efficiency,
     (_P, _Q, Arg("input_power", POWER, "Measured input power")), EFFICIENCY,
-    "Total efficiency from measured input power: pressure x flow / input power."))
+    "Total efficiency from measured input power: pressure x flow / input power.",
+    example=(210, 39.5, 16.2)))
 declare(Calculation(
     "SP_POWER_LOSS", pump.power_loss,
     (Arg("input_power", POWER, "Input power at the shaft"), _P, _Q), POWER,
-    "Power turned into heat: input power less pressure x flow."))
+    "Power turned into heat: input power less pressure x flow.",
+    example=(16.2, 210, 39.5)))
 declare(Calculation(
     "SP_PULSATION_FREQ", pump.pulsation_frequency,
     (Arg("teeth", NUMBER, "Number of teeth on one gear"), _N,
      Arg("harmonic", NUMBER, "Harmonic order (1 = fundamental)", default=1)), FREQUENCY,
-    "Flow-pulsation frequency of a gear pump: harmonic x teeth x speed."))
+    "Flow-pulsation frequency of a gear pump: harmonic x teeth x speed.",
+    example=(12, 1500)))

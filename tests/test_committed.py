@@ -1,0 +1,68 @@
+"""Committed files that are derived from code stay in sync with it."""
+
+from __future__ import annotations
+
+import re
+from pathlib import Path
+
+import openpyxl
+import pytest
+
+from sheetpump.catalogue import CATALOGUE
+from sheetpump.cli.functions import markdown
+from sheetpump.workbooks.example import EXAMPLE_SHEET, write_worked_example
+
+ROOT = Path(__file__).resolve().parents[1]
+
+
+def _block(text: str, name: str) -> str:
+    match = re.search(rf"<!-- {name}:start -->\n(.*?)\n<!-- {name}:end -->", text, re.S)
+    assert match, f"README has no {name} block"
+    return match.group(1)
+
+
+def test_readme_function_list_matches_declarations():
+    readme = (ROOT / "README.md").read_text(encoding="utf-8")
+    assert _block(readme, "functions") == markdown(), "run: sheetpump functions --markdown, paste into README"
+
+
+def _cells(path: Path, data_only: bool) -> dict:
+    book = openpyxl.load_workbook(path, data_only=data_only)
+    return {(ws.title, c.coordinate): c.value for ws in book for row in ws.iter_rows() for c in row
+            if c.value is not None}
+
+
+def test_worked_example_matches_generator(tmp_path):
+    fresh = tmp_path / "worked-example.xlsx"
+    write_worked_example(fresh)
+    committed = ROOT / "workbooks" / "worked-example.xlsx"
+    assert _cells(fresh, False) == _cells(committed, False), "run scripts/regenerate_workbooks.py"
+    assert_same_values(_cells(fresh, True), _cells(committed, True))
+
+
+def assert_same_values(a: dict, b: dict) -> None:
+    assert a.keys() == b.keys()
+    for key, value in a.items():
+        if isinstance(value, float):
+            assert b[key] == pytest.approx(value, rel=1e-12), key
+        else:
+            assert b[key] == value, key
+
+
+def test_worked_example_shows_every_function_with_its_expected_value(tmp_path):
+    path = tmp_path / "example.xlsx"
+    write_worked_example(path)
+    formulas = openpyxl.load_workbook(path)[EXAMPLE_SHEET]
+    values = openpyxl.load_workbook(path, data_only=True)[EXAMPLE_SHEET]
+    shown = {}
+    for row in range(5, formulas.max_row + 1):
+        name = formulas.cell(row, 1).value
+        formula = formulas.cell(row, 2).value
+        assert formula.startswith(f"={name}(")
+        # the stored result equals the expected column and a direct call of the declaration
+        assert values.cell(row, 2).value == pytest.approx(values.cell(row, 3).value, rel=1e-12)
+        direct = CATALOGUE[name].cell(*CATALOGUE[name].example)
+        direct = direct[0][0] if isinstance(direct, list) else direct
+        assert values.cell(row, 3).value == pytest.approx(direct, rel=1e-12)
+        shown[name] = True
+    assert set(shown) == set(CATALOGUE), "every cell function needs an example in its declaration"
