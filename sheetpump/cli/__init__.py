@@ -57,4 +57,10 @@ def main(argv: Sequence[str] | None = None) -> int:
 
 def entry() -> None:
     """Console-script entry point."""
-    sys.exit(main())
+    try:
+        code = main()
+        sys.stdout.flush()
+    except BrokenPipeError:  # e.g. piped into `head`: not an error of ours
+        code = 0
+        sys.stdout = None  # type: ignore[assignment]
+    sys.exit(code)
