@@ -28,7 +28,7 @@ from typing import Any
 
 import numpy as np
 
-from .errors import InputError
+from .errors import InputError, Where
 from .physics.pump import PhysicsError
 from .units import Kind, from_si, to_si, unit_factor
 
@@ -39,6 +39,32 @@ ERROR_PREFIX = "#SP! "
 
 
 @dataclass(frozen=True)
+class Choice:
+    """A text argument that takes one of a few words (any case), e.g. a motor standard.
+
+    Used as an :class:`Arg`'s kind; the physics function gets the word as spelled in ``options``.
+    """
+
+    name: str
+    options: tuple[str, ...]
+    default: str = ""  # no unit: faces that show ``kind.default`` show nothing
+
+    @property
+    def example(self) -> str:
+        return self.options[0]
+
+    def pick(self, value: Any, arg: str) -> str:
+        words = " or ".join(repr(o) for o in self.options)
+        if value is None or (isinstance(value, str) and not value.strip()):
+            raise InputError("missing (empty cell)", Where(field=arg), f"write {words}")
+        if isinstance(value, str):
+            for option in self.options:
+                if value.strip().upper() == option.upper():
+                    return option
+        raise InputError(f"{value!r} is not a {self.name}", Where(field=arg), f"write {words}")
+
+
+@dataclass(frozen=True)
 class Arg:
     """One argument of a calculation.
 
@@ -46,7 +72,7 @@ class Arg:
     """
 
     name: str
-    kind: Kind
+    kind: Kind | Choice
     help: str
     default: float | None = None
 
@@ -135,7 +161,10 @@ class Calculation:
         converted = []
         for i, a in enumerate(self.args):
             value = values[i] if i < len(values) else None
-            converted.append(to_si(value, a.kind, a.name, self._defaults[i]))
+            if isinstance(a.kind, Choice):
+                converted.append(a.kind.pick(value, a.name))
+            else:
+                converted.append(to_si(value, a.kind, a.name, self._defaults[i]))
         return self.func(*converted)
 
     def cell(self, *values: Any) -> float | list[list[Any]] | str:
