@@ -1,0 +1,57 @@
+"""Cell functions of measured pump performance: derived displacement and predictions from a table.
+
+A table is given as ranges of one length (one row per measured point): speed, pressure, flow,
+torque and the oil's dynamic viscosity (a single cell for the whole table is fine). The prediction
+functions fit Wilson's loss model to the table (or interpolate the measured efficiencies in pressure
+where the table is too small) and return the value at the asked speed, pressure and viscosity, which
+may be ranges too. The formulas live in :mod:`sheetpump.physics.losses`.
+"""
+
+from __future__ import annotations
+
+from ..calc import Arg, Calculation
+from ..physics import losses
+from ..units import DISPLACEMENT, DYN_VISCOSITY, EFFICIENCY, FLOW, NUMBER, POWER, PRESSURE, SPEED, TORQUE
+from . import CATALOGUE
+
+_N = Arg("speed", SPEED, "Measured speed of each point (a range)")
+_P = Arg("pressure", PRESSURE, "Measured pressure rise of each point (a range)")
+_Q = Arg("flow", FLOW, "Measured delivered flow of each point (a range)")
+_T = Arg("torque", TORQUE, "Measured input torque of each point (a range)")
+_MU = Arg("viscosity", DYN_VISCOSITY, "Dynamic viscosity of the oil at each point (a range or one cell)")
+_V = Arg("displacement", DISPLACEMENT, "Displacement (e.g. the result of SP_DERIVED_DISPLACEMENT)")
+_AT_N = Arg("at_speed", SPEED, "Speed to predict at")
+_AT_P = Arg("at_pressure", PRESSURE, "Pressure rise to predict at")
+_AT_MU = Arg("at_viscosity", DYN_VISCOSITY, "Dynamic viscosity to predict at")
+_MAXP = Arg("max_pressure", PRESSURE, "Highest pressure of the points used (0: a third of the highest "
+            "measured)", default=0)
+_TABLE = (_N, _P, _Q, _T, _MU, _V, _AT_N, _AT_P, _AT_MU)
+_FIT = " Wilson's loss model fitted to the table (interpolation in pressure if the table is too small)."
+
+declare = CATALOGUE.declare
+
+declare(Calculation(
+    "SP_DERIVED_DISPLACEMENT", losses.derived_displacement_value, (_N, _P, _Q, _MAXP), DISPLACEMENT,
+    "Displacement derived from flow at two or more speeds at low pressure (slope of flow on speed, "
+    "extrapolated to zero pressure; ISO 8426 idea)."))
+declare(Calculation(
+    "SP_DERIVED_DISPLACEMENT_U", losses.derived_displacement_uncertainty, (_N, _P, _Q, _MAXP), DISPLACEMENT,
+    "Standard uncertainty of SP_DERIVED_DISPLACEMENT (from the least-squares fit)."))
+declare(Calculation(
+    "SP_PREDICT_FLOW", losses.predicted_flow, _TABLE, FLOW,
+    "Delivered flow at a speed, pressure and viscosity:" + _FIT))
+declare(Calculation(
+    "SP_PREDICT_TORQUE", losses.predicted_torque, _TABLE, TORQUE,
+    "Input torque at a speed, pressure and viscosity:" + _FIT))
+declare(Calculation(
+    "SP_PREDICT_INPUT_POWER", losses.predicted_input_power, _TABLE, POWER,
+    "Input power at a speed, pressure and viscosity:" + _FIT))
+declare(Calculation(
+    "SP_PREDICT_VOL_EFF", losses.predicted_volumetric_efficiency, _TABLE, EFFICIENCY,
+    "Volumetric efficiency at a speed, pressure and viscosity:" + _FIT))
+declare(Calculation(
+    "SP_PREDICT_TOTAL_EFF", losses.predicted_total_efficiency, _TABLE, EFFICIENCY,
+    "Total efficiency at a speed, pressure and viscosity:" + _FIT))
+declare(Calculation(
+    "SP_PREDICT_EXTRAPOLATED", losses.predicted_extrapolated, _TABLE, NUMBER,
+    "1 where the asked speed, pressure or viscosity lies outside the measured table, else 0."))
