@@ -1,0 +1,789 @@
+"""The rating checker: one datasheet against one application's duty cycle.
+
+Each rule is a small function over the whole duty at once (numpy arrays, one element per segment or per
+sample of a measured series), so a series of a million samples costs a handful of array passes, not a
+Python loop. Each rule gives one :class:`Finding`: its stable rule id, severity (``fail`` / ``warn`` /
+``info``, or ``pass``), what was measured, the limit, the margin as a fraction of the limit (positive =
+inside), the worst segment and how many segments are outside, and the cell to fix.
+
+Application margins tighten the limits: an upper rating R with a pressure margin m becomes R·(1 − m), a
+required flow Q becomes Q·(1 + m), a speed range [a, b] becomes [a·(1 + m), b·(1 − m)]. The limit a
+finding reports is the tightened one.
+
+Intermittent pressure: every stretch above the continuous rating is measured as one stretch, however many
+consecutive segments or samples it spans; when the cycle repeats (``Duty.wraps``) a stretch that runs off
+the end continues at the start. Durations are summed with a cumulative sum, never per sample.
+
+>>> from sheetpump.datasheet import Datasheet
+>>> from sheetpump.duty import Application, Duty, Oil
+>>> duty = Duty(duration=np.array([10.0, 5.0]), pressure=np.array([150e5, 270e5]),
+...             flow=np.array([30 / 60000, 30 / 60000]), speed=np.array([25.0, 25.0]),
+...             temperature=np.array([323.15, 323.15]), inlet_pressure=np.array([1e5, 1e5]),
+...             names=("press", "hold"))
+>>> app = Application("invented press", duty, Oil(46e-6, 313.15, 6.8e-6, 373.15), relief_setting=280e5)
+>>> ds = Datasheet("Invented", "G28", 28e-6, 8.0, 50.0, 250e5, 300e5, volumetric_efficiency=0.93,
+...                total_efficiency=0.85)
+>>> result = check(ds, app)
+>>> result.verdict, [f.segment for f in result.findings if f.rule == "pressure.continuous"]
+('fail', ['hold'])
+"""
+
+from __future__ import annotations
+
+import math
+import re
+from dataclasses import dataclass, field
+
+import numpy as np
+
+from . import performance
+from .datasheet import Datasheet
+from .duty import Application, Duty
+from .errors import InputError, Where
+from .physics import drive, fluid
+from .units import (
+    ABS_PRESSURE,
+    DURATION,
+    EFFICIENCY,
+    FLOW,
+    POWER,
+    PRESSURE,
+    SPEED,
+    TEMPERATURE,
+    TORQUE,
+    VISCOSITY,
+    Kind,
+)
+
+__all__ = [
+    "DISPLAY_UNITS",
+    "FAIL",
+    "INFO",
+    "PASS",
+    "RULES",
+    "WARN",
+    "CheckResult",
+    "CheckSettings",
+    "DriveFigures",
+    "Finding",
+    "check",
+    "parse_cleanliness",
+    "stretches",
+]
+
+FAIL, WARN, INFO, PASS = "fail", "warn", "info", "pass"
+_ORDER = {PASS: 0, INFO: 1, WARN: 2, FAIL: 3}
+
+#: Units a report shows each kind in ("metric" or "imperial"); findings keep SI numbers.
+DISPLAY_UNITS: dict[str, dict[Kind, str]] = {
+    "metric": {PRESSURE: "bar", ABS_PRESSURE: "bara", SPEED: "rpm", FLOW: "L/min", POWER: "kW",
+               TORQUE: "N*m", TEMPERATURE: "degC", VISCOSITY: "mm^2/s", DURATION: "s", EFFICIENCY: ""},
+    "imperial": {PRESSURE: "psi", ABS_PRESSURE: "psia", SPEED: "rpm", FLOW: "gpm", POWER: "hp",
+                 TORQUE: "lbf*ft", TEMPERATURE: "degF", VISCOSITY: "mm^2/s", DURATION: "s",
+                 EFFICIENCY: ""},
+}
+
+#: Every rule id with a short description (stable: reports, CI and spreadsheets refer to them).
+RULES: dict[str, str] = {
+    "speed.min": "shaft speed at or above the minimum speed",
+    "speed.max": "shaft speed at or below the maximum speed",
+    "speed.min-high-pressure": "shaft speed at or above the minimum speed asked for at high pressure",
+    "pressure.continuous": "pressure at or below the continuous rating (except intermittent stretches)",
+    "pressure.intermittent": "pressure in stretches above continuous at or below the intermittent rating",
+    "pressure.intermittent-duration": "longest stretch above continuous within the allowed time",
+    "pressure.intermittent-share": "total time above continuous within the allowed share of the cycle",
+    "pressure.peak": "pressure never above the peak rating",
+    "pressure.relief": "relief-valve setting plus overshoot at or below the peak rating",
+    "flow.delivered": "delivered flow after volumetric losses at least the required flow",
+    "inlet.min": "inlet pressure (absolute) at or above the minimum",
+    "inlet.max": "inlet pressure (absolute) at or below the maximum",
+    "viscosity.min": "oil viscosity at or above the minimum (short-term minimum: warning)",
+    "viscosity.max": "oil viscosity at or below the maximum (up to the cold-start maximum: warning)",
+    "viscosity.cold-start": "oil viscosity at the cold-start temperature at or below the cold-start maximum",
+    "temperature.min": "oil temperature at or above the pump's minimum",
+    "temperature.max": "oil temperature at or below the pump's maximum",
+    "cleanliness": "system cleanliness (ISO 4406) no worse than the pump needs",
+    "torque.max": "shaft torque at or below the shaft's limit",
+    "rotation": "direction of rotation matches the drive",
+    "performance.basis": "what the efficiencies rest on",
+}
+
+
+@dataclass(frozen=True)
+class CheckSettings:
+    """How to check and report.
+
+    ``units`` picks the display units (``"metric"`` or ``"imperial"``); ``strict`` makes warnings fail;
+    ``listed`` caps the number of offending segments a finding names.
+    """
+
+    units: str = "metric"
+    strict: bool = False
+    listed: int = 5
+
+
+@dataclass(frozen=True)
+class Finding:
+    """The outcome of one rule for one pump.
+
+    ``measured`` and ``limit`` are SI numbers of ``kind`` (or text, for a cleanliness code or a
+    rotation); ``unit`` is the unit a report shows them in. ``margin`` is a fraction of the limit,
+    positive inside. ``segment`` names the worst segment (or time range or stretch), ``count`` how many
+    segments or samples are outside and ``share`` their share of the cycle time. ``where`` is the
+    datasheet cell the rule rests on, ``app_where`` the application cell (duty row or setting).
+    """
+
+    rule: str
+    severity: str
+    message: str
+    measured: float | str | None = None
+    limit: float | str | None = None
+    margin: float | None = None
+    kind: Kind | None = None
+    unit: str = ""
+    segment: str = ""
+    count: int = 0
+    share: float | None = None
+    segments: tuple[str, ...] = ()
+    where: Where = field(default_factory=Where)
+    app_where: Where | None = None
+
+    @property
+    def title(self) -> str:
+        """The rule's plain description."""
+        return RULES.get(self.rule, self.rule)
+
+
+@dataclass(frozen=True)
+class DriveFigures:
+    """Drive figures of one pump over the duty: per-segment arrays and whole-cycle numbers (SI)."""
+
+    duration: np.ndarray  # [s]
+    viscosity: np.ndarray  # kinematic, at the segment's oil temperature [m^2/s]
+    volumetric_efficiency: np.ndarray  # [-]
+    total_efficiency: np.ndarray  # [-]
+    flow: np.ndarray  # delivered [m^3/s]
+    torque: np.ndarray  # shaft [N*m]
+    input_power: np.ndarray  # shaft power [W]
+    hydraulic_power: np.ndarray  # [W]
+    power_loss: np.ndarray  # heat into the oil [W]
+    peak_torque: float  # [N*m]
+    peak_power: float  # [W]
+    rms_power: float  # [W]
+    mean_power: float  # [W]
+    mean_power_loss: float  # [W]
+    energy_per_cycle: float  # shaft energy [J]
+    basis: str = ""  # performance basis: "table", "stated" or "none"
+
+
+@dataclass(frozen=True)
+class CheckResult:
+    """All findings for one pump, its drive figures and the overall verdict."""
+
+    datasheet: Datasheet
+    application: Application
+    findings: list[Finding]
+    drive: DriveFigures
+    settings: CheckSettings = field(default_factory=CheckSettings)
+
+    @property
+    def worst_margin(self) -> float | None:
+        """The smallest numeric margin among the rules that were judged (None if there is none)."""
+        margins = [f.margin for f in self.findings
+                   if f.severity != INFO and f.margin is not None and math.isfinite(f.margin)]
+        return min(margins) if margins else None
+
+    @property
+    def verdict(self) -> str:
+        """``fail``, ``warn`` or ``pass`` (``strict`` settings turn ``warn`` into ``fail``)."""
+        worst = max((_ORDER[f.severity] for f in self.findings), default=0)
+        if worst == _ORDER[FAIL] or (worst == _ORDER[WARN] and self.settings.strict):
+            return FAIL
+        return WARN if worst == _ORDER[WARN] else PASS
+
+    def counts(self) -> dict[str, int]:
+        """How many findings of each severity."""
+        out = {FAIL: 0, WARN: 0, INFO: 0, PASS: 0}
+        for f in self.findings:
+            out[f.severity] += 1
+        return out
+
+
+# --------------------------------------------------------------------------------------------------
+# Stretches above a level
+
+
+def stretches(mask: np.ndarray, duration: np.ndarray, wraps: bool) -> tuple[np.ndarray, np.ndarray,
+                                                                            np.ndarray]:
+    """Runs of consecutive ``True`` in ``mask``: ``(first, stop, length)``.
+
+    ``first`` is the index of a run's first element, ``stop`` one past its last (for a run that wraps
+    round the end of a repeating cycle, ``stop <= first``); ``length`` is its duration [s], summed from
+    a cumulative sum of ``duration``. A mask that is all ``True`` in a repeating cycle is one run that
+    never ends (length ``inf``).
+
+    >>> first, stop, length = stretches(np.array([1, 1, 0, 1, 1, 0, 1], bool),
+    ...                                 np.array([1.0, 2, 3, 4, 5, 6, 7]), wraps=True)
+    >>> first.tolist(), stop.tolist(), length.tolist()
+    ([6, 3], [2, 5], [10.0, 9.0])
+    """
+    n = mask.size
+    edges = np.diff(np.concatenate(([0], mask.view(np.int8) if mask.dtype == bool else mask.astype(np.int8),
+                                    [0])))
+    first = np.flatnonzero(edges == 1)
+    stop = np.flatnonzero(edges == -1)
+    cum = np.concatenate(([0.0], np.cumsum(duration, dtype=float)))
+    length = cum[stop] - cum[first]
+    if wraps and first.size and first[0] == 0 and stop[-1] == n:
+        if first.size == 1:
+            return first, stop, np.array([math.inf])
+        # the last run continues into the first: one stretch, starting where the last one starts
+        length = np.concatenate(([length[0] + length[-1]], length[1:-1]))
+        first = np.concatenate(([first[-1]], first[1:-1]))
+        stop = stop[:-1]
+    return first, stop, length
+
+
+# --------------------------------------------------------------------------------------------------
+# Helpers
+
+
+@dataclass(frozen=True)
+class _Context:
+    ds: Datasheet
+    app: Application
+    duty: Duty
+    settings: CheckSettings
+    cycle: float
+
+    def unit(self, kind: Kind | None) -> str:
+        if kind is None:
+            return ""
+        return DISPLAY_UNITS.get(self.settings.units, DISPLAY_UNITS["metric"]).get(kind, kind.default)
+
+    def label(self, i: int) -> str:
+        return self.duty.label(int(i))
+
+    def row(self, i: int) -> Where:
+        rows = self.duty.rows
+        if rows and 0 <= i < len(rows):
+            return rows[int(i)]
+        return self.duty.where if (self.duty.where.file or self.duty.where.sheet) else \
+            Where(file=self.app.file or None, field=f"duty {self.label(i)}")
+
+    def listed(self, bad: np.ndarray) -> tuple[str, ...]:
+        idx = np.flatnonzero(bad)[: self.settings.listed]
+        return tuple(self.label(i) for i in idx)
+
+
+def _fmt(ctx: _Context, kind: Kind | None, value: float) -> str:
+    """A value in the display unit, for messages."""
+    from .units import from_si
+
+    if kind is None:
+        return f"{value:.4g}"
+    if not math.isfinite(value):
+        return "unlimited" if value > 0 else str(value)
+    unit = ctx.unit(kind)
+    shown = from_si(value, kind, unit) if unit else value
+    pretty = unit.replace("degC", "°C").replace("degF", "°F").replace("^2", "²").replace("*", "·")
+    return f"{shown:.4g} {pretty}".strip()
+
+
+def _margin(measured: float, limit: float, upper: bool) -> float:
+    if limit == 0 or not math.isfinite(limit):
+        return math.inf if (measured <= limit if upper else measured >= limit) else -math.inf
+    return (limit - measured) / abs(limit) if upper else (measured - limit) / abs(limit)
+
+
+def _bound(ctx: _Context, rule: str, values: np.ndarray, limit: float | np.ndarray, upper: bool,
+           kind: Kind, where: Where, *, active: np.ndarray | None = None, what: str = "",
+           rating_note: str = "", severity: str = FAIL,
+           extra: tuple[tuple[float, str, Where], ...] = (), check_nan: bool = False) -> Finding:
+    """One limit over every segment: worst segment, count and share outside, margin of the worst.
+
+    ``extra`` adds points that are not segments (e.g. the drive's speed range) as (value, label, cell).
+    """
+    values = np.asarray(values, float)
+    scalar = np.ndim(limit) == 0
+    if scalar:
+        lim = float(limit)
+        bad = values > lim if upper else values < lim
+        score = values if upper else -values  # larger = worse, no margin array needed
+    else:
+        lim_arr = np.asarray(limit, float)
+        bad = values > lim_arr if upper else values < lim_arr
+        with np.errstate(divide="ignore", invalid="ignore"):
+            score = (values - lim_arr) / np.abs(lim_arr) if upper else (lim_arr - values) / np.abs(lim_arr)
+        score = np.where(lim_arr == 0, np.where(bad, np.inf, -np.inf), score)
+    if active is not None:
+        bad &= active
+        score = np.where(active, score, -np.inf)
+    # NaN (no data) never counts as inside; the duty's own signals are validated finite already
+    nan = np.isnan(values) if check_nan else None
+    if nan is not None and nan.any():
+        bad |= nan & (active if active is not None else True)
+        score = np.where(nan & (active if active is not None else True), np.inf, score)
+    count = int(np.count_nonzero(bad))
+    has = values.size > 0 and (active is None or bool(active.any()))
+    candidates: list[tuple[float, float, float, str, Where | None]] = []  # score, value, limit, label, at
+    if has:
+        i = int(np.argmax(score))
+        li = lim if scalar else float(lim_arr[i])
+        candidates.append((float(score[i]), float(values[i]), li, ctx.label(i), ctx.row(i)))
+    for value, label, at in extra:
+        li = lim if scalar else float(np.max(lim_arr) if upper else np.min(lim_arr))
+        s = _margin(value, li, upper)
+        ok = value <= li if upper else value >= li
+        count += 0 if ok else 1
+        candidates.append((-s if not scalar else (value if upper else -value), value, li, label, at))
+    if not candidates:
+        return Finding(rule, INFO, f"not applicable: {what or 'no segment to judge'}", kind=kind,
+                       unit=ctx.unit(kind), where=where)
+    _, worst, li, label, at = max(candidates, key=lambda c: c[0])
+    margin = _margin(worst, li, upper) if math.isfinite(worst) else None
+    share = float(np.sum(ctx.duty.duration, where=bad) / ctx.cycle) if count and ctx.cycle > 0 else 0.0
+    word = "above" if upper else "below"
+    sev = severity if count else PASS
+    if math.isnan(worst):
+        text = f"not known at {label}: {what or 'no value'}"
+    elif count:
+        text = (f"{_fmt(ctx, kind, worst)} at {label} is {word} the limit {_fmt(ctx, kind, li)}"
+                f"{rating_note}; {count} outside")
+    else:
+        text = f"worst {_fmt(ctx, kind, worst)} at {label}, limit {_fmt(ctx, kind, li)}{rating_note}"
+    return Finding(rule, sev, text, worst if math.isfinite(worst) or math.isinf(worst) else None, li,
+                   margin, kind, ctx.unit(kind), label, count, share,
+                   ctx.listed(bad) if count else (), where, at)
+
+
+def _note(margin: float, what: str) -> str:
+    return f" ({what} less a {margin:.0%} margin)" if margin else ""
+
+
+def _stretch_label(ctx: _Context, first: int, stop: int) -> str:
+    duty = ctx.duty
+    last = (stop - 1) % len(duty)
+    if duty.names:
+        a, b = duty.names[first], duty.names[last]
+        return a if first == last else f"{a} … {b}"
+    a = ctx.label(first).split("–")[0]
+    b = ctx.label(last).split("–")[-1]
+    return f"{a}–{b}" + (" (across the cycle's end)" if last < first else "")
+
+
+# --------------------------------------------------------------------------------------------------
+# Rule groups
+
+
+def _speed(ctx: _Context) -> list[Finding]:
+    ds, app, duty = ctx.ds, ctx.app, ctx.duty
+    m = app.speed_margin
+    running = duty.speed > 0  # a pump standing still is not running below its minimum speed
+    out = []
+    extra_min = ((app.speed_min, "drive speed range", app.where("speed_min")),) \
+        if app.speed_min is not None and app.speed_min > 0 else ()
+    extra_max = ((app.speed_max, "drive speed range", app.where("speed_max")),) \
+        if app.speed_max is not None else ()
+    out.append(_bound(ctx, "speed.min", duty.speed, ds.speed_min * (1 + m), False, SPEED,
+                      ds.where("speed_min"), active=running, what="the pump never runs",
+                      rating_note=_note(m, "minimum speed raised by"), extra=extra_min))
+    out.append(_bound(ctx, "speed.max", duty.speed, ds.speed_max * (1 - m), True, SPEED,
+                      ds.where("speed_max"), rating_note=_note(m, "maximum speed"), extra=extra_max))
+    if ds.speed_min_high_pressure is not None and ds.high_pressure_threshold is not None:
+        high = running & (duty.pressure > ds.high_pressure_threshold)
+        out.append(_bound(ctx, "speed.min-high-pressure", duty.speed, ds.speed_min_high_pressure * (1 + m),
+                          False, SPEED, ds.where("speed_min_high_pressure"), active=high,
+                          what=f"no running segment above {_fmt(ctx, PRESSURE, ds.high_pressure_threshold)}",
+                          rating_note=f" above {_fmt(ctx, PRESSURE, ds.high_pressure_threshold)}"
+                          + _note(m, "raised by")))
+    return out
+
+
+def _pressure(ctx: _Context) -> list[Finding]:
+    ds, app, duty = ctx.ds, ctx.app, ctx.duty
+    m = app.pressure_margin
+    p = duty.pressure
+    cont = ds.pressure_continuous * (1 - m)
+    peak = ds.pressure_peak * (1 - m)
+    out: list[Finding] = []
+    peak_finding = _bound(ctx, "pressure.peak", p, peak, True, PRESSURE, ds.where("pressure_peak"),
+                          rating_note=_note(m, "peak rating"))
+    if ds.pressure_intermittent is None:
+        out.append(_bound(ctx, "pressure.continuous", p, cont, True, PRESSURE,
+                          ds.where("pressure_continuous"),
+                          rating_note=_note(m, "continuous rating") + "; no intermittent rating stated"))
+    else:
+        above = p > cont
+        first, stop, length = stretches(above, duty.duration, duty.wraps)
+        cont_f = _bound(ctx, "pressure.continuous", p, cont, True, PRESSURE, ds.where("pressure_continuous"),
+                        rating_note=_note(m, "continuous rating"))
+        if first.size:
+            cont_f = _replace(cont_f, severity=INFO, message=(
+                f"{first.size} stretch(es) above the continuous rating {_fmt(ctx, PRESSURE, cont)}"
+                f"{_note(m, 'rating')}, judged by the intermittent rules; highest "
+                f"{_fmt(ctx, PRESSURE, float(cont_f.measured))} at {cont_f.segment}"))
+        out.append(cont_f)
+        inter = ds.pressure_intermittent * (1 - m)
+        out.append(_bound(ctx, "pressure.intermittent", p, inter, True, PRESSURE,
+                          ds.where("pressure_intermittent"), active=above,
+                          what="no stretch above the continuous rating",
+                          rating_note=_note(m, "intermittent rating")))
+        out.append(_stretch_rule(ctx, "pressure.intermittent-duration", first, stop, length,
+                                 ds.intermittent_max_duration, "intermittent_max_duration", share=False))
+        out.append(_stretch_rule(ctx, "pressure.intermittent-share", first, stop, length,
+                                 ds.intermittent_max_share, "intermittent_max_share", share=True))
+    out.append(peak_finding)
+    relief = app.relief_setting * (1 + app.overshoot)
+    ok = relief <= peak
+    out.append(Finding(
+        "pressure.relief", PASS if ok else FAIL,
+        f"relief setting {_fmt(ctx, PRESSURE, app.relief_setting)} + {app.overshoot:.0%} overshoot = "
+        f"{_fmt(ctx, PRESSURE, relief)} {'within' if ok else 'above'} the peak rating "
+        f"{_fmt(ctx, PRESSURE, peak)}{_note(m, 'rating')}",
+        relief, peak, _margin(relief, peak, True), PRESSURE, ctx.unit(PRESSURE), "relief valve",
+        0 if ok else 1, None, (), ds.where("pressure_peak"), app.where("relief_setting")))
+    return out
+
+
+def _replace(f: Finding, **changes: object) -> Finding:
+    from dataclasses import replace
+
+    return replace(f, **changes)
+
+
+def _stretch_rule(ctx: _Context, rule: str, first: np.ndarray, stop: np.ndarray, length: np.ndarray,
+                  limit: float | None, name: str, share: bool) -> Finding:
+    where = ctx.ds.where(name)
+    kind = EFFICIENCY if share else DURATION
+    if not first.size:
+        return Finding(rule, PASS, "no stretch above the continuous rating", 0.0, limit,
+                       1.0 if limit else None, kind, ctx.unit(kind), "", 0, 0.0, (), where)
+    if share:
+        total = float(np.sum(length)) if np.all(np.isfinite(length)) else ctx.cycle
+        value = total / ctx.cycle if ctx.cycle > 0 else math.inf
+        label = f"{first.size} stretch(es)"
+        bad_count = first.size
+    else:
+        i = int(np.argmax(length))
+        value = float(length[i])
+        label = _stretch_label(ctx, int(first[i]), int(stop[i]))
+        bad_count = int(np.count_nonzero(length > limit)) if limit is not None else 0
+    shown = (f"{value:.1%} of the cycle" if share else
+             ("the whole cycle, without a break" if math.isinf(value) else _fmt(ctx, DURATION, value)))
+    if limit is None:
+        return Finding(rule, WARN, f"{shown} above the continuous rating, but the datasheet states no "
+                       f"{'share of the cycle' if share else 'longest time'} for intermittent pressure: "
+                       "ask the supplier", value, None, None, kind, ctx.unit(kind), label,
+                       bad_count, None, (), where, ctx.row(int(first[0])))
+    ok = value <= limit
+    lim_text = f"{limit:.1%}" if share else _fmt(ctx, DURATION, limit)
+    text = f"{shown} ({label}) {'within' if ok else 'beyond'} the allowed {lim_text}"
+    if not share:
+        text += f"; {first.size} stretch(es) in all"
+    bad_labels = ()
+    if not ok and not share:
+        idx = np.flatnonzero(length > limit)[: ctx.settings.listed]
+        bad_labels = tuple(_stretch_label(ctx, int(first[j]), int(stop[j])) for j in idx)
+    return Finding(rule, PASS if ok else FAIL, text, value, limit, _margin(value, limit, True), kind,
+                   ctx.unit(kind), label, 0 if ok else (bad_count if not share else 1), None,
+                   bad_labels, where, ctx.row(int(first[0] if share else first[int(np.argmax(length))])))
+
+
+def _flow(ctx: _Context, est: performance.Estimate) -> Finding:
+    duty, app = ctx.duty, ctx.app
+    need = duty.flow * (1 + app.flow_margin)
+    note = _note(0, "") if not app.flow_margin else f" (required flow plus a {app.flow_margin:.0%} margin)"
+    f = _bound(ctx, "flow.delivered", est.flow, need, False, FLOW, ctx.ds.where("displacement"),
+               active=need > 0, what="no flow required", rating_note=note, check_nan=True)
+    if est.volumetric_known or f.severity != PASS:
+        return f
+    # No η_v: the geometric flow is an upper bound, so a pass is not proven.
+    return _replace(f, severity=WARN, message=f.message + "; not proven: the datasheet states no "
+                    "volumetric efficiency, so the flow is the geometric flow V·n (an upper bound)",
+                    where=ctx.ds.where("volumetric_efficiency"))
+
+
+def _inlet(ctx: _Context) -> list[Finding]:
+    ds, duty = ctx.ds, ctx.duty
+    out = []
+    if ds.inlet_pressure_min is not None:
+        out.append(_bound(ctx, "inlet.min", duty.inlet_pressure, ds.inlet_pressure_min, False, ABS_PRESSURE,
+                          ds.where("inlet_pressure_min")))
+    if ds.inlet_pressure_max is not None:
+        out.append(_bound(ctx, "inlet.max", duty.inlet_pressure, ds.inlet_pressure_max, True, ABS_PRESSURE,
+                          ds.where("inlet_pressure_max")))
+    return out
+
+
+def _viscosity(ctx: _Context, nu: np.ndarray) -> list[Finding]:
+    ds, app = ctx.ds, ctx.app
+    out = []
+    running = ctx.duty.speed > 0
+    if ds.viscosity_min is not None:
+        f = _bound(ctx, "viscosity.min", nu, ds.viscosity_min, False, VISCOSITY, ds.where("viscosity_min"),
+                   active=running, what="the pump never runs", check_nan=True)
+        if f.count:
+            short = ds.viscosity_min_short
+            hard = int(np.count_nonzero(running & (nu < short))) if short is not None else f.count
+            if hard == 0:
+                f = _replace(f, severity=WARN, message=f.message + f"; above the short-term minimum "
+                             f"{_fmt(ctx, VISCOSITY, short)}: allowed only briefly",
+                             where=ds.where("viscosity_min_short"))
+            elif short is not None:
+                f = _replace(f, message=f.message + f"; {hard} below the short-term minimum "
+                             f"{_fmt(ctx, VISCOSITY, short)}")
+        out.append(f)
+    if ds.viscosity_max is not None:
+        f = _bound(ctx, "viscosity.max", nu, ds.viscosity_max, True, VISCOSITY, ds.where("viscosity_max"),
+                   active=running, what="the pump never runs", check_nan=True)
+        if f.count:
+            cold = ds.viscosity_max_cold_start
+            hard = int(np.count_nonzero(running & (nu > cold))) if cold is not None else f.count
+            if hard == 0:
+                f = _replace(f, severity=WARN, message=f.message + f"; within the cold-start maximum "
+                             f"{_fmt(ctx, VISCOSITY, cold)}: allowed only while starting cold",
+                             where=ds.where("viscosity_max_cold_start"))
+            elif cold is not None:
+                f = _replace(f, message=f.message + f"; {hard} above the cold-start maximum "
+                             f"{_fmt(ctx, VISCOSITY, cold)}")
+        out.append(f)
+    t_cold = app.cold_start_temperature
+    if t_cold is not None and ds.viscosity_max_cold_start is not None:
+        oil = app.oil
+        nu_cold = float(fluid.viscosity_at(t_cold, oil.nu1, oil.t1, oil.nu2, oil.t2))
+        lim = ds.viscosity_max_cold_start
+        ok = nu_cold <= lim
+        out.append(Finding("viscosity.cold-start", PASS if ok else FAIL,
+                           f"{_fmt(ctx, VISCOSITY, nu_cold)} at the cold start "
+                           f"({_fmt(ctx, TEMPERATURE, t_cold)}), cold-start maximum {_fmt(ctx, VISCOSITY, lim)}",
+                           nu_cold, lim, _margin(nu_cold, lim, True), VISCOSITY, ctx.unit(VISCOSITY),
+                           "cold start", 0 if ok else 1, None, (), ds.where("viscosity_max_cold_start"),
+                           app.where("cold_start_temperature")))
+    return out
+
+
+def _temperature(ctx: _Context) -> list[Finding]:
+    ds, duty = ctx.ds, ctx.duty
+    out = []
+    if ds.temperature_min is not None:
+        out.append(_bound(ctx, "temperature.min", duty.temperature, ds.temperature_min, False, TEMPERATURE,
+                          ds.where("temperature_min")))
+    if ds.temperature_max is not None:
+        out.append(_bound(ctx, "temperature.max", duty.temperature, ds.temperature_max, True, TEMPERATURE,
+                          ds.where("temperature_max")))
+    return out
+
+
+_CODE = re.compile(r"^\s*(\d+|-|\*)\s*/\s*(\d+|-|\*)\s*(?:/\s*(\d+|-|\*)\s*)?$")
+
+
+def parse_cleanliness(code: str, where: Where | None = None) -> tuple[int | None, int | None, int | None]:
+    """ISO 4406 code as three scale numbers (≥4, ≥6, ≥14 µm(c)); ``None`` for a ``-`` or ``*``.
+
+    A two-number code (``"16/13"``) gives the ≥6 and ≥14 µm(c) numbers (ISO 4406: the first number
+    may be left out when counting with a microscope).
+
+    >>> parse_cleanliness("18/16/13"), parse_cleanliness("-/15/12"), parse_cleanliness("16/13")
+    ((18, 16, 13), (None, 15, 12), (None, 16, 13))
+    """
+    match = _CODE.match(str(code))
+    if not match:
+        raise InputError(f"{code!r} is not an ISO 4406 cleanliness code", where or Where(),
+                         "write three scale numbers such as '18/16/13'")
+    nums = [None if g in (None, "-", "*") else int(g) for g in match.groups()]
+    if match.group(3) is None:
+        nums = [None, nums[0], nums[1]]
+    return nums[0], nums[1], nums[2]
+
+
+def _cleanliness(ctx: _Context) -> list[Finding]:
+    ds, app = ctx.ds, ctx.app
+    if ds.cleanliness is None:
+        return []
+    where = ds.where("cleanliness")
+    need = parse_cleanliness(ds.cleanliness, where)
+    if app.cleanliness is None:
+        return [Finding("cleanliness", WARN, f"the pump needs {ds.cleanliness} (ISO 4406) but the "
+                        "application states no cleanliness code", None, ds.cleanliness, None, None, "",
+                        "system", 0, None, (), where, app.where("cleanliness"))]
+    have = parse_cleanliness(app.cleanliness, app.where("cleanliness"))
+    pairs = [(h, r) for h, r in zip(have, need, strict=True) if r is not None and h is not None]
+    missing = any(r is not None and h is None for h, r in zip(have, need, strict=True))
+    worse = [h > r for h, r in pairs]
+    margin = min(((r - h) / max(r, 1) for h, r in pairs), default=None)
+    if any(worse):
+        sev, word = FAIL, "worse than"
+    elif missing or not pairs:
+        sev, word = WARN, "cannot be fully compared with"
+    else:
+        sev, word = PASS, "no worse than"
+    return [Finding("cleanliness", sev, f"system {app.cleanliness} is {word} the required {ds.cleanliness} "
+                    "(ISO 4406, number by number)", app.cleanliness, ds.cleanliness, margin, None, "",
+                    "system", int(sum(worse)), None, (), where, app.where("cleanliness"))]
+
+
+_ROTATION = {
+    "cw": "cw", "clockwise": "cw", "right": "cw", "right-hand": "cw", "r": "cw",
+    "ccw": "ccw", "counter-clockwise": "ccw", "counterclockwise": "ccw", "anticlockwise": "ccw",
+    "anti-clockwise": "ccw", "left": "ccw", "left-hand": "ccw", "l": "ccw",
+    "either": "either", "both": "either", "reversible": "either", "bidirectional": "either",
+    "bi-directional": "either",
+}
+
+
+def _rotation_of(text: str, where: Where) -> str:
+    key = str(text).strip().lower().replace("_", "-").replace(" ", "-")
+    if key not in _ROTATION:
+        raise InputError(f"{text!r} is not a direction of rotation", where,
+                         "write 'clockwise', 'counter-clockwise' or 'either' (seen from the shaft end)")
+    return _ROTATION[key]
+
+
+def _rotation(ctx: _Context) -> list[Finding]:
+    ds, app = ctx.ds, ctx.app
+    if ds.rotation is None or app.rotation is None:
+        return []
+    pump = _rotation_of(ds.rotation, ds.where("rotation"))
+    drive_dir = _rotation_of(app.rotation, app.where("rotation"))
+    # a one-way pump on a drive that turns both ways does not match
+    ok = pump == "either" or pump == drive_dir
+    return [Finding("rotation", PASS if ok else FAIL,
+                    f"pump {ds.rotation}, drive {app.rotation}: {'matches' if ok else 'does not match'}",
+                    app.rotation, ds.rotation, None, None, "", "shaft", 0 if ok else 1, None, (),
+                    ds.where("rotation"), app.where("rotation"))]
+
+
+def _torque(ctx: _Context, est: performance.Estimate) -> list[Finding]:
+    ds = ctx.ds
+    if ds.torque_max is None:
+        return []
+    if np.isnan(est.torque).all():
+        return [Finding("torque.max", WARN, "not checked: the datasheet states no efficiency to compute "
+                        "the shaft torque from", None, ds.torque_max, None, TORQUE, ctx.unit(TORQUE),
+                        where=ds.where("total_efficiency"))]
+    f = _bound(ctx, "torque.max", est.torque, ds.torque_max, True, TORQUE, ds.where("torque_max"),
+               check_nan=True)
+    if not est.total_known and f.severity == PASS:
+        # only η_v stated: η_hm = 1 was assumed, so the torque is too low and a pass is not proven
+        f = _replace(f, severity=WARN, message=f.message + "; not proven: no total efficiency stated "
+                     "(η_hm = 1 assumed)")
+    return [f]
+
+
+def _basis(ctx: _Context, est: performance.Estimate) -> Finding:
+    ds = ctx.ds
+    notes = "; ".join(est.notes)
+    if est.basis == "table":
+        n_extra = int(np.count_nonzero(est.extrapolated))
+        share = float(np.sum(ctx.duty.duration, where=est.extrapolated) / ctx.cycle) if ctx.cycle else 0.0
+        where = ds.performance.where if ds.performance is not None else ds.where("performance")
+        if n_extra:
+            return Finding("performance.basis", WARN, f"{notes}; {n_extra} segment(s) outside the table's "
+                           "range (extrapolated)", None, None, None, None, "", "", n_extra, share,
+                           ctx.listed(est.extrapolated), where)
+        return Finding("performance.basis", INFO, notes, where=where)
+    field_name = "volumetric_efficiency" if ds.volumetric_efficiency is not None else "total_efficiency"
+    return Finding("performance.basis", WARN, notes, None, None, None, None, "", "all segments",
+                   0, None, (), ds.where(field_name))
+
+
+def _drive(ctx: _Context, est: performance.Estimate, nu: np.ndarray) -> DriveFigures:
+    duty = ctx.duty
+    hyd = duty.pressure * est.flow
+    loss = est.input_power - hyd
+    power = est.input_power
+    if np.isnan(power).any():
+        rms = mean = mean_loss = math.nan
+    else:
+        use = duty.duration > 0  # drive's RMS wants durations > 0; zero-length segments weigh nothing
+        p, t, lo = (power, duty.duration, loss) if use.all() else (power[use], duty.duration[use], loss[use])
+        if p.min() < 0:  # a fitted model may dip below zero at a standstill-like point
+            p = np.maximum(p, 0.0)
+        rms = float(drive.rms_power(p, t))
+        mean = float(drive.mean_power(p, t))
+        mean_loss = float(np.dot(lo, t) / np.sum(t))
+    return DriveFigures(
+        duty.duration, nu, est.volumetric_efficiency, est.total_efficiency, est.flow, est.torque, power,
+        hyd, loss, float(np.max(est.torque)) if len(duty) else math.nan,
+        float(np.max(power)) if len(duty) else math.nan, rms, mean, mean_loss,
+        float(np.dot(power, duty.duration)), est.basis)
+
+
+def _validate(app: Application) -> None:
+    duty = app.duty
+    n = len(duty)
+    where = duty.where if (duty.where.file or duty.where.sheet) else Where(file=app.file or None,
+                                                                             field="duty")
+    if n == 0:
+        raise InputError("the duty cycle has no segments", where)
+    for name in ("pressure", "flow", "speed", "temperature", "inlet_pressure"):
+        arr = getattr(duty, name)
+        if np.shape(arr) != (n,):
+            raise InputError(f"duty {name} has {np.size(arr)} values for {n} durations", where)
+        if not np.isfinite(arr).all():
+            i = int(np.flatnonzero(~np.isfinite(arr))[0])
+            raise InputError(f"duty {name} is not a number", duty.rows[i] if duty.rows else where)
+    bad = ~np.isfinite(duty.duration) | (duty.duration < 0)
+    if bad.any():
+        i = int(np.flatnonzero(bad)[0])
+        raise InputError("a duration must be a finite number >= 0", duty.rows[i] if duty.rows else where)
+    if duty.cycle_time <= 0:
+        raise InputError("the duty cycle lasts no time", where)
+    for name in ("speed", "flow", "pressure"):
+        arr = getattr(duty, name)
+        if (arr < 0).any():
+            i = int(np.flatnonzero(arr < 0)[0])
+            raise InputError(f"duty {name} must not be negative", duty.rows[i] if duty.rows else where)
+
+
+def check(datasheet: Datasheet, application: Application,
+          settings: CheckSettings | None = None) -> CheckResult:
+    """Check one pump's datasheet against an application's duty cycle (rules of DESIGN §6).
+
+    Parameters
+    ----------
+    datasheet : Datasheet
+        The pump's ratings, SI.
+    application : Application
+        The machine's settings and duty cycle, SI.
+    settings : CheckSettings, optional
+        Display units, strictness, how many segments a finding names.
+
+    Returns
+    -------
+    CheckResult
+        One finding per rule that applies, the drive figures and the verdict.
+
+    Raises
+    ------
+    InputError
+        For a duty that cannot be checked (lengths differ, negative duration, no time at all) or a
+        code that cannot be read (cleanliness, rotation), naming the cell.
+
+    References
+    ----------
+    ISO 4391 and ISO 4409 (pump symbols and performance); ISO 4406 (cleanliness codes); ASTM D341
+    (viscosity against temperature); IEC 60034-1 (duty types, RMS power; from memory).
+    """
+    settings = settings or CheckSettings()
+    _validate(application)
+    duty = application.duty
+    ctx = _Context(datasheet, application, duty, settings, duty.cycle_time)
+    oil = application.oil
+    nu = np.asarray(fluid.viscosity_at(duty.temperature, oil.nu1, oil.t1, oil.nu2, oil.t2), float)
+    rho = fluid.density_at(duty.temperature, oil.density_15)
+    # the supplier's test oil is rarely stated: its kinematic viscosities are taken at this oil's density
+    est = performance.estimate(datasheet, duty.pressure, duty.speed, nu, rho, oil.density_15)
+    findings: list[Finding] = []
+    findings += _speed(ctx)
+    findings += _pressure(ctx)
+    findings.append(_flow(ctx, est))
+    findings += _inlet(ctx)
+    findings += _viscosity(ctx, nu)
+    findings += _temperature(ctx)
+    findings += _cleanliness(ctx)
+    findings += _torque(ctx, est)
+    findings += _rotation(ctx)
+    findings.append(_basis(ctx, est))
+    return CheckResult(datasheet, application, findings, _drive(ctx, est, nu), settings)

@@ -1,0 +1,116 @@
+"""``sheetpump check``: check pump datasheets against an application's duty cycle.
+
+    sheetpump check --app APPLICATION.xlsx DATASHEET.xlsx [DATASHEET.xlsx ...]
+
+Prints a report per pump (or ``--format json``), optionally writes JUnit XML (``--junit``) and an
+annotated copy of each datasheet (``--annotate``). Exit code 0 when every rule passes, 1 when one fails
+(with ``--strict`` also when one warns), 2 for bad input or usage.
+"""
+
+from __future__ import annotations
+
+import argparse
+import sys
+from pathlib import Path
+from typing import Any
+
+from ..checks import FAIL, CheckResult, CheckSettings, check
+from ..errors import InputError, Where
+from ..files import atomic_write
+from ..physics.pump import PhysicsError
+
+EXIT_OK, EXIT_FAIL = 0, 1
+
+
+def _read_application(path: str) -> Any:
+    from ..workbooks import read_application
+
+    return read_application(path)
+
+
+def _read_datasheet(path: str) -> Any:
+    from ..workbooks import read_datasheet
+
+    return read_datasheet(path)
+
+
+def _exists(path: str, what: str) -> None:
+    p = Path(path)
+    if not p.is_file():
+        raise InputError(f"{what} not found" if not p.exists() else f"{what} is not a file",
+                         Where(file=path))
+
+
+def _read(reader: Any, path: str, what: str) -> Any:
+    _exists(path, what)
+    try:
+        return reader(path)
+    except InputError as exc:
+        raise exc.at(file=path) from None
+    except PhysicsError as exc:
+        raise InputError(f"{exc.argument} {exc.reason}", Where(file=path, field=exc.argument)) from None
+    except OSError as exc:
+        raise InputError(f"cannot read the {what} ({exc.strerror or exc})", Where(file=path)) from None
+
+
+def annotate_target(out: str, datasheet: str, several: bool) -> Path:
+    """The annotated copy's path: ``out`` itself for one datasheet, ``out``'s stem + datasheet stem else."""
+    target = Path(out)
+    if not several:
+        return target
+    return target.with_name(f"{target.stem}-{Path(datasheet).stem}{target.suffix or '.xlsx'}")
+
+
+def run(args: argparse.Namespace) -> int:
+    from .. import report
+
+    settings = CheckSettings(units=args.units, strict=args.strict)
+    app = _read(_read_application, args.app, "application workbook")
+    results: list[CheckResult] = []
+    for path in args.datasheets:
+        ds = _read(_read_datasheet, path, "datasheet workbook")
+        try:
+            results.append(check(ds, app, settings))
+        except InputError as exc:
+            raise exc.at(file=path) from None
+        except PhysicsError as exc:
+            raise InputError(f"{exc.argument} {exc.reason}", Where(file=path, field=exc.argument)) from None
+    if args.annotate:
+        several = len(results) > 1
+        for path, r in zip(args.datasheets, results, strict=True):
+            report.annotate(r, annotate_target(args.annotate, path, several), source=path)
+    if args.junit:
+        atomic_write(args.junit, report.junit_report(results, strict=args.strict))
+    if args.format == "json":
+        text = report.json_report(results, strict=args.strict)
+    else:
+        text = report.text_report(results, strict=args.strict)
+    if args.output:
+        atomic_write(args.output, text)
+    else:
+        sys.stdout.write(text)
+    return EXIT_FAIL if any(r.verdict == FAIL for r in results) else EXIT_OK
+
+
+def register(sub: argparse._SubParsersAction) -> argparse.ArgumentParser:
+    parser = sub.add_parser(
+        "check", help="check pump datasheets against an application's duty cycle",
+        description="Check each pump datasheet against the application's duty cycle and ratings rules. "
+                    "Exit code 0: every rule passes; 1: a rule fails (with --strict also a warning); "
+                    "2: bad input or usage.")
+    parser.add_argument("--app", required=True, metavar="APPLICATION.xlsx",
+                        help="the application workbook (settings and duty cycle)")
+    parser.add_argument("datasheets", nargs="+", metavar="DATASHEET.xlsx", help="pump datasheet workbook(s)")
+    parser.add_argument("--format", choices=("text", "json"), default="text",
+                        help="report format (default: text)")
+    parser.add_argument("--output", "-o", metavar="FILE",
+                        help="write the report to FILE instead of standard output")
+    parser.add_argument("--junit", metavar="FILE", help="also write a JUnit XML file (each rule a test case)")
+    parser.add_argument("--annotate", metavar="OUT.xlsx",
+                        help="write a copy of the datasheet with the offending cells highlighted and a "
+                             "findings sheet (several datasheets: OUT-<datasheet>.xlsx)")
+    parser.add_argument("--strict", action="store_true", help="warnings fail too")
+    parser.add_argument("--units", choices=("metric", "imperial"), default="metric",
+                        help="units the report shows (default: metric)")
+    parser.set_defaults(run=run)
+    return parser

@@ -1,0 +1,420 @@
+"""Reports of the rating checker: readable text, JSON, JUnit XML and an annotated copy of a datasheet.
+
+All of them take the :class:`~sheetpump.checks.CheckResult` of each pump and only format it; numbers are
+shown in the display units of the check's settings, and JSON carries the SI value beside each. Files are
+written atomically (:mod:`sheetpump.files`) and the datasheet a copy is made of is only ever read.
+"""
+
+from __future__ import annotations
+
+import json
+import math
+import os
+import xml.etree.ElementTree as ET
+from collections.abc import Sequence
+from pathlib import Path
+from typing import Any
+
+import numpy as np
+
+from . import SAFETY_CAUTION, __version__
+from .checks import DISPLAY_UNITS, FAIL, INFO, PASS, WARN, CheckResult, Finding
+from .errors import InputError, Where
+from .files import atomic_path
+from .units import FLOW, POWER, TORQUE, VISCOSITY, Kind, from_si
+
+__all__ = ["FILLS", "FINDINGS_SHEET", "annotate", "json_report", "junit_report", "text_report"]
+
+_SEVERITY_ORDER = {FAIL: 0, WARN: 1, INFO: 2, PASS: 3}
+
+#: Fill colours (RGB hex) of the annotated copy, our own: a soft red, amber and blue.
+FILLS = {FAIL: "F2B8B5", WARN: "FCE3A4", INFO: "CFE2F3"}
+
+#: Name of the sheet the annotated copy lists the findings on.
+FINDINGS_SHEET = "Check findings"
+
+_FORMULA_STARTS = ("=", "+", "-", "@")
+
+
+# --------------------------------------------------------------------------------------------------
+# Shared formatting
+
+
+def _pretty(unit: str) -> str:
+    return unit.replace("degC", "°C").replace("degF", "°F").replace("^2", "²").replace("*", "·")
+
+
+def _shown(value: float | str | None, kind: Kind | None, unit: str) -> float | str | None:
+    """A finding's SI value in its display unit (text stays text; non-finite becomes None)."""
+    if value is None or isinstance(value, str):
+        return value
+    if not math.isfinite(value):
+        return None
+    if kind is None or not unit:
+        return float(value)
+    return float(from_si(value, kind, unit))
+
+
+def _value_text(value: float | str | None, kind: Kind | None, unit: str) -> str:
+    if isinstance(value, str):
+        return value
+    if value is None:
+        return "—"
+    if not math.isfinite(value):
+        return "unlimited"
+    if kind is not None and kind.name == "efficiency" and not unit:
+        return f"{value:.1%}"
+    shown = _shown(value, kind, unit)
+    return f"{shown:.4g} {_pretty(unit)}".strip()
+
+
+def _margin_text(margin: float | None) -> str:
+    if margin is None:
+        return ""
+    if not math.isfinite(margin):
+        return "margin ∞" if margin > 0 else "margin −∞"
+    return f"margin {margin:+.1%}"
+
+
+def _sorted(findings: Sequence[Finding]) -> list[Finding]:
+    return sorted(findings, key=lambda f: _SEVERITY_ORDER.get(f.severity, 9))
+
+
+def _where_dict(where: Where | None) -> dict[str, str | None] | None:
+    if where is None:
+        return None
+    return {"file": where.file, "sheet": where.sheet, "cell": where.cell, "field": where.field}
+
+
+def _label(severity: str, strict: bool) -> str:
+    return "FAIL" if severity == WARN and strict else severity.upper()
+
+
+# --------------------------------------------------------------------------------------------------
+# Text
+
+
+def _drive_lines(r: CheckResult) -> list[str]:
+    units = DISPLAY_UNITS.get(r.settings.units, DISPLAY_UNITS["metric"])
+    d = r.drive
+
+    def show(v: float, kind: Kind) -> str:
+        if not math.isfinite(v):
+            return "unknown"
+        return f"{from_si(v, kind, units[kind]):.4g} {_pretty(units[kind])}"
+
+    return [
+        f"  Drive: peak torque {show(d.peak_torque, TORQUE)}, peak power {show(d.peak_power, POWER)}, "
+        f"RMS power {show(d.rms_power, POWER)}, mean power {show(d.mean_power, POWER)}",
+        f"         mean heat into the oil {show(d.mean_power_loss, POWER)}, shaft energy per cycle "
+        + ("unknown" if not math.isfinite(d.energy_per_cycle) else f"{d.energy_per_cycle / 3.6e6:.4g} kWh")
+        + f" (efficiencies: {d.basis})",
+    ]
+
+
+def text_report(results: Sequence[CheckResult], strict: bool = False) -> str:
+    """A readable report: per pump every rule's outcome, margin, worst segment and the cell to fix.
+
+    Ends with a one-line summary per pump and :data:`sheetpump.SAFETY_CAUTION`.
+    """
+    lines: list[str] = []
+    if results:
+        app = results[0].application
+        lines.append(f"sheetpump check: application {app.name!r}" + (f" ({app.file})" if app.file else "")
+                     + f", {len(results)} pump(s)" + (", strict (warnings fail)" if strict else ""))
+    for r in results:
+        worst = r.worst_margin
+        lines.append("")
+        lines.append(f"== {r.datasheet.label}" + (f"  ({r.datasheet.file})" if r.datasheet.file else "")
+                     + f"  verdict: {r.verdict.upper()}"
+                     + (f"  worst margin {worst:+.1%}" if worst is not None else ""))
+        for f in _sorted(r.findings):
+            head = f"  {_label(f.severity, strict):<5} {f.rule:<31}"
+            parts = []
+            if f.measured is not None or f.limit is not None:
+                parts.append(f"{_value_text(f.measured, f.kind, f.unit)} (limit "
+                             f"{_value_text(f.limit, f.kind, f.unit)})")
+            if f.margin is not None:
+                parts.append(_margin_text(f.margin))
+            if f.segment:
+                parts.append(f.segment)
+            lines.append(head + "  ".join(parts))
+            if f.severity in (FAIL, WARN, INFO):
+                lines.append(f"        {f.message}")
+                extra = []
+                if f.count > 1 or f.segments:
+                    extra.append(f"{f.count} outside" + (f" ({f.share:.1%} of the cycle)" if f.share else "")
+                                 + (": " + ", ".join(f.segments) + (" …" if f.count > len(f.segments) else "")
+                                    if f.segments else ""))
+                if str(f.where) and f.severity != INFO:
+                    extra.append(f"cell: {f.where}")
+                if f.app_where is not None and str(f.app_where):
+                    extra.append(f"application: {f.app_where}")
+                if extra:
+                    lines.append("        " + "; ".join(extra))
+        lines.extend(_drive_lines(r))
+    lines.append("")
+    for r in results:
+        c = r.counts()
+        lines.append(f"{r.verdict.upper():<5} {r.datasheet.label}: {c[FAIL]} fail, {c[WARN]} warn, "
+                     f"{c[INFO]} info, {c[PASS]} pass")
+    lines.append("")
+    lines.append(SAFETY_CAUTION)
+    return "\n".join(lines) + "\n"
+
+
+# --------------------------------------------------------------------------------------------------
+# JSON
+
+
+def _num(x: float | None) -> float | None:
+    return None if x is None or not math.isfinite(x) else float(x)
+
+
+def _quantity(value: float | str | None, f: Finding) -> dict[str, Any] | str | None:
+    if value is None or isinstance(value, str):
+        return value
+    return {"value": _num(_shown(value, f.kind, f.unit)), "unit": f.unit,
+            "si": _num(value), "si_unit": f.kind.si if f.kind is not None else ""}
+
+
+def _finding_json(f: Finding, strict: bool) -> dict[str, Any]:
+    return {
+        "rule": f.rule,
+        "title": f.title,
+        "severity": f.severity,
+        "failed": f.severity == FAIL or (strict and f.severity == WARN),
+        "message": f.message,
+        "measured": _quantity(f.measured, f),
+        "limit": _quantity(f.limit, f),
+        "margin": _num(f.margin),
+        "segment": f.segment,
+        "count": f.count,
+        "share": _num(f.share),
+        "segments": list(f.segments),
+        "where": _where_dict(f.where),
+        "application_where": _where_dict(f.app_where),
+    }
+
+
+_DRIVE_COLUMNS: tuple[tuple[str, str, Kind | None], ...] = (
+    ("duration", "duration", None),
+    ("viscosity", "viscosity", VISCOSITY),
+    ("volumetric_efficiency", "volumetric_efficiency", None),
+    ("total_efficiency", "total_efficiency", None),
+    ("flow", "flow", FLOW),
+    ("torque", "torque", TORQUE),
+    ("input_power", "input_power", POWER),
+    ("hydraulic_power", "hydraulic_power", POWER),
+    ("power_loss", "power_loss", POWER),
+)
+
+
+def _drive_json(r: CheckResult, max_segments: int) -> dict[str, Any]:
+    units = DISPLAY_UNITS.get(r.settings.units, DISPLAY_UNITS["metric"])
+    d = r.drive
+    out: dict[str, Any] = {"basis": d.basis, "cycle": {}}
+    for name, kind in (("peak_torque", TORQUE), ("peak_power", POWER), ("rms_power", POWER),
+                       ("mean_power", POWER), ("mean_power_loss", POWER)):
+        v = getattr(d, name)
+        out["cycle"][name] = {"value": _num(float(from_si(v, kind, units[kind]))) if math.isfinite(v)
+                              else None, "unit": units[kind], "si": _num(v)}
+    out["cycle"]["energy_per_cycle"] = {"value": _num(d.energy_per_cycle / 3.6e6), "unit": "kWh",
+                                        "si": _num(d.energy_per_cycle)}
+    n = len(d.duration)
+    out["units"] = {col: (units[kind] if kind is not None else ("s" if col == "duration" else ""))
+                    for col, _, kind in _DRIVE_COLUMNS}
+    duty = r.application.duty
+    if n > max_segments:
+        out["segments"] = []
+        out["segments_omitted"] = n
+        return out
+    cols = {}
+    for col, attr, kind in _DRIVE_COLUMNS:
+        arr = np.asarray(getattr(d, attr), float)
+        if kind is not None:
+            arr = np.asarray(from_si(arr, kind, units[kind]), float)
+        cols[col] = [None if not math.isfinite(x) else x for x in np.broadcast_to(arr, (n,)).tolist()]
+    out["segments"] = [{"segment": duty.label(i), **{c: cols[c][i] for c in cols}} for i in range(n)]
+    return out
+
+
+def json_report(results: Sequence[CheckResult], strict: bool = False, max_segments: int = 10000) -> str:
+    """Machine-readable findings per pump and rule, plus the per-segment drive figures.
+
+    A long measured series lists its drive figures only up to ``max_segments`` elements (the count
+    of the rest is given as ``segments_omitted``).
+    """
+    pumps = []
+    for r in results:
+        ds = r.datasheet
+        pumps.append({
+            "pump": ds.label, "supplier": ds.supplier, "model": ds.model, "file": ds.file or None,
+            "verdict": r.verdict, "worst_margin": _num(r.worst_margin), "counts": r.counts(),
+            "findings": [_finding_json(f, strict) for f in r.findings],
+            "drive": _drive_json(r, max_segments),
+        })
+    app = results[0].application if results else None
+    doc = {
+        "tool": "sheetpump", "version": __version__, "strict": strict,
+        "application": {"name": app.name, "file": app.file or None} if app else None,
+        "display_units": results[0].settings.units if results else "metric",
+        "verdict": (FAIL if any(r.verdict == FAIL for r in results) else
+                    WARN if any(r.verdict == WARN for r in results) else PASS),
+        "pumps": pumps,
+        "caution": SAFETY_CAUTION,
+    }
+    return json.dumps(doc, indent=2, ensure_ascii=False, allow_nan=False) + "\n"
+
+
+# --------------------------------------------------------------------------------------------------
+# JUnit XML
+
+
+def junit_report(results: Sequence[CheckResult], strict: bool = False) -> str:
+    """JUnit XML: one test suite per pump, one test case per rule; failures as ``<failure>``.
+
+    A warning is a failure under ``strict``, otherwise a passing case with the warning in
+    ``<system-out>``.
+    """
+    root = ET.Element("testsuites", name="sheetpump check")
+    total = total_fail = 0
+    for r in results:
+        suite = ET.SubElement(root, "testsuite", name=r.datasheet.label)
+        failed = 0
+        for f in r.findings:
+            case = ET.SubElement(suite, "testcase", name=f.rule,
+                                 classname=f"sheetpump.check.{r.datasheet.label}")
+            body = f.message + (f"\ncell: {f.where}" if str(f.where) else "") + (
+                f"\napplication: {f.app_where}" if f.app_where is not None and str(f.app_where) else "")
+            if f.severity == FAIL or (strict and f.severity == WARN):
+                failed += 1
+                el = ET.SubElement(case, "failure", message=f.message[:200], type=f.severity)
+                el.text = body
+            elif f.severity in (WARN, INFO):
+                ET.SubElement(case, "system-out").text = f"{f.severity}: {body}"
+        suite.set("tests", str(len(r.findings)))
+        suite.set("failures", str(failed))
+        suite.set("errors", "0")
+        suite.set("skipped", "0")
+        total += len(r.findings)
+        total_fail += failed
+    root.set("tests", str(total))
+    root.set("failures", str(total_fail))
+    root.set("errors", "0")
+    ET.indent(root)
+    return '<?xml version="1.0" encoding="UTF-8"?>\n' + ET.tostring(root, encoding="unicode") + "\n"
+
+
+# --------------------------------------------------------------------------------------------------
+# Annotated copy
+
+
+def _same_file(a: str | os.PathLike[str] | None, b: str | os.PathLike[str] | None) -> bool:
+    if not a or not b:
+        return False
+    try:
+        return Path(a).resolve() == Path(b).resolve()
+    except OSError:
+        return False
+
+
+def _put(cell: Any, value: Any) -> None:
+    """Write ``value`` as data: a text that looks like a formula stays text."""
+    cell.value = value
+    if isinstance(value, str) and value.startswith(_FORMULA_STARTS):
+        cell.data_type = "s"
+        cell.quotePrefix = True
+
+
+def annotate(result: CheckResult, target: str | os.PathLike[str], source: str | None = None) -> Path:
+    """Write a copy of the datasheet workbook with the offending cells filled and a findings sheet.
+
+    Parameters
+    ----------
+    result : CheckResult
+        The check of the datasheet.
+    target : path
+        The copy to write (atomically); must not be the datasheet itself.
+    source : path, optional
+        The datasheet workbook (default ``result.datasheet.file``). It is only read.
+
+    Returns
+    -------
+    Path
+        ``target``.
+    """
+    import openpyxl
+    from openpyxl.comments import Comment
+    from openpyxl.styles import Font, PatternFill
+    from openpyxl.utils.exceptions import InvalidFileException
+
+    source = source or result.datasheet.file
+    if not source:
+        raise InputError("the datasheet was not read from a workbook, so there is nothing to annotate",
+                         Where(field="--annotate"))
+    if _same_file(source, target) or _same_file(result.application.file, target):
+        raise InputError("the annotated copy would overwrite an input", Where(file=str(target),
+                         field="--annotate"), "give another file name")
+    try:
+        from .workbooks.safe import open_workbook
+    except ImportError:  # pragma: no cover - the guarded opener is part of the package
+        open_workbook = None
+    try:
+        # formulas kept (data_only=False): the copy is the user's datasheet, with marks added
+        wb = open_workbook(source, data_only=False) if open_workbook else openpyxl.load_workbook(source)
+    except (OSError, InvalidFileException, KeyError, ValueError) as exc:
+        raise InputError(f"cannot open the datasheet to annotate it ({exc})", Where(file=str(source))) \
+            from None
+    marked: dict[tuple[str, str], str] = {}
+    for f in _sorted(result.findings):
+        w = f.where
+        if f.severity not in FILLS or not w.sheet or not w.cell or w.sheet not in wb.sheetnames:
+            continue
+        if w.file and not _same_file(w.file, source):
+            continue
+        ws = wb[w.sheet]
+        try:
+            block = ws[w.cell]
+        except (ValueError, KeyError):
+            continue
+        cells = [c for row in block for c in row] if isinstance(block, tuple) and block and \
+            isinstance(block[0], tuple) else (list(block) if isinstance(block, tuple) else [block])
+        for c in cells:
+            key = (w.sheet, c.coordinate)
+            if key in marked:  # the worse severity (sorted first) keeps its colour
+                continue
+            marked[key] = f.severity
+            c.fill = PatternFill(fill_type="solid", start_color=FILLS[f.severity], end_color=FILLS[f.severity])
+            if c.comment is None:
+                c.comment = Comment(f"sheetpump {f.severity}: {f.rule}\n{f.message}"[:1000], "sheetpump")
+    name = FINDINGS_SHEET
+    k = 2
+    while name in wb.sheetnames:
+        name = f"{FINDINGS_SHEET} {k}"
+        k += 1
+    ws = wb.create_sheet(name)
+    header = ("Rule", "Result", "Measured", "Limit", "Unit", "Margin", "Segment", "Outside", "Cell",
+              "Application cell", "Message")
+    for j, h in enumerate(header, start=1):
+        _put(ws.cell(row=1, column=j), h)
+        ws.cell(row=1, column=j).font = Font(bold=True)
+    for i, f in enumerate(_sorted(result.findings), start=2):
+        measured = _shown(f.measured, f.kind, f.unit)
+        limit = _shown(f.limit, f.kind, f.unit)
+        row = (f.rule, f.severity, measured, limit, _pretty(f.unit), _num(f.margin), f.segment, f.count,
+               str(f.where), str(f.app_where) if f.app_where is not None else "", f.message)
+        for j, v in enumerate(row, start=1):
+            _put(ws.cell(row=i, column=j), v)
+        if f.severity in FILLS:
+            ws.cell(row=i, column=2).fill = PatternFill(fill_type="solid", start_color=FILLS[f.severity],
+                                                        end_color=FILLS[f.severity])
+        if f.margin is not None:
+            ws.cell(row=i, column=6).number_format = "0.0%"
+    last = len(result.findings) + 3
+    _put(ws.cell(row=last, column=1), SAFETY_CAUTION)
+    for col, width in zip("ABCDEFGHIJK", (30, 8, 12, 12, 9, 9, 28, 8, 30, 30, 90), strict=True):
+        ws.column_dimensions[col].width = width
+    with atomic_path(target) as tmp:
+        wb.save(tmp)
+    return Path(target)
