@@ -1,0 +1,101 @@
+"""``sheetpump compare``: the comparison workbook of several candidate pumps on one application.
+
+    sheetpump compare --app APPLICATION.xlsx DATASHEET.xlsx [...] -o COMPARISON.xlsx
+
+A folder stands for every ``.xlsx`` in it. Exit codes as for ``check``: 0 all pass, 1 a candidate fails
+(with ``--strict`` also when one warns), 2 bad input or usage.
+"""
+
+from __future__ import annotations
+
+import argparse
+import sys
+from pathlib import Path
+
+from ..checks import FAIL, WARN, CheckSettings
+from ..errors import InputError, Where
+from .check import _read, _read_application, _read_datasheet
+
+EXIT_OK, EXIT_FAIL = 0, 1
+
+
+def datasheet_paths(items: list[str]) -> list[str]:
+    """Expand folders into their ``.xlsx`` files (sorted; Excel's ``~$`` lock files left out)."""
+    paths: list[str] = []
+    for item in items:
+        p = Path(item)
+        if p.is_dir():
+            found = sorted(str(x) for x in p.iterdir()
+                           if x.suffix.lower() in (".xlsx", ".xlsm") and not x.name.startswith(("~$", ".")))
+            if not found:
+                raise InputError("folder holds no .xlsx datasheets", Where(file=item))
+            paths.extend(found)
+        else:
+            paths.append(item)
+    return paths
+
+
+class _Progress:
+    """A one-line progress count on stderr, only when stderr is a terminal and there are many."""
+
+    def __init__(self, total: int, minimum: int = 5) -> None:
+        self.total = total
+        self.on = total >= minimum and sys.stderr.isatty()
+
+    def step(self, i: int, label: str) -> None:
+        if self.on:
+            sys.stderr.write(f"\rchecking {i}/{self.total}: {label[:40]:<40}")
+            sys.stderr.flush()
+
+    def done(self) -> None:
+        if self.on:
+            sys.stderr.write("\r" + " " * 70 + "\r")
+
+
+def build(app_path: str, datasheets: list[str], out: str, units: str = "metric", strict: bool = False):
+    """Read, check, compare and write; returns the :class:`~sheetpump.comparison.Comparison`."""
+    from ..comparison import compare
+    from ..workbooks.comparison import write_comparison
+
+    app = _read(_read_application, app_path, "application workbook")
+    paths = datasheet_paths(datasheets)
+    progress = _Progress(len(paths))
+    sheets = []
+    for i, path in enumerate(paths, start=1):
+        progress.step(i, Path(path).name)
+        sheets.append(_read(_read_datasheet, path, "datasheet workbook"))
+    progress.done()
+    comp = compare(sheets, app, CheckSettings(units=units, strict=strict))
+    inputs = [app_path, *paths]
+    if app.duty.source == "series" and app.duty.where.file:
+        inputs.insert(1, app.duty.where.file)
+    write_comparison(out, comp, inputs=inputs, units=units)
+    return comp
+
+
+def exit_code(verdicts: list[str], strict: bool) -> int:
+    if FAIL in verdicts or (strict and WARN in verdicts):
+        return EXIT_FAIL
+    return EXIT_OK
+
+
+def run(args: argparse.Namespace) -> int:
+    comp = build(args.app, args.datasheets, args.output, args.units, args.strict)
+    for c in comp.candidates:
+        rank = f"rank {c.rank}" if c.rank else "not ranked"
+        print(f"{c.result.verdict:4}  {c.datasheet.label}  ({rank})")
+    print(f"comparison written to {args.output}")
+    return exit_code([c.result.verdict for c in comp.candidates], args.strict)
+
+
+def register(sub: argparse._SubParsersAction) -> argparse.ArgumentParser:
+    parser = sub.add_parser("compare", help="write the comparison workbook of several candidate pumps")
+    parser.add_argument("--app", required=True, metavar="APPLICATION.xlsx", help="the application workbook")
+    parser.add_argument("datasheets", nargs="+", metavar="DATASHEET",
+                        help="datasheet workbooks, or folders of them")
+    parser.add_argument("-o", "--output", required=True, metavar="COMPARISON.xlsx", help="the workbook to write")
+    parser.add_argument("--units", choices=("metric", "imperial"), default="metric",
+                        help="units shown in the comparison (default metric)")
+    parser.add_argument("--strict", action="store_true", help="warnings count as failures for the exit code")
+    parser.set_defaults(run=run)
+    return parser
