@@ -36,7 +36,7 @@ def test_worked_example_matches_generator(tmp_path):
     fresh = tmp_path / "worked-example.xlsx"
     write_worked_example(fresh)
     committed = ROOT / "workbooks" / "worked-example.xlsx"
-    assert _cells(fresh, False) == _cells(committed, False), "run scripts/regenerate_workbooks.py"
+    assert _cells(fresh, False) == _cells(committed, False), "run scripts/regenerate.py"
     assert_same_values(_cells(fresh, True), _cells(committed, True))
 
 

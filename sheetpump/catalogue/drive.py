@@ -25,15 +25,18 @@ declare = CATALOGUE.declare
 
 declare(Calculation(
     "SP_RMS_POWER", drive.rms_power, (_P, _T), POWER,
-    "RMS power of a duty cycle, sqrt(sum(P^2 t) / sum(t)): the motor's equivalent continuous load."))
+    "RMS power of a duty cycle, sqrt(sum(P^2 t) / sum(t)): the motor's equivalent continuous load.",
+    example=([12.5, 18.0, 4.0], [20, 8, 30])))
 declare(Calculation(
     "SP_MEAN_POWER", drive.mean_power, (_P, _T), POWER,
-    "Time-weighted mean power of a duty cycle: sum(P t) / sum(t)."))
+    "Time-weighted mean power of a duty cycle: sum(P t) / sum(t).",
+    example=([12.5, 18.0, 4.0], [20, 8, 30])))
 declare(Calculation(
     "SP_CYCLE_ENERGY", drive.electrical_energy,
     (_P, _T, Arg("motor_eff", EFFICIENCY, "Motor efficiency, 0 to 1: one value or one per segment")),
     ENERGY,
-    "Electrical energy per cycle: sum(P t / motor efficiency)."))
+    "Electrical energy per cycle: sum(P t / motor efficiency).",
+    example=([12.5, 18.0, 4.0], [20, 8, 30], 0.92)))
 
 # Needs a text-choice argument kind in sheetpump.calc (proposed, not there yet).
 _Choice = getattr(calc, "Choice", None)
@@ -44,8 +47,10 @@ if _Choice is not None:  # pragma: no cover - declared once calc.Choice exists
         "SP_MOTOR_SIZE", drive.motor_rating,
         (Arg("rms_power", POWER, "RMS power of the cycle"),
          Arg("peak_power", POWER, "Highest power of the cycle"), _STD), POWER,
-        "Smallest standard motor rating covering the RMS power and, at 1.6 x rating, the peak."))
+        "Smallest standard motor rating covering the RMS power and, at 1.6 x rating, the peak.",
+    example=(9.8, 18.0, "IEC")))
     declare(Calculation(
         "SP_MOTOR_EFF", drive.motor_efficiency,
         (Arg("rated_power", POWER, "Rated output of the motor"), _STD), EFFICIENCY,
-        "Full-load efficiency of a standard motor: IEC IE3 or NEMA Premium, 4-pole."))
+        "Full-load efficiency of a standard motor: IEC IE3 or NEMA Premium, 4-pole.",
+    example=(11, "IEC")))

@@ -1,0 +1,46 @@
+"""Regenerate every committed file that is derived from code: the workbooks under workbooks/ and the
+function table in README.md.
+
+Run after changing a generator or a declaration: ``python scripts/regenerate.py``. The tests fail while
+a committed file differs from what its generator writes.
+"""
+
+from __future__ import annotations
+
+import re
+import sys
+from pathlib import Path
+
+ROOT = Path(__file__).resolve().parents[1]
+sys.path.insert(0, str(ROOT))
+
+from sheetpump.cli.functions import markdown  # noqa: E402
+from sheetpump.workbooks.example import write_worked_example  # noqa: E402
+
+GENERATED = {
+    "worked-example.xlsx": write_worked_example,
+}
+
+
+def update_readme() -> None:
+    readme = ROOT / "README.md"
+    text = readme.read_text(encoding="utf-8")
+    table = markdown()
+    new = re.sub(r"(<!-- functions:start -->\n).*?(\n<!-- functions:end -->)",
+                 lambda m: m.group(1) + table + m.group(2), text, flags=re.S)
+    if new != text:
+        readme.write_text(new, encoding="utf-8")
+    print("README.md")
+
+
+def main() -> None:
+    for name, write in GENERATED.items():
+        target = ROOT / "workbooks" / name
+        target.parent.mkdir(parents=True, exist_ok=True)
+        write(target)
+        print(target.relative_to(ROOT))
+    update_readme()
+
+
+if __name__ == "__main__":
+    main()
