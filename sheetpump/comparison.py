@@ -136,7 +136,7 @@ def compare(datasheets: Sequence[Datasheet], application: Application,
     ...               total_efficiency=0.85, price=400.0)
     >>> result = compare([a], app)
     >>> result.candidates[0].motor.label, result.candidates[0].rank
-    ('11 kW', 1)
+    ('15 kW', 1)
     """
     settings = settings or CheckSettings()
     results = [check(ds, application, settings) for ds in datasheets]

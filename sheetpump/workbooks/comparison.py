@@ -18,6 +18,7 @@ Written with :mod:`sheetpump.workbooks.writer`: deterministic, atomic, text from
 
 from __future__ import annotations
 
+import itertools
 import os
 import re
 from collections.abc import Sequence
@@ -34,7 +35,6 @@ from ..files import sha256
 from ..physics import drive, fluid
 from ..units import (
     DISPLACEMENT,
-    DURATION,
     ENERGY,
     FLOW,
     POWER,
@@ -48,15 +48,14 @@ from ..units import (
 )
 from .writer import open_book, write_formula, write_value
 
-__all__ = ["write_comparison", "MAX_DUTY_ROWS"]
+__all__ = ["MAX_DUTY_ROWS", "write_comparison"]
 
 #: A duty longer than this (a measured series) is shown as this many time-weighted bins.
 MAX_DUTY_ROWS = 1000
 
+_CURVE_POINTS = 25  # points of each efficiency and flow curve
 _LABEL_COL = 60  # column of the Curves sheet that holds chart labels
 _BAD_SHEET_CHARS = re.compile(r"[\[\]:*?/\\']")
-# Exact factors from the display units to kW for p·Q (no rounded handbook constants in formulas).
-_HYD_KW = {"metric": 1e5 / 60000 / 1000, "imperial": None}
 
 
 def _unit(units: str, kind: Kind) -> str:
@@ -98,7 +97,7 @@ def _resample(candidate: Candidate) -> tuple[dict[str, np.ndarray], list[str], s
         out[key] = np.add.reduceat(values * t, starts) / total  # time-weighted mean per bin
     out["pressure_max"] = np.maximum.reduceat(duty.pressure, starts)
     begin = np.concatenate([[0.0], np.cumsum(t)])
-    labels = [f"t = {begin[a]:g}–{begin[b]:g} s" for a, b in zip(edges[:-1], edges[1:], strict=True)]
+    labels = [f"t = {begin[a]:g}–{begin[b]:g} s" for a, b in itertools.pairwise(edges)]
     note = (f"{n} samples shown as {MAX_DUTY_ROWS} bins of equal sample count: time-weighted means "
             "(pressure also as the bin's maximum); the checker used every sample.")
     return out, labels, note
@@ -163,24 +162,26 @@ def _duty_sheet(book: Any, name: str, candidate: Candidate, units: str) -> dict[
     total_row = last + 2
     col = lambda c: f"{xl_rowcol_to_cell(first, c)}:{xl_rowcol_to_cell(last, c)}"  # noqa: E731
     d, pin = np.asarray(shown["duration"]), np.asarray(shown["input_power"])
+    loss = pin - np.asarray(shown["pressure"]) * np.asarray(shown["delivered"]) * hyd
+    # key, label, column, formula, value (what the formula gives, computed here)
     totals = [
-        ("cycle time [s]", 1, f"=SUM({col(1)})", float(d.sum())),
-        (f"peak input power [{u[POWER]}]", 11, f"=MAX({col(11)})", float(pin.max())),
-        (f"RMS input power [{u[POWER]}]", 11, f"=SQRT(SUMPRODUCT({col(11)},{col(11)},{col(1)})/SUM({col(1)}))",
+        ("cycle", "cycle time [s]", 1, f"=SUM({col(1)})", float(d.sum())),
+        ("peak_power", f"peak input power [{u[POWER]}]", 11, f"=MAX({col(11)})", float(pin.max())),
+        ("rms_power", f"RMS input power [{u[POWER]}]", 11,
+         f"=SQRT(SUMPRODUCT({col(11)},{col(11)},{col(1)})/SUM({col(1)}))",
          float(np.sqrt(np.sum(pin**2 * d) / d.sum()))),
-        (f"peak torque [{u[TORQUE]}]", 10, f"=MAX({col(10)})", float(np.max(shown["torque"]))),
-        (f"mean power loss [{u[POWER]}]", 13, f"=SUMPRODUCT({col(13)},{col(1)})/SUM({col(1)})", None),
-        ("shaft energy per cycle [kWh]", 15, f"=SUM({col(15)})", None),
+        ("peak_torque", f"peak torque [{u[TORQUE]}]", 10, f"=MAX({col(10)})", float(np.max(shown["torque"]))),
+        ("mean_loss", f"mean power loss [{u[POWER]}]", 13, f"=SUMPRODUCT({col(13)},{col(1)})/SUM({col(1)})",
+         float(np.sum(loss * d) / d.sum())),
+        ("energy", "shaft energy per cycle [kWh]", 15, f"=SUM({col(15)})",
+         float(np.sum(pin * power_si_per_display * d) * kwh_per_j)),
     ]
     refs: dict[str, str] = {}
-    loss = pin - np.asarray(shown["pressure"]) * np.asarray(shown["delivered"]) * hyd
-    totals[4] = (totals[4][0], 13, totals[4][2], float(np.sum(loss * d) / d.sum()))
-    totals[5] = (totals[5][0], 15, totals[5][2], float(np.sum(pin * power_si_per_display * d) * kwh_per_j))
-    for k, (text, c, formula, value) in enumerate(totals):
+    for k, (key, text, c, formula, value) in enumerate(totals):
         r = total_row + k
         sheet.write_string(r, 0, text, f["header"])
         write_formula(sheet, r, c, formula, value)
-        refs[text] = f"'{name}'!{xl_rowcol_to_cell(r, c, row_abs=True, col_abs=True)}"
+        refs[key] = f"'{name}'!{xl_rowcol_to_cell(r, c, row_abs=True, col_abs=True)}"
     sheet.set_column(0, 0, 24)
     sheet.set_column(1, len(headers), 13)
     sheet.freeze_panes(4, 1)
@@ -255,19 +256,16 @@ def _summary(book: Any, comp: Comparison, units: str, duty_refs: list[dict[str, 
             styles.append(found[0].severity if found else None)
         line(f"{rule}: {RULES[rule]}", texts, styles)
     row += 1
-    refs = [r for r in duty_refs]
-    for label in (f"peak input power [{u(POWER)}]", f"RMS input power [{u(POWER)}]",
-                  f"peak torque [{u(TORQUE)}]", f"mean power loss [{u(POWER)}]"):
-        sheet.write_string(row, 0, label.replace("mean power loss", "heat into the oil (mean power loss)"))
-        for c, (cand, ref) in enumerate(zip(cands, refs, strict=True), start=1):
-            key = {"peak input": "peak input power", "RMS input": "RMS input power", "peak torque": "peak torque",
-                   "mean power": "mean power loss"}[" ".join(label.split()[:2])]
-            text = next(k for k in ref if k.startswith(key))
-            value = {"peak input power": cand.result.drive.peak_power, "RMS input power": cand.result.drive.rms_power,
-                     "peak torque": cand.result.drive.peak_torque,
-                     "mean power loss": cand.result.drive.mean_power_loss}[key]
-            kind = TORQUE if key == "peak torque" else POWER
-            write_formula(sheet, row, c, f"={ref[text]}", _show(value, kind, units))
+    # drive figures: live links to each duty sheet's totals, with the checker's values stored
+    for key, label, kind, attr in (
+        ("peak_power", f"peak input power [{u(POWER)}]", POWER, "peak_power"),
+        ("rms_power", f"RMS input power [{u(POWER)}]", POWER, "rms_power"),
+        ("peak_torque", f"peak torque [{u(TORQUE)}]", TORQUE, "peak_torque"),
+        ("mean_loss", f"heat into the oil (mean power loss) [{u(POWER)}]", POWER, "mean_power_loss"),
+    ):
+        sheet.write_string(row, 0, label)
+        for c, (cand, refs) in enumerate(zip(cands, duty_refs, strict=True), start=1):
+            write_formula(sheet, row, c, f"={refs[key]}", _show(getattr(cand.result.drive, attr), kind, units))
         row += 1
     line("motor chosen", [c.motor.label if c.motor else "none" for c in cands],
          [None if c.motor else "fail" for c in cands])
@@ -314,7 +312,7 @@ def _curves_and_charts(book: Any, comp: Comparison, units: str, duty_sheets: lis
     flow = book.add_chart({"type": "scatter", "subtype": "straight"})
     for k, cand in enumerate(comp.candidates):
         ds = cand.datasheet
-        p = np.linspace(0.0, ds.pressure_peak, 25)
+        p = np.linspace(0.0, ds.pressure_peak, _CURVE_POINTS)
         est = performance.estimate(ds, p, np.full_like(p, n_mean), np.full_like(p, nu_mean))
         c0 = 4 * k
         for j, (head, values) in enumerate((
@@ -324,7 +322,7 @@ def _curves_and_charts(book: Any, comp: Comparison, units: str, duty_sheets: lis
             curves.write_string(1, c0 + j, f"{ds.label}: {head}", f["header"])
             for i, v in enumerate(np.asarray(values, float)):
                 write_value(curves, 2 + i, c0 + j, float(v))
-        ref = lambda c: ["Curves", 2, c, 2 + len(p) - 1, c]  # noqa: E731
+        ref = lambda c: ["Curves", 2, c, 1 + _CURVE_POINTS, c]  # noqa: E731
         eff.add_series({"name": text_ref(f"{ds.label} total"), "categories": ref(c0), "values": ref(c0 + 2)})
         eff.add_series({"name": text_ref(f"{ds.label} volumetric"), "categories": ref(c0), "values": ref(c0 + 1),
                         "line": {"dash_type": "dash"}})
@@ -421,6 +419,7 @@ def _assumptions(book: Any, comp: Comparison, inputs: Sequence[str | os.PathLike
     f = book.styles
     sheet = book.add_worksheet("Assumptions")
     app, oil = comp.application, comp.application.oil
+    overload = drive.IEC_OVERLOAD_FACTOR if app.motor_standard == "IEC" else drive.NEMA_OVERLOAD_FACTOR
     rows: list[tuple[str, Any]] = [
         ("application", app.name),
         ("relief-valve setting [bar]", float(from_si(app.relief_setting, PRESSURE, "bar"))),
@@ -442,8 +441,8 @@ def _assumptions(book: Any, comp: Comparison, inputs: Sequence[str | os.PathLike
         ("viscosity against temperature", "Walther relation, ASTM D341"),
         ("motor standard", app.motor_standard),
         ("motor sizing rule", "smallest standard rating >= RMS input power and rating x overload factor >= peak"),
-        ("overload factor", f"{drive.IEC_OVERLOAD_FACTOR if app.motor_standard == 'IEC' else drive.NEMA_OVERLOAD_FACTOR:g}"
-         " x rating for short peaks: IEC 60034-1 occasional excess torque (60 % for 15 s), from memory"),
+        ("overload factor", f"{overload:g} x rating for short peaks: IEC 60034-1 occasional excess torque "
+         "(60 % for 15 s), from memory"),
         ("motor series", "IEC 60072-1 rated outputs (kW)" if app.motor_standard == "IEC"
          else "NEMA MG 1 horsepower ratings"),
         ("motor efficiency table", "IEC 60034-30-1 IE3, 4-pole 50 Hz (full load)" if app.motor_standard == "IEC"

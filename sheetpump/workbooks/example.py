@@ -18,11 +18,11 @@ from typing import Any
 from xlsxwriter.utility import xl_rowcol_to_cell
 
 from .. import SAFETY_CAUTION
-from ..catalogue import CATALOGUE
 from ..calc import Calculation
+from ..catalogue import CATALOGUE
 from .writer import open_book, write_formula, write_value
 
-__all__ = ["write_worked_example", "EXAMPLE_SHEET", "RANGES_SHEET"]
+__all__ = ["EXAMPLE_SHEET", "RANGES_SHEET", "write_worked_example"]
 
 EXAMPLE_SHEET = "Example"
 RANGES_SHEET = "Ranges"

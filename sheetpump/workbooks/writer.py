@@ -28,7 +28,7 @@ from xlsxwriter.worksheet import Worksheet
 
 from ..files import atomic_path
 
-__all__ = ["open_book", "write_value", "write_formula", "creation_time", "STYLES"]
+__all__ = ["STYLES", "creation_time", "open_book", "write_formula", "write_value"]
 
 #: Our own colours: input cells, headers, and the three verdicts.
 STYLES: dict[str, dict[str, Any]] = {
@@ -48,7 +48,7 @@ def creation_time() -> _dt.datetime:
     """The timestamp written into outputs: ``SOURCE_DATE_EPOCH`` if set, else 2000-01-01 UTC."""
     epoch = os.environ.get("SOURCE_DATE_EPOCH")
     if epoch and epoch.strip().isdigit():
-        return _dt.datetime.fromtimestamp(int(epoch), tz=_dt.timezone.utc).replace(tzinfo=None)
+        return _dt.datetime.fromtimestamp(int(epoch), tz=_dt.UTC).replace(tzinfo=None)
     return _dt.datetime(2000, 1, 1)
 
 
