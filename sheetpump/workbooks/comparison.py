@@ -53,6 +53,9 @@ __all__ = ["MAX_DUTY_ROWS", "write_comparison"]
 #: A duty longer than this (a measured series) is shown as this many time-weighted bins.
 MAX_DUTY_ROWS = 1000
 
+# number format of each duty-sheet column (1: duration ... 11: input power)
+_DUTY_FORMATS = {1: "n1", 2: "n1", 3: "n0", 4: "n1", 5: "n1", 6: "n2", 7: "n2", 8: "pct", 9: "pct", 10: "n1",
+                 11: "n2"}
 _CURVE_POINTS = 25  # points of each efficiency and flow curve
 _LABEL_COL = 60  # column of the Curves sheet that holds chart labels
 _BAD_SHEET_CHARS = re.compile(r"[\[\]:*?/\\']")
@@ -143,19 +146,19 @@ def _duty_sheet(book: Any, name: str, candidate: Candidate, units: str) -> dict[
         write_value(sheet, r, 0, label)
         for c, key in enumerate(("duration", "pressure", "speed", "temperature", "viscosity", "required",
                                  "delivered", "vol_eff", "total_eff", "torque", "input_power"), start=1):
-            write_value(sheet, r, c, float(shown[key][i]))
+            write_value(sheet, r, c, float(shown[key][i]), f[_DUTY_FORMATS[c]])
         p, q, qr, pin, t = (xl_rowcol_to_cell(r, c) for c in (2, 7, 6, 11, 1))
         hyd_v = float(shown["pressure"][i] * shown["delivered"][i] * hyd)
-        write_formula(sheet, r, 12, f"={p}*{q}*{hyd!r}", hyd_v)
+        write_formula(sheet, r, 12, f"={p}*{q}*{hyd!r}", hyd_v, f["n2"])
         h = xl_rowcol_to_cell(r, 12)
-        write_formula(sheet, r, 13, f"={pin}-{h}", float(shown["input_power"][i]) - hyd_v)
+        write_formula(sheet, r, 13, f"={pin}-{h}", float(shown["input_power"][i]) - hyd_v, f["n2"])
         req = float(shown["required"][i])
         if req > 0:
-            write_formula(sheet, r, 14, f"={q}/{qr}-1", float(shown["delivered"][i]) / req - 1.0)
+            write_formula(sheet, r, 14, f"={q}/{qr}-1", float(shown["delivered"][i]) / req - 1.0, f["pct"])
         else:
             write_value(sheet, r, 14, "no flow required")
         energy = float(shown["input_power"][i]) * power_si_per_display * float(shown["duration"][i]) * kwh_per_j
-        write_formula(sheet, r, 15, f"={pin}*{t}*{power_si_per_display * kwh_per_j!r}", energy)
+        write_formula(sheet, r, 15, f"={pin}*{t}*{power_si_per_display * kwh_per_j!r}", energy, f["n3"])
         if "pressure_max" in cols:
             write_value(sheet, r, 16, float(from_si(cols["pressure_max"][i], PRESSURE, u[PRESSURE])))
     last = first + len(labels) - 1
@@ -180,7 +183,7 @@ def _duty_sheet(book: Any, name: str, candidate: Candidate, units: str) -> dict[
     for k, (key, text, c, formula, value) in enumerate(totals):
         r = total_row + k
         sheet.write_string(r, 0, text, f["header"])
-        write_formula(sheet, r, c, formula, value)
+        write_formula(sheet, r, c, formula, value, f["n2"])
         refs[key] = f"'{name}'!{xl_rowcol_to_cell(r, c, row_abs=True, col_abs=True)}"
     sheet.set_column(0, 0, 24)
     sheet.set_column(1, len(headers), 13)
@@ -204,27 +207,28 @@ def _summary(book: Any, comp: Comparison, units: str, duty_refs: list[dict[str, 
     sheet = book.add_worksheet("Summary")
     app = comp.application
     sheet.write_string(0, 0, f"Pump comparison: {app.name}", f["title"])
-    sheet.write_string(1, 0, SAFETY_CAUTION, f["caution"])
+    width = max(2, len(comp.candidates))
+    sheet.merge_range(1, 0, 1, width, SAFETY_CAUTION, f["caution"])
     sheet.set_row(1, 48)
-    sheet.write_string(2, 0, "legend:", f["header"])
-    for c, (style, text) in enumerate((("pass", "pass: inside the rating with the margin asked"),
+    for r, (style, text) in enumerate((("pass", "pass: inside the rating, with the margin asked"),
                                        ("warn", "warn: allowed, but look (short-term limit, extrapolation)"),
                                        ("fail", "fail: outside a rating"),
-                                       ("info", "info: figure without a verdict")), start=1):
-        sheet.write_string(2, c, text, f[style])
+                                       ("info", "info: a figure without a verdict")), start=2):
+        sheet.write_string(r, 0, "legend" if r == 2 else "")
+        sheet.write_string(r, 1, text, f[style])
     cands = comp.candidates
-    row = 4
+    row = 7
     sheet.write_string(row, 0, "candidate", f["header"])
     for c, cand in enumerate(cands, start=1):
         sheet.write_string(row, c, cand.datasheet.label, f["header"])
     row += 1
 
-    def line(label: str, values: Sequence[Any], styles: Sequence[str | None] | None = None) -> None:
+    def line(label: str, values: Sequence[Any], styles: Sequence[str | None] | str | None = None) -> None:
         nonlocal row
         sheet.write_string(row, 0, label)
         for c, value in enumerate(values, start=1):
-            style = f[styles[c - 1]] if styles and styles[c - 1] else None
-            write_value(sheet, row, c, value, style)
+            style = styles if isinstance(styles, str) else (styles[c - 1] if styles else None)
+            write_value(sheet, row, c, value, f[style] if style else None)
         row += 1
 
     u = lambda kind: _unit(units, kind)  # noqa: E731
@@ -234,15 +238,15 @@ def _summary(book: Any, comp: Comparison, units: str, duty_refs: list[dict[str, 
     line("datasheet file", [Path(d.file).name if d.file else "" for d in ds])
     line(f"displacement [{_unit(units, DISPLACEMENT) if units == 'metric' else 'in^3/rev'}]",
          [float(from_si(d.displacement, DISPLACEMENT, "cm^3/rev" if units == "metric" else "in^3/rev"))
-          for d in ds])
+          for d in ds], "n2")
     line(f"speed range [{u(SPEED)}]", [f"{_show(d.speed_min, SPEED, units):g} – {_show(d.speed_max, SPEED, units):g}"
                                          for d in ds])
-    line(f"continuous pressure [{u(PRESSURE)}]", [_show(d.pressure_continuous, PRESSURE, units) for d in ds])
-    line(f"intermittent pressure [{u(PRESSURE)}]", [_show(d.pressure_intermittent, PRESSURE, units) for d in ds])
-    line(f"peak pressure [{u(PRESSURE)}]", [_show(d.pressure_peak, PRESSURE, units) for d in ds])
-    line("price", [d.price for d in ds])
-    line("mass [kg]", [d.mass for d in ds])
-    line("noise [dB(A)]", [d.noise for d in ds])
+    line(f"continuous pressure [{u(PRESSURE)}]", [_show(d.pressure_continuous, PRESSURE, units) for d in ds], "n0")
+    line(f"intermittent pressure [{u(PRESSURE)}]", [_show(d.pressure_intermittent, PRESSURE, units) for d in ds], "n0")
+    line(f"peak pressure [{u(PRESSURE)}]", [_show(d.pressure_peak, PRESSURE, units) for d in ds], "n0")
+    line(f"price [{app.currency}]", [d.price for d in ds], "n0")
+    line("mass [kg]", [d.mass for d in ds], "n1")
+    line("noise [dB(A)]", [d.noise for d in ds], "n0")
     row += 1
     line("verdict", [c.result.verdict for c in cands], [c.result.verdict for c in cands])
     line("worst margin", [_fmt_margin(c.result.worst_margin) for c in cands])
@@ -265,21 +269,22 @@ def _summary(book: Any, comp: Comparison, units: str, duty_refs: list[dict[str, 
     ):
         sheet.write_string(row, 0, label)
         for c, (cand, refs) in enumerate(zip(cands, duty_refs, strict=True), start=1):
-            write_formula(sheet, row, c, f"={refs[key]}", _show(getattr(cand.result.drive, attr), kind, units))
+            write_formula(sheet, row, c, f"={refs[key]}", _show(getattr(cand.result.drive, attr), kind, units),
+                          f["n2"])
         row += 1
     line("motor chosen", [c.motor.label if c.motor else "none" for c in cands],
          [None if c.motor else "fail" for c in cands])
     line("motor sizing", [c.motor_note for c in cands])
-    line("motor full-load efficiency", [c.motor.efficiency if c.motor else None for c in cands])
-    line("electrical energy per cycle [kWh]", [c.electrical_energy_per_cycle / 3.6e6 for c in cands])
-    line("electrical energy per year [kWh]", [c.electrical_energy_per_year / 3.6e6 for c in cands])
-    line(f"energy cost per year [{app.currency}]", [c.energy_cost_per_year for c in cands])
-    line(f"cost over {app.evaluation_years:g} years [{app.currency}]", [c.cost_over_period for c in cands])
+    line("motor full-load efficiency", [c.motor.efficiency if c.motor else None for c in cands], "pct")
+    line("electrical energy per cycle [kWh]", [c.electrical_energy_per_cycle / 3.6e6 for c in cands], "n3")
+    line("electrical energy per year [kWh]", [c.electrical_energy_per_year / 3.6e6 for c in cands], "n0")
+    line(f"energy cost per year [{app.currency}]", [c.energy_cost_per_year for c in cands], "n0")
+    line(f"cost over {app.evaluation_years:g} years [{app.currency}]", [c.cost_over_period for c in cands], "n0")
     line("rank (passing candidates, by cost over the period)", [c.rank if c.rank else "not ranked" for c in cands])
     line("notes", ["; ".join(c.notes) for c in cands])
-    sheet.set_column(0, 0, 52)
-    sheet.set_column(1, len(cands), 24)
-    sheet.freeze_panes(5, 1)
+    sheet.set_column(0, 0, 75)
+    sheet.set_column(1, max(len(cands), 2), 30)
+    sheet.freeze_panes(8, 1)
 
 
 def _curves_and_charts(book: Any, comp: Comparison, units: str, duty_sheets: list[Any]) -> None:

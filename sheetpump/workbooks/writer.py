@@ -41,6 +41,12 @@ STYLES: dict[str, dict[str, Any]] = {
     "info": {"bg_color": "#E4ECF7", "font_color": "#22406B"},
     "note": {"italic": True, "font_color": "#555555", "text_wrap": True, "valign": "top"},
     "caution": {"bold": True, "font_color": "#7A1B12", "text_wrap": True, "valign": "top"},
+    # number formats
+    "n0": {"num_format": "#,##0"},
+    "n1": {"num_format": "#,##0.0"},
+    "n2": {"num_format": "#,##0.00"},
+    "n3": {"num_format": "0.000"},
+    "pct": {"num_format": "0.0%"},
 }
 
 
