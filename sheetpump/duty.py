@@ -35,6 +35,7 @@ class Duty:
     wraps: bool = True
     source: str = "segments"  # "segments" or "series"
     rows: tuple[Where, ...] = ()  # where each segment was read (one per element, segments only)
+    columns: dict[str, str] = field(default_factory=dict)  # signal -> column letter it was read from
     where: Where = field(default_factory=Where)
 
     def __len__(self) -> int:
@@ -88,6 +89,7 @@ class Application:
     flow_margin: float = 0.0  # required surplus of delivered over required flow [-]
     pressure_margin: float = 0.0  # required headroom below each pressure rating [-]
     speed_margin: float = 0.0  # required headroom inside the speed range [-]
+    cold_start_temperature: float | None = None  # lowest oil temperature at a start [K]
     evaluation_years: float = 10.0  # period for the cost over life
     file: str = ""
     sources: dict[str, Where] = field(default_factory=dict)

@@ -1,0 +1,703 @@
+"""Readers of the workbooks a user fills in: a pump datasheet and an application.
+
+:func:`read_datasheet` turns a datasheet workbook (sheets "Pump" and, optionally, "Performance") into a
+:class:`~sheetpump.datasheet.Datasheet`; :func:`read_application` turns an application workbook (sheets
+"Machine" and "Duty", or a measured series named on the Machine sheet) into an
+:class:`~sheetpump.duty.Application`. Both are SI throughout, and both remember for every value the file,
+sheet and cell it came from (``sources``; ``Duty.rows`` for segments).
+
+A value cell holds a bare number in the unit of its unit cell (empty unit cell: the kind's default
+unit), or a text with its own unit (``"3000 psi"``; a different unit in the unit cell is then an error).
+A formula's cached value is read; a formula without one (a file written by a script) is evaluated by
+:mod:`sheetpump.recalc` when available, and refused otherwise: it is never read as empty.
+
+Fields are found by the words in the ``field`` column (rows may be moved or sorted), falling back to the
+template's defined names (``pump.<field>``, ``machine.<field>``) for a field whose row lost its word.
+"""
+
+from __future__ import annotations
+
+import datetime as _dt
+import difflib
+import math
+import os
+import re
+from collections.abc import Callable, Sequence
+from pathlib import Path
+from typing import Any
+
+import numpy as np
+
+from ..datasheet import Datasheet, PerformanceTable
+from ..duty import Application, Duty, Oil
+from ..errors import InputError, Where
+from ..units import Kind, unit_factor
+from .safe import open_workbook
+from .series import column_letter, match_columns, parse_header, read_series
+from .templates import (
+    APPLICATION_FIELDS,
+    CHOICE,
+    COUNT,
+    DATASHEET_FIELDS,
+    DUTY_COLUMNS,
+    DUTY_SHEET,
+    FIELD_HEADER,
+    FRACTION,
+    INTEGER,
+    MACHINE_SHEET,
+    NAME_PREFIX,
+    PERFORMANCE_COLUMNS,
+    PERFORMANCE_SHEET,
+    PUMP_SHEET,
+    TEXT,
+    Column,
+    Field,
+)
+
+__all__ = ["read_application", "read_datasheet"]
+
+_MAX_HEADER_SCAN = 60  # rows searched for a header row
+_MAX_ROWS = 20_000  # rows read below a header: a field sheet or a table of segments is far smaller
+_EXCEL_ERRORS = ("#NULL!", "#DIV/0!", "#VALUE!", "#REF!", "#NAME?", "#NUM!", "#N/A", "#GETTING_DATA",
+                 "#SPILL!", "#CALC!")
+_NUMBER = re.compile(r"^\s*([+-]?(?:\d+\.?\d*|\.\d+)(?:[eE][+-]?\d+)?)\s*(.*?)\s*$")
+_ISO4406 = re.compile(r"^(?:(\d{1,2}|-)\s*/\s*)?(\d{1,2})\s*/\s*(\d{1,2})$")
+_ROTATION_WORDS = {
+    "clockwise": "clockwise", "cw": "clockwise", "right": "clockwise", "right-hand": "clockwise",
+    "counter-clockwise": "counter-clockwise", "counterclockwise": "counter-clockwise",
+    "anticlockwise": "counter-clockwise", "anti-clockwise": "counter-clockwise", "ccw": "counter-clockwise",
+    "left": "counter-clockwise", "left-hand": "counter-clockwise",
+    "either": "either", "both": "either", "reversible": "either", "bidirectional": "either",
+}
+
+
+def _is_error_text(value: Any) -> bool:
+    # Excel's error values, and the "#SP! ..." text a sheetpump cell function shows for bad input.
+    return isinstance(value, str) and (value.strip() in _EXCEL_ERRORS or value.startswith("#SP!"))
+
+
+class _Book:
+    """A workbook opened twice (cached values and formulas), with the cell rules of every reader."""
+
+    def __init__(self, path: str | os.PathLike[str]) -> None:
+        self.path = Path(path)
+        self.file = str(path)
+        self.values = open_workbook(self.path, data_only=True, max_uncompressed=64 * 1024**2)
+        self.formulas = open_workbook(self.path, data_only=False, max_uncompressed=64 * 1024**2)
+        self._evaluated: dict[tuple[str, str], Any] | None = None
+        self._merged: dict[str, list[Any]] = {}
+
+    def sheet(self, name: str, *, required: bool = True) -> Any:
+        names = self.values.sheetnames
+        match = [n for n in names if n == name] or [n for n in names if n.strip().lower() == name.lower()]
+        if not match:
+            if required:
+                raise InputError(f"no sheet {name!r}", Where(self.file),
+                                 f"sheets found: {', '.join(names)}; start from `sheetpump template`")
+            return None
+        return self.values[match[0]]
+
+    def where(self, sheet: Any, coord: str, field: str | None = None) -> Where:
+        return Where(self.file, sheet.title, coord, field)
+
+    def merged(self, sheet: Any, coord: str) -> bool:
+        ranges = self._merged.get(sheet.title)
+        if ranges is None:
+            ranges = self._merged[sheet.title] = list(sheet.merged_cells.ranges)
+        return any(coord in r for r in ranges)
+
+    def value(self, sheet: Any, coord: str, field: str | None = None, *, value_cell: bool = True) -> Any:
+        """The value of a cell: cached value of a formula, evaluated where missing, never a silent blank."""
+        if value_cell and self.merged(sheet, coord):
+            raise InputError("the value cell is part of merged cells", self.where(sheet, coord, field),
+                             "unmerge the cells (Home > Merge > Unmerge) and enter the value in one cell")
+        cell = sheet[coord]
+        value = cell.value
+        if cell.data_type == "e" or _is_error_text(value):
+            raise InputError(f"the cell shows the error {value}", self.where(sheet, coord, field),
+                             "fix the formula or enter the value")
+        if value is None:
+            raw = self.formulas[sheet.title][coord]
+            if raw.data_type == "f" or (isinstance(raw.value, str) and raw.value.startswith("=")):
+                value = self._evaluate(sheet, coord, field, raw.value)
+        if isinstance(value, str):
+            value = value.strip()
+            if not value:
+                return None
+        return value
+
+    def _evaluate(self, sheet: Any, coord: str, field: str | None, formula: Any) -> Any:
+        if self._evaluated is None:
+            try:
+                from ..recalc import evaluate_workbook  # type: ignore[attr-defined]
+            except Exception:  # not installed, or not importable: no evaluation
+                evaluate_workbook = None
+            if evaluate_workbook is None:
+                self._evaluated = {}
+            else:
+                try:
+                    self._evaluated = dict(evaluate_workbook(self.path))
+                except InputError:
+                    raise
+                except Exception as exc:  # the evaluator failing is reported as the formula's problem
+                    raise InputError(f"the formula {formula} has no stored value and could not be "
+                                     f"evaluated ({exc})", self.where(sheet, coord, field),
+                                     "open and save the workbook in a spreadsheet program") from None
+        for key in ((sheet.title, coord), (sheet.title, coord.replace("$", ""))):
+            if key in self._evaluated:
+                value = self._evaluated[key]
+                if type(value).__name__ == "CellError" or _is_error_text(value):
+                    raise InputError(f"the formula gives {value}", self.where(sheet, coord, field),
+                                     "fix the formula or enter the value")
+                if value is None:
+                    break
+                return value
+        raise InputError(f"the formula {formula} has no stored value (the file was written without "
+                         "calculating it)", self.where(sheet, coord, field),
+                         "open and save the workbook in a spreadsheet program, or enter the value")
+
+    def defined(self, name: str) -> tuple[str, str] | None:
+        """``(sheet, cell)`` a workbook-level defined name points to, if it is one cell."""
+        names = self.values.defined_names
+        entry = names.get(name) if hasattr(names, "get") else None
+        if entry is None:
+            return None
+        try:
+            destinations = list(entry.destinations)
+        except (AttributeError, TypeError, ValueError):
+            return None
+        if len(destinations) != 1:
+            return None
+        title, coord = destinations[0]
+        coord = coord.replace("$", "")
+        if ":" in coord:
+            return None
+        return title, coord
+
+
+def _header_row(book: _Book, sheet: Any, test: Callable[[list[Any]], bool], what: str) -> tuple[int, list[Any]]:
+    limit = min(sheet.max_row, _MAX_HEADER_SCAN)
+    width = min(sheet.max_column, 64)
+    for r, row in enumerate(sheet.iter_rows(min_row=1, max_row=limit, max_col=width, values_only=True), 1):
+        if test(list(row)):
+            return r, list(row)
+    raise InputError(f"no header row {what} found", Where(book.file, sheet.title),
+                     "keep the template's header row")
+
+
+# --- field sheets -----------------------------------------------------------------------------------
+
+
+class _Fields:
+    """The located rows of a field sheet: ``key -> (value cell, unit cell)``."""
+
+    def __init__(self, book: _Book, sheet_name: str, fields: Sequence[Field]) -> None:
+        self.book = book
+        self.sheet = sheet = book.sheet(sheet_name)
+        self.fields = {f.key: f for f in fields}
+        words = [str(w) for w in FIELD_HEADER[:3]]
+
+        def is_header(row: list[Any]) -> bool:
+            cells = [str(c).strip().lower() if c is not None else "" for c in row]
+            return all(w in cells for w in words)
+
+        header, cells = _header_row(book, sheet, is_header, "'field | value | unit'")
+        lower = [str(c).strip().lower() if c is not None else "" for c in cells]
+        key_col, value_col, unit_col = (lower.index(w) + 1 for w in words)
+        self.cells: dict[str, tuple[str, str]] = {}
+        seen: dict[str, str] = {}
+        last = min(sheet.max_row, header + _MAX_ROWS)
+        for r, row in enumerate(sheet.iter_rows(min_row=header + 1, max_row=last,
+                                                max_col=max(key_col, value_col, unit_col), values_only=True),
+                                header + 1):
+            key_text = row[key_col - 1]
+            if key_text is None or not str(key_text).strip():
+                continue
+            key = str(key_text).strip().lower().replace(" ", "_")
+            key_coord = f"{column_letter(key_col - 1)}{r}"
+            value_coord = f"{column_letter(value_col - 1)}{r}"
+            unit_coord = f"{column_letter(unit_col - 1)}{r}"
+            if key not in self.fields:
+                if row[value_col - 1] not in (None, "") and str(row[value_col - 1]).strip():
+                    close = difflib.get_close_matches(key, list(self.fields), n=1)
+                    raise InputError(f"unknown field {str(key_text).strip()!r}",
+                                     book.where(sheet, key_coord),
+                                     f"did you mean {close[0]!r}?" if close else "see the template's fields")
+                continue  # a section title or a note
+            if key in seen:
+                raise InputError(f"field {key!r} appears twice (also in {seen[key]})",
+                                 book.where(sheet, key_coord, key), "keep one row per field")
+            seen[key] = key_coord
+            self.cells[key] = (value_coord, unit_coord)
+        self.unit_col = unit_col
+        prefix = NAME_PREFIX[sheet_name]
+        for key in self.fields:
+            if key in self.cells:
+                continue
+            target = book.defined(f"{prefix}.{key}")
+            if target and target[0] == sheet.title:
+                row_number = int(re.sub(r"^[A-Z]+", "", target[1]))
+                self.cells[key] = (target[1], f"{column_letter(unit_col - 1)}{row_number}")
+
+    def where(self, key: str) -> Where:
+        if key in self.cells:
+            return self.book.where(self.sheet, self.cells[key][0], key)
+        return Where(self.book.file, self.sheet.title, None, key)
+
+    def raw(self, key: str) -> tuple[Any, Any]:
+        if key not in self.cells:
+            return None, None
+        value_coord, unit_coord = self.cells[key]
+        value = self.book.value(self.sheet, value_coord, key)
+        unit = self.book.value(self.sheet, unit_coord, key, value_cell=False) if value is not None else None
+        return value, unit
+
+    def get(self, key: str) -> Any:
+        """The field's value: SI float, text, int, or ``None`` when empty."""
+        field = self.fields[key]
+        value, unit = self.raw(key)
+        where = self.where(key)
+        if value is None:
+            if field.required:
+                raise InputError("required value is missing", where,
+                                 f"enter the {field.help.rstrip('.').lower()}")
+            return None
+        unit_where = Where(where.file, where.sheet, self.cells[key][1], key)
+        return convert(field, value, unit, where, unit_where)
+
+    def sources(self, got: dict[str, Any]) -> dict[str, Where]:
+        return {self.fields[k].name: self.where(k) for k, v in got.items() if v is not None}
+
+
+def _text(value: Any) -> str:
+    if isinstance(value, float) and value.is_integer():
+        return str(int(value))
+    return str(value).strip()
+
+
+def _unit_text(unit: Any) -> str:
+    return "" if unit is None else _text(unit)
+
+
+def convert(field: Field, value: Any, unit: Any, where: Where, unit_where: Where | None = None) -> Any:
+    """One field's cell value (and unit cell) as SI (or text / whole number), checked.
+
+    >>> from sheetpump.workbooks.templates import DATASHEET_FIELDS
+    >>> displacement = next(f for f in DATASHEET_FIELDS if f.key == "displacement")
+    >>> convert(displacement, 1.2, "in^3/rev", Where())   # 1.2 in³ = 19.66 cm³ (exact inch)
+    1.9664...e-05
+    """
+    unit_where = unit_where or where
+    kind = field.kind
+    if isinstance(value, bool):
+        raise InputError(f"{value!r} is a true/false value, not a {_kind_name(field)}", where)
+    if isinstance(value, (_dt.datetime, _dt.date, _dt.time, _dt.timedelta)):
+        hint = "format the cell as text and enter the code again" if field.key == "cleanliness" else \
+            "format the cell as a number"
+        raise InputError(f"the cell holds a date or time, not a {_kind_name(field)}", where, hint)
+    if kind == TEXT:
+        text = _text(value)
+        if field.key == "cleanliness":
+            match = _ISO4406.match(text)
+            if not match:
+                raise InputError(f"{text!r} is not an ISO 4406 code", where, "write e.g. '18/16/13'")
+            text = "/".join(g for g in match.groups() if g is not None)
+        return text
+    if kind == CHOICE:
+        text = _text(value)
+        if field.key == "rotation":
+            chosen = _ROTATION_WORDS.get(text.lower())
+        else:
+            chosen = next((c for c in field.choices if c.lower() == text.lower()), None)
+        if chosen is None:
+            raise InputError(f"{text!r} is not one of {', '.join(field.choices)}", where, "use the drop-down")
+        return chosen
+    number, unit_text = _split(value, unit, field, where, unit_where)
+    if kind == INTEGER:
+        if not float(number).is_integer() or number < 1:
+            raise InputError(f"{number:g} is not a whole number of at least 1", where)
+        return int(number)
+    if kind == COUNT:
+        if unit_text and field.label not in ("currency",) and unit_text.lower() != field.label.lower():
+            raise InputError(f"unit {unit_text!r} where {field.label!r} belongs", unit_where,
+                             f"give the value in {field.label}")
+        si = number
+    elif kind == FRACTION:
+        if unit_text.lower() in ("", "fraction", "1", "-"):
+            si = number
+        elif unit_text in ("%", "percent"):
+            si = number / 100.0
+        else:
+            raise InputError(f"unit {unit_text!r} is not '%' or 'fraction'", unit_where)
+    else:
+        assert isinstance(kind, Kind)
+        try:
+            factor, offset = unit_factor(unit_text, kind)
+        except InputError as exc:
+            raise exc.at(**vars(unit_where)) from None
+        si = number * factor + offset
+    return _checked(field, si, where)
+
+
+def _kind_name(field: Field) -> str:
+    return field.kind.name if isinstance(field.kind, Kind) else "number"
+
+
+def _split(value: Any, unit: Any, field: Field, where: Where, unit_where: Where) -> tuple[float, str]:
+    """A number and its unit from a value cell and a unit cell; a unit in the value text must agree."""
+    column_unit = _unit_text(unit)
+    if isinstance(value, (int, float)):
+        number = float(value)
+        text_unit = ""
+    else:
+        text = str(value).strip()
+        if "," in text:
+            raise InputError(f"{text!r} is ambiguous", where,
+                             "write numbers without thousands separators and with a point for decimals")
+        match = _NUMBER.match(text)
+        if not match:
+            raise InputError(f"{text!r} is text where a {_kind_name(field)} belongs", where,
+                             f"enter a number{' (unit in the unit column)' if field.units else ''}")
+        number, text_unit = float(match.group(1)), match.group(2)
+    if not math.isfinite(number):
+        raise InputError(f"{number!r} is not a finite number", where)
+    if text_unit:
+        if column_unit and not _same_unit(text_unit, column_unit, field):
+            raise InputError(f"the value says {text_unit!r} but the unit cell says {column_unit!r}", where,
+                             "write the unit in one place only")
+        return number, text_unit
+    return number, column_unit
+
+
+def _same_unit(a: str, b: str, field: Field) -> bool:
+    if a == b:
+        return True
+    if isinstance(field.kind, Kind):
+        try:
+            return unit_factor(a, field.kind) == unit_factor(b, field.kind)
+        except InputError:
+            return False
+    return a.lower() == b.lower()
+
+
+def _checked(field: Field, si: float, where: Where) -> float:
+    if not math.isfinite(si):
+        raise InputError("not a finite number", where)
+    if field.kind is not None and isinstance(field.kind, Kind) and field.kind.offset and si <= 0:
+        raise InputError("temperature at or below absolute zero", where)
+    if field.check == "positive" and not si > 0:
+        raise InputError(f"must be greater than zero, not {si:g}", where)
+    if field.check == "non_negative" and si < 0:
+        raise InputError(f"must not be negative, not {si:g}", where)
+    if field.kind == FRACTION and si > 1:
+        raise InputError(f"{si:.0%} is more than 100 %", where,
+                         "write e.g. 10 with unit '%', or 0.1 with unit 'fraction'")
+    if field.check == "share" and not 0 < si <= 1:
+        raise InputError("must be a share above 0 and at most 100 %", where,
+                         "write e.g. 10 with unit '%', or 0.1 with unit 'fraction'")
+    return si
+
+
+# --- tables ------------------------------------------------------------------------------------------
+
+
+def _read_table(book: _Book, sheet: Any, columns: Sequence[Column]) -> tuple[
+        list[tuple[int, dict[str, Any]]], dict[str, str], int]:
+    """Rows of a table sheet: ``[(row number, {key: SI value or None})]``, column letters, header row."""
+    words = {w for c in columns if c.required for w in c.words}
+
+    def is_header(row: list[Any]) -> bool:
+        return any(parse_header(c)[0] in words for c in row if c is not None)
+
+    header, cells = _header_row(book, sheet, is_header, "naming the columns")
+    while cells and (cells[-1] is None or not str(cells[-1]).strip()):
+        cells.pop()
+    found = match_columns(cells, columns, file=book.file, sheet=sheet.title, header_row=header, strict=True)
+    letters = {key: column_letter(i) for key, (i, _, _) in found.items()}
+    by_key = {c.key: c for c in columns}
+    out: list[tuple[int, dict[str, Any]]] = []
+    last = min(sheet.max_row, header + _MAX_ROWS)
+    for r in range(header + 1, last + 1):
+        row: dict[str, Any] = {}
+        for key, (_i, factor, offset) in found.items():
+            coord = f"{letters[key]}{r}"
+            value = book.value(sheet, coord, key)
+            if value is None:
+                row[key] = None
+                continue
+            column = by_key[key]
+            where = book.where(sheet, coord, key)
+            if column.kind is None:
+                row[key] = _text(value)
+                continue
+            field = Field(key, column.kind, column.help, check="")
+            number, unit_text = _split(value, None, field, where, where)
+            if unit_text:
+                try:
+                    f2, o2 = unit_factor(unit_text, column.kind)
+                except InputError as exc:
+                    raise exc.at(**vars(where)) from None
+                row[key] = number * f2 + o2
+            else:
+                row[key] = number * factor + offset
+            if not math.isfinite(row[key]):
+                raise InputError("not a finite number", where)
+        if any(v is not None for v in row.values()):
+            out.append((r, row))
+    return out, letters, header
+
+
+def _span(letters: dict[str, str]) -> tuple[str, str]:
+    order = sorted(letters.values(), key=lambda s: (len(s), s))
+    return order[0], order[-1]
+
+
+def _column(rows: list[tuple[int, dict[str, Any]]], key: str, default: float | None, book: _Book, sheet: Any,
+            letters: dict[str, str], hint: str, rule: str = "non_negative") -> np.ndarray:
+    values = np.empty(len(rows))
+    for i, (r, row) in enumerate(rows):
+        value = row.get(key)
+        coord = f"{letters.get(key, 'A')}{r}"
+        if value is None:
+            if default is None:
+                raise InputError("missing value", Where(book.file, sheet.title, coord if key in letters else
+                                                        f"row {r}", key), hint)
+            value = default
+        elif rule == "positive" and not value > 0:
+            raise InputError(f"must be greater than zero, not {value:g}", book.where(sheet, coord, key))
+        elif rule == "non_negative" and value < 0:
+            raise InputError(f"must not be negative, not {value:g}", book.where(sheet, coord, key))
+        values[i] = value
+    return values
+
+
+# --- datasheet ---------------------------------------------------------------------------------------
+
+
+def read_datasheet(path: str | os.PathLike[str]) -> Datasheet:
+    """Read a datasheet workbook into a :class:`~sheetpump.datasheet.Datasheet` (SI units).
+
+    Checks beyond each value: an intermittent pressure needs its longest stretch and its share of the
+    cycle (and those need the pressure); continuous ≤ peak; continuous < intermittent ≤ peak; minimum
+    speed < maximum speed, the rated speed between them; the higher minimum speed needs its pressure and
+    lies between minimum and maximum speed; each lower limit below its upper limit.
+
+    Raises
+    ------
+    InputError
+        Naming the file, sheet, cell and field.
+    """
+    book = _Book(path)
+    fields = _Fields(book, PUMP_SHEET, DATASHEET_FIELDS)
+    got = {key: fields.get(key) for key in fields.fields}
+    w = fields.where
+
+    def need(a: str, b: str, text: str) -> None:
+        if got[a] is not None and got[b] is None:
+            raise InputError(text, w(b))
+
+    def order(low: str, high: str, text: str, strict: bool = True) -> None:
+        lo, hi = got[low], got[high]
+        if lo is not None and hi is not None and (lo >= hi if strict else lo > hi):
+            raise InputError(text, w(high))
+
+    need("pressure_intermittent", "intermittent_max_duration",
+         "an intermittent pressure needs the longest single stretch allowed at it")
+    need("pressure_intermittent", "intermittent_max_share",
+         "an intermittent pressure needs the largest share of the cycle allowed at it")
+    for limit in ("intermittent_max_duration", "intermittent_max_share"):
+        need(limit, "pressure_intermittent", f"{limit} is given without an intermittent pressure")
+    order("pressure_continuous", "pressure_peak", "the peak pressure is below the continuous pressure",
+          strict=False)
+    pi = got["pressure_intermittent"]
+    if pi is not None and not got["pressure_continuous"] < pi <= got["pressure_peak"]:
+        raise InputError("the intermittent pressure must lie above the continuous and at most at the peak "
+                         "pressure", w("pressure_intermittent"))
+    order("speed_min", "speed_max", "the minimum speed is not below the maximum speed")
+    rated = got["speed_rated"]
+    if rated is not None and not got["speed_min"] <= rated <= got["speed_max"]:
+        raise InputError("the rated speed lies outside the minimum and maximum speed", w("speed_rated"))
+    need("speed_min_high_pressure", "high_pressure_threshold",
+         "a higher minimum speed needs the pressure above which it applies")
+    need("high_pressure_threshold", "speed_min_high_pressure",
+         "the pressure threshold needs the higher minimum speed that applies above it")
+    high = got["speed_min_high_pressure"]
+    if high is not None and not got["speed_min"] <= high < got["speed_max"]:
+        raise InputError("the higher minimum speed must lie between the minimum and the maximum speed",
+                         w("speed_min_high_pressure"))
+    order("inlet_pressure_min", "inlet_pressure_max", "the lowest inlet pressure is not below the highest")
+    order("viscosity_min", "viscosity_max", "the continuous viscosity range is upside down")
+    order("viscosity_min_short", "viscosity_min", "the short-term minimum viscosity is above the continuous "
+          "minimum", strict=False)
+    order("viscosity_max", "viscosity_max_cold_start", "the cold-start maximum viscosity is below the "
+          "continuous maximum", strict=False)
+    order("temperature_min", "temperature_max", "the lowest fluid temperature is not below the highest")
+    ve, te = got["volumetric_efficiency"], got["total_efficiency"]
+    if ve is not None and te is not None and te > ve:
+        raise InputError("the total efficiency exceeds the volumetric efficiency (it cannot: "
+                         "total = volumetric × hydro-mechanical)", w("total_efficiency"))
+    sources = fields.sources(got)
+    performance = _performance(book, got["performance_speed"], got["performance_viscosity"], fields)
+    if performance is not None:
+        sources["performance"] = performance.where
+    keep = {f.name for f in DATASHEET_FIELDS} - {"performance_speed", "performance_viscosity"}
+    return Datasheet(**{k: v for k, v in got.items() if k in keep and v is not None},
+                     performance=performance, file=book.file, sources=sources)
+
+
+def _performance(book: _Book, speed: float | None, viscosity: float | None,
+                 fields: _Fields) -> PerformanceTable | None:
+    sheet = book.sheet(PERFORMANCE_SHEET, required=False)
+    if sheet is None:
+        return None
+    rows, letters, header = _read_table(book, sheet, PERFORMANCE_COLUMNS)
+    if not rows:
+        return None
+    first, last = _span(letters)
+    where = Where(book.file, sheet.title, f"{first}{header}:{last}{rows[-1][0]}")
+    pressure = _column(rows, "pressure", None, book, sheet, letters, "give the pressure of each point")
+    flow = _column(rows, "flow", None, book, sheet, letters, "give the flow of each point")
+    n = _column(rows, "speed", speed, book, sheet, letters,
+                "give a speed column or performance_speed on the Pump sheet", rule="positive")
+    nu = _column(rows, "viscosity", viscosity, book, sheet, letters,
+                 "give a viscosity column or performance_viscosity on the Pump sheet", rule="positive")
+    power = torque = None
+    if "input_power" in letters and any(row.get("input_power") is not None for _, row in rows):
+        power = _column(rows, "input_power", None, book, sheet, letters, "give the power of every point",
+                        rule="positive")
+    if "torque" in letters and any(row.get("torque") is not None for _, row in rows):
+        torque = _column(rows, "torque", None, book, sheet, letters, "give the torque of every point",
+                         rule="positive")
+    return PerformanceTable(pressure=pressure, flow=flow, speed=n, viscosity=nu, input_power=power,
+                            torque=torque, where=where)
+
+
+# --- application -------------------------------------------------------------------------------------
+
+
+def read_application(path: str | os.PathLike[str]) -> Application:
+    """Read an application workbook into an :class:`~sheetpump.duty.Application` (SI units).
+
+    The oil is either an ISO VG grade with its viscosity index (ν40 at the grade's mid-point, ν100 from
+    ASTM D2270) or two viscosity–temperature points. The duty is the "Duty" sheet (one row per segment;
+    empty speed / temperature / inlet pressure cells take ``drive_speed`` / ``oil_temperature`` /
+    ``inlet_pressure``) or the measured series named by ``duty_series`` (path relative to the
+    workbook), read by :func:`~sheetpump.workbooks.series.read_series`; not both.
+
+    Raises
+    ------
+    InputError
+        Naming the file, sheet, cell and field.
+    """
+    book = _Book(path)
+    fields = _Fields(book, MACHINE_SHEET, APPLICATION_FIELDS)
+    got = {key: fields.get(key) for key in fields.fields}
+    w = fields.where
+    drive = got["drive_speed"]
+    low, high = got["drive_speed_min"], got["drive_speed_max"]
+    if (low is None) != (high is None):
+        raise InputError("a variable-speed drive needs both its lowest and highest speed",
+                         w("drive_speed_max" if high is None else "drive_speed_min"))
+    if low is not None and low >= high:
+        raise InputError("the drive's lowest speed is not below its highest", w("drive_speed_max"))
+    if drive is not None and low is not None:
+        raise InputError("give a fixed drive speed or a speed range, not both", w("drive_speed"))
+    if drive is not None:
+        low = high = drive
+    oil = _oil(got, w)
+    defaults = {"speed": drive, "temperature": got["oil_temperature"], "inlet_pressure": got["inlet_pressure"]}
+    wraps = got["duty_repeats"] != "no"
+    duty_sheet = book.sheet(DUTY_SHEET, required=got["duty_series"] is None)
+    if got["duty_series"] is not None:
+        if duty_sheet is not None and _read_table(book, duty_sheet, DUTY_COLUMNS)[0]:
+            raise InputError("both a Duty sheet with segments and a duty_series are given",
+                             w("duty_series"), "empty the Duty sheet or the duty_series cell")
+        series_path = Path(got["duty_series"])
+        if not series_path.is_absolute():
+            series_path = book.path.parent / series_path
+        try:
+            duty = read_series(series_path, sheet=got["duty_series_sheet"], defaults=defaults,
+                               max_step=got["duty_series_max_step"], wraps=wraps)
+        except InputError as exc:
+            if "file not found" in exc.message:
+                raise InputError(f"the duty series file {str(series_path)!r} is not found", w("duty_series"),
+                                 "give the path relative to this workbook") from None
+            raise
+    else:
+        duty = _segments(book, duty_sheet, defaults, wraps)
+    kw = {fields.fields[k].name: v for k, v in got.items() if v is not None and fields.fields[k].name in _APP_ATTRS}
+    kw.update(speed_min=low, speed_max=high)
+    sources = fields.sources(got)
+    if drive is not None:
+        sources["speed_min"] = sources["speed_max"] = w("drive_speed")
+    sources["duty"] = duty.where
+    sources["oil"] = w("oil_grade") if got["oil_grade"] is not None else w("oil_viscosity_1")
+    return Application(duty=duty, oil=oil, file=book.file, sources=sources, **kw)
+
+
+_APP_ATTRS = {
+    "name", "relief_setting", "overshoot", "rotation", "cleanliness", "cycles_per_hour", "hours_per_year",
+    "energy_price", "currency", "motor_standard", "flow_margin", "pressure_margin", "speed_margin",
+    "evaluation_years", "cold_start_temperature",
+}
+
+
+def _oil(got: dict[str, Any], w: Callable[[str], Where]) -> Oil:
+    grade, vi = got["oil_grade"], got["oil_viscosity_index"]
+    points = [got[k] for k in ("oil_viscosity_1", "oil_temperature_1", "oil_viscosity_2", "oil_temperature_2")]
+    density = got["oil_density"] if got["oil_density"] is not None else 870.0
+    name = got["oil_name"] or ""
+    if grade is not None:
+        if any(p is not None for p in points):
+            raise InputError("give the oil as a grade or as two viscosity points, not both", w("oil_grade"))
+        if vi is None:
+            raise InputError("an ISO VG grade needs its viscosity index", w("oil_viscosity_index"))
+        from ..physics.fluid import oil_points_from_grade
+        from ..physics.pump import PhysicsError
+
+        try:
+            nu1, t1, nu2, t2 = oil_points_from_grade(int(grade), vi)
+        except PhysicsError as exc:
+            raise InputError(str(exc), w("oil_viscosity_index")) from None
+        return Oil(float(nu1), float(t1), float(nu2), float(t2), density, int(grade), vi, name)
+    if vi is not None:
+        raise InputError("a viscosity index is given without its grade", w("oil_grade"))
+    keys = ("oil_viscosity_1", "oil_temperature_1", "oil_viscosity_2", "oil_temperature_2")
+    if all(p is None for p in points):
+        raise InputError("the oil is missing", w("oil_grade"),
+                         "give an ISO VG grade with its viscosity index, or two viscosity points")
+    for key, p in zip(keys, points, strict=True):
+        if p is None:
+            raise InputError("the second viscosity point is incomplete" if "2" in key else
+                             "the first viscosity point is incomplete", w(key))
+    nu1, t1, nu2, t2 = points
+    if t1 == t2:
+        raise InputError("the two viscosity points are at the same temperature", w("oil_temperature_2"))
+    if (nu2 - nu1) * (t2 - t1) >= 0:
+        raise InputError("the viscosity must fall as the temperature rises", w("oil_viscosity_2"))
+    return Oil(nu1, t1, nu2, t2, density, None, None, name)
+
+
+def _segments(book: _Book, sheet: Any, defaults: dict[str, float | None], wraps: bool) -> Duty:
+    rows, letters, header = _read_table(book, sheet, DUTY_COLUMNS)
+    if not rows:
+        raise InputError("the duty is empty: no segments", Where(book.file, sheet.title, f"A{header + 1}"),
+                         "enter one row per segment, or name a measured series in duty_series")
+    hints = {"speed": "give the speed, or drive_speed on the Machine sheet",
+             "temperature": "give the oil temperature, or oil_temperature on the Machine sheet",
+             "inlet_pressure": "give the inlet pressure, or inlet_pressure on the Machine sheet"}
+    duration = _column(rows, "duration", None, book, sheet, letters, "give the segment's duration", "positive")
+    pressure = _column(rows, "pressure", None, book, sheet, letters, "give the segment's pressure")
+    flow = _column(rows, "flow", None, book, sheet, letters, "give the segment's required flow")
+    speed = _column(rows, "speed", defaults["speed"], book, sheet, letters, hints["speed"])
+    temperature = _column(rows, "temperature", defaults["temperature"], book, sheet, letters,
+                          hints["temperature"], "positive")
+    inlet = _column(rows, "inlet_pressure", defaults["inlet_pressure"], book, sheet, letters,
+                    hints["inlet_pressure"], "positive")
+    first, last = _span(letters)
+    names = tuple(row.get("name") or f"row {r}" for r, row in rows)
+    where_rows = tuple(Where(book.file, sheet.title, f"{first}{r}:{last}{r}", name)
+                       for (r, _), name in zip(rows, names, strict=True))
+    return Duty(duration=duration, pressure=pressure, flow=flow, speed=speed, temperature=temperature,
+                inlet_pressure=inlet, names=names, wraps=wraps, source="segments", rows=where_rows,
+                columns=letters, where=Where(book.file, sheet.title))
