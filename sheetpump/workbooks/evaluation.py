@@ -1,0 +1,436 @@
+"""The evaluation workbook of a measured performance table.
+
+Sheets:
+
+* **Summary** — the safety caution, the source, nominal and derived displacement (with its standard
+  uncertainty and the difference), the loss model's coefficients with units and uncertainties, its
+  residuals and measured ranges, the notes (what was assumed, not fitted) and the plausibility flags.
+* **Points** — one row per measured point, grouped by speed and viscosity and sorted by pressure, with
+  the file row it came from. Measured values carry the input fill; the columns that are plain
+  arithmetic of others (geometric flow, the three efficiencies, hydraulic power, power loss, dynamic
+  viscosity, torque from power or power from torque) are live formulas with their values stored. Then
+  each point's flags and the model's efficiencies at the point.
+* **Charts** — native charts of η_v, η_hm and η_t against pressure, one series of measured points per
+  speed (and viscosity) and the model's curve beside it in the same colour.
+* **Curves** — the data behind the model curves, at each measured speed and viscosity.
+
+Units are the defaults of :mod:`sheetpump.units` (bar, L/min, rpm, N·m, kW, mm²/s, °C). Written with
+:mod:`sheetpump.workbooks.writer`: deterministic, atomic, text from inputs stays text.
+"""
+
+from __future__ import annotations
+
+import math
+import os
+from pathlib import Path
+from typing import Any
+
+import numpy as np
+from xlsxwriter.utility import xl_rowcol_to_cell
+
+from .. import SAFETY_CAUTION, __version__
+from ..evaluation import TABLE_FLAG_TEXT, Evaluation, all_notes, coefficients
+from ..physics.losses import FLAG_TEXT
+from ..units import (
+    DISPLACEMENT,
+    DYN_VISCOSITY,
+    FLOW,
+    POWER,
+    PRESSURE,
+    SPEED,
+    TEMPERATURE,
+    TORQUE,
+    VISCOSITY,
+    Kind,
+    from_si,
+)
+from .writer import STYLES, open_book, write_formula, write_value
+
+__all__ = ["PALETTE", "write_evaluation"]
+
+#: Series colours of the charts, one per speed (and viscosity): our own, distinct in print and for
+#: the common colour-vision deficiencies.
+PALETTE = ("#1F5A96", "#C2571A", "#2E7D4F", "#8A3B8F", "#9C7A00", "#3F8FA8", "#A23B3B", "#555555")
+
+SUMMARY, POINTS, CHARTS, CURVES = "Summary", "Points", "Charts", "Curves"
+_HEADER_ROW = 3  # 0-based row of the Points header
+_TITLE = "Measured performance evaluation"
+
+
+def _si_to(value: float | np.ndarray, kind: Kind, unit: str | None = None) -> Any:
+    return from_si(value, kind, unit)
+
+
+def _num(x: Any) -> float | None:
+    """A finite float, or None (an empty cell) for NaN/None."""
+    if x is None:
+        return None
+    x = float(x)
+    return x if math.isfinite(x) else None
+
+
+class _Formats:
+    def __init__(self, book: Any) -> None:
+        def fmt(*names: str, **extra: Any) -> Any:
+            spec: dict[str, Any] = {}
+            for name in names:
+                spec.update(STYLES[name])
+            spec.update(extra)
+            return book.add_format(spec)
+
+        self.title = fmt("title")
+        self.header = fmt("header")
+        self.caution = fmt("caution")
+        self.note = fmt("note")
+        self.note_line = fmt("note", text_wrap=False)
+        self.section = fmt("header", text_wrap=False)
+        self.label = book.add_format({"text_wrap": True, "valign": "top"})
+        self.input = {d: fmt("input", num_format=f"0.{'0' * d}") for d in (1, 2, 3, 4)}
+        self.value = {d: book.add_format({"num_format": f"0.{'0' * d}"}) for d in (1, 2, 3, 4)}
+        self.sci = book.add_format({"num_format": "0.000E+00"})
+        self.pct = book.add_format({"num_format": "0.00%"})
+        self.eff = book.add_format({"num_format": "0.0000"})
+        self.fail = fmt("fail", text_wrap=True)
+        self.ok = fmt("pass")
+        self.warn = fmt("warn", text_wrap=True)
+        self.info = fmt("info", text_wrap=True)
+
+
+def _order(e: Evaluation) -> list[int]:
+    """Points by group (speed, then viscosity) and pressure; the points no group holds at the end."""
+    seen: list[int] = [int(i) for g in e.groups for i in g.index]
+    rest = [i for i in range(e.table.size) if i not in set(seen)]
+    return seen + rest
+
+
+def _group_label(e: Evaluation, k: int) -> str:
+    g = e.groups[k]
+    label = f"{_si_to(g.speed, SPEED):.0f} rpm"
+    if len({round(x.viscosity, 12) for x in e.groups}) > 1 or len(e.groups) == 1:
+        label += f", {_si_to(g.viscosity, VISCOSITY):.3g} mm²/s"
+    return label
+
+
+def write_evaluation(e: Evaluation, target: str | os.PathLike[str], *, source: str | None = None) -> Path:
+    """Write the evaluation workbook of ``e`` to ``target`` (atomically) and return its path.
+
+    ``source`` is the input file's name as the user gave it (shown as text).
+    """
+    target = Path(target)
+    with open_book(target, title=_TITLE) as book:
+        f = _Formats(book)
+        summary = book.add_worksheet(SUMMARY)
+        points = book.add_worksheet(POINTS)
+        charts = book.add_worksheet(CHARTS)
+        curves = book.add_worksheet(CURVES)
+        v_cell = _write_summary(summary, e, f, source)
+        rows, columns = _write_points(points, e, f, v_cell)
+        curve_cols = _write_curves(curves, e, f)
+        _write_charts(book, charts, e, f, rows, columns, curve_cols)
+        summary.activate()
+    return target
+
+
+# -- Summary ---------------------------------------------------------------------------------------------
+def _write_summary(sheet: Any, e: Evaluation, f: _Formats, source: str | None) -> str:
+    """Write the Summary sheet; return the absolute reference of the displacement-used cell."""
+    sheet.set_column(0, 0, 40)
+    sheet.set_column(1, 1, 16)
+    sheet.set_column(2, 2, 12)
+    sheet.set_column(3, 3, 16)
+    sheet.set_column(4, 4, 60)
+    write_value(sheet, 0, 0, _TITLE, f.title)
+    sheet.merge_range(1, 0, 1, 4, SAFETY_CAUTION, f.caution)
+    sheet.set_row(1, 62)
+    r = 3
+
+    def section(title: str, *heads: str) -> None:
+        nonlocal r
+        r += 1
+        write_value(sheet, r, 0, title, f.section)
+        for i, h in enumerate(heads, start=1):
+            write_value(sheet, r, i, h, f.section)
+        for i in range(len(heads) + 1, 5):
+            write_value(sheet, r, i, None, f.section)
+        r += 1
+
+    def line(label: str, value: Any, unit: str = "", fmt: Any = None, note: str = "") -> int:
+        nonlocal r
+        write_value(sheet, r, 0, label, f.label)
+        write_value(sheet, r, 1, value, fmt)
+        write_value(sheet, r, 2, unit)
+        if note:
+            write_value(sheet, r, 4, note, f.note)
+        r += 1
+        return r - 1
+
+    t = e.table
+    section("Source", "value", "unit", "", "")
+    line("table file", source if source is not None else t.file)
+    line("sheet", t.sheet if t.sheet else "(CSV file)")
+    line("points", t.size)
+    flagged = sum(1 for fl in e.points.flags if fl)
+    line("points with a plausibility flag", flagged, "", f.fail if flagged else f.ok)
+    line("written by", f"sheetpump {__version__}")
+
+    section("Displacement", "value", "unit", "std. uncertainty", "")
+    cm3 = "cm³/rev"
+    nominal_row = line("nominal displacement", _num(_si_to(e.nominal_displacement, DISPLACEMENT))
+                       if e.nominal_displacement is not None else "not given", cm3, f.value[3])
+    if e.derived is not None:
+        derived_row = line("derived displacement (ISO 8426 idea)", _si_to(e.derived.value, DISPLACEMENT), cm3,
+                           f.value[3], f"from {e.derived.points} points up to "
+                           f"{_si_to(e.derived.max_pressure, PRESSURE):.4g} bar: slope of flow on speed, "
+                           "leakage extrapolated to zero pressure")
+        write_value(sheet, derived_row, 3, _num(_si_to(e.derived.uncertainty, DISPLACEMENT)), f.value[4])
+    else:
+        derived_row = line("derived displacement (ISO 8426 idea)", "not derived", "", None, e.derived_error)
+    if e.derived is not None and e.nominal_displacement is not None:
+        write_value(sheet, r, 0, "derived less nominal, relative", f.label)
+        nom, der = xl_rowcol_to_cell(nominal_row, 1), xl_rowcol_to_cell(derived_row, 1)
+        write_formula(sheet, r, 1, f"=({der}-{nom})/{nom}", e.displacement_difference, f.pct)
+        if e.derived.uncertainty > 0:
+            unc = xl_rowcol_to_cell(derived_row, 3)
+            write_formula(sheet, r, 3, f"=ABS({der}-{nom})/{unc}",
+                          abs(e.derived.value - e.nominal_displacement) / e.derived.uncertainty, f.value[2])
+            write_value(sheet, r, 2, "× std. unc.")
+        flag = bool(e.table_flags)
+        write_value(sheet, r, 4, TABLE_FLAG_TEXT[e.table_flags[0]] if flag else
+                    "agree (within three standard uncertainties or 2 %)", f.fail if flag else f.ok)
+        r += 1
+    used_row = line("displacement the points are evaluated with", _si_to(e.displacement, DISPLACEMENT), cm3,
+                    f.value[3], "nominal" if e.nominal_displacement is not None else "derived")
+    v_cell = f"'{SUMMARY}'!{xl_rowcol_to_cell(used_row, 1, True, True)}"
+
+    section("Loss model", "value", "unit", "std. uncertainty", "meaning")
+    m = e.model
+    if m is None:
+        line("method", "none", note=e.model_error)
+    else:
+        line("method", "Wilson's model (least squares)" if m.method == "wilson"
+             else "measured efficiencies interpolated in pressure", note=f"{m.points} points")
+        for c in coefficients(m):
+            row = line(str(c["symbol"]), c["value"], str(c["unit"]), f.sci,
+                       str(c["meaning"]) + ("" if c["fitted"] else " — assumed, not fitted"))
+            write_value(sheet, row, 3, _num(c["uncertainty"]), f.sci)
+        res = getattr(m, "residuals", None)
+        if res is not None:
+            line("flow residual, RMS", _si_to(res.flow_rms, FLOW), "L/min", f.value[4], "measured less model")
+            line("flow residual, largest", _si_to(res.flow_max, FLOW), "L/min", f.value[4])
+            line("torque residual, RMS", _si_to(res.torque_rms, TORQUE), "N·m", f.value[4])
+            line("torque residual, largest", _si_to(res.torque_max, TORQUE), "N·m", f.value[4])
+        rg = m.ranges
+        for label, (lo, hi), kind, unit in (("pressure", rg.pressure, PRESSURE, "bar"),
+                                            ("speed", rg.speed, SPEED, "rpm"),
+                                            ("dynamic viscosity", rg.viscosity, DYN_VISCOSITY, "mPa·s")):
+            line(f"measured {label}, lowest", _si_to(lo, kind), unit, f.value[2])
+            line(f"measured {label}, highest", _si_to(hi, kind), unit, f.value[2],
+                 "the model's predictions outside these ranges are extrapolated" if label == "pressure" else "")
+
+    section("Notes", "", "", "", "")
+    for note in all_notes(e):
+        sheet.merge_range(r, 0, r, 4, note, f.note)
+        sheet.set_row(r, 30 if len(note) > 110 else None)
+        r += 1
+
+    section("Plausibility flags", "points", "", "", "meaning")
+    counts: dict[str, int] = {}
+    for fl in e.points.flags:
+        for code in fl:
+            counts[code] = counts.get(code, 0) + 1
+    for code, text in FLAG_TEXT.items():
+        row = line(code, counts.get(code, 0), "", f.fail if counts.get(code) else f.ok)
+        write_value(sheet, row, 4, text, f.note)
+    for code, text in TABLE_FLAG_TEXT.items():
+        row = line(code, 1 if code in e.table_flags else 0, "", f.fail if code in e.table_flags else f.ok)
+        write_value(sheet, row, 4, text, f.note)
+    r += 1
+    sheet.merge_range(r, 0, r, 4, "Exit code of `sheetpump evaluate`: 0 no flag, 1 a plausibility flag fired, "
+                      "2 bad input.", f.note)
+    sheet.freeze_panes(2, 0)
+    return v_cell
+
+
+# -- Points ----------------------------------------------------------------------------------------------
+def _write_points(sheet: Any, e: Evaluation, f: _Formats, v_cell: str
+                  ) -> tuple[dict[int, int], dict[str, int]]:
+    """Write the Points sheet; return the sheet row of each point and the column of each key."""
+    t, pe = e.table, e.points
+    power_measured = t.torque is None
+    cols: list[tuple[str, str, int]] = [  # key, header, width
+        ("row", "row in the file", 8),
+        ("speed", "speed [rpm]", 10),
+        ("pressure", "pressure [bar]", 10),
+        ("flow", "flow [L/min]", 10),
+        ("torque", "torque [N·m]" + (" (from power)" if power_measured else ""), 12),
+        ("power", "input power [kW]" + ("" if power_measured else " (from torque)"), 12),
+        ("viscosity", "viscosity [mm²/s]" + (" (from temperature)" if t.viscosity is None and
+                                            t.temperature is not None else ""), 12),
+    ]
+    if t.temperature is not None:
+        cols.append(("temperature", "temperature [°C]", 11))
+    cols += [
+        ("density", "density [kg/m³]", 10),
+        ("mu", "dynamic viscosity [mPa·s]", 12),
+        ("qth", "geometric flow [L/min]", 11),
+        ("ev", "volumetric efficiency η_v [-]", 12),
+        ("ehm", "hydro-mechanical efficiency η_hm [-]", 14),
+        ("et", "total efficiency η_t [-]", 11),
+        ("phyd", "hydraulic power [kW]", 11),
+        ("loss", "power loss [kW]", 10),
+        ("flags", "plausibility flags", 34),
+        ("m_ev", "model η_v [-]", 10),
+        ("m_ehm", "model η_hm [-]", 10),
+        ("m_et", "model η_t [-]", 10),
+        ("extrap", "model outside the measured ranges", 26),
+    ]
+    col = {key: i for i, (key, _, _) in enumerate(cols)}
+    write_value(sheet, 0, 0, f"{_TITLE}: points", f.title)
+    write_value(sheet, 1, 0, "Shaded: measured. Formulas use the displacement on the Summary sheet "
+                "(" + v_cell.replace("'", "") + "). Rows grouped by speed and viscosity, by rising pressure.",
+                f.note_line)
+    for i, (_, header, width) in enumerate(cols):
+        write_value(sheet, _HEADER_ROW, i, header, f.header)
+        sheet.set_column(i, i, width)
+    sheet.set_row(_HEADER_ROW, 45)
+
+    def cell(key: str, r: int) -> str:
+        return xl_rowcol_to_cell(r, col[key])
+
+    n_rpm = _si_to(t.speed, SPEED)
+    p_bar = _si_to(t.pressure, PRESSURE)
+    q_lpm = _si_to(t.flow, FLOW)
+    torque = _si_to(pe.torque, TORQUE)
+    p_in = _si_to(pe.input_power, POWER)
+    measured_torque = t.torque if t.torque is not None else None
+    measured_power = t.input_power if t.torque is None else None
+    nu = _si_to(e.viscosity, VISCOSITY)
+    mu = _si_to(e.dynamic_viscosity, DYN_VISCOSITY)
+    rows: dict[int, int] = {}
+    for k, i in enumerate(_order(e)):
+        r = _HEADER_ROW + 1 + k
+        rows[i] = r
+        ok = bool(np.isfinite(pe.volumetric[i]))  # evaluated (neither missing nor impossible)
+        write_value(sheet, r, col["row"], int(t.rows[i]) if t.rows.size else i + 1)
+        write_value(sheet, r, col["speed"], _num(n_rpm[i]), f.input[1])
+        write_value(sheet, r, col["pressure"], _num(p_bar[i]), f.input[2])
+        write_value(sheet, r, col["flow"], _num(q_lpm[i]), f.input[3])
+        n_c, p_c, q_c = cell("speed", r), cell("pressure", r), cell("flow", r)
+        t_c, w_c = cell("torque", r), cell("power", r)
+        if measured_torque is not None:
+            write_value(sheet, r, col["torque"], _num(_si_to(measured_torque[i], TORQUE)), f.input[3])
+            if ok:  # P [kW] = 2π·n [rpm]·T [N·m]/60000
+                write_formula(sheet, r, col["power"], f"=2*PI()*{n_c}*{t_c}/60000", float(p_in[i]), f.value[4])
+        else:
+            write_value(sheet, r, col["power"], _num(_si_to(measured_power[i], POWER)), f.input[4])
+            if ok:
+                write_formula(sheet, r, col["torque"], f"={w_c}*60000/(2*PI()*{n_c})", float(torque[i]), f.value[3])
+        from_temperature = t.viscosity is None and t.temperature is not None
+        write_value(sheet, r, col["viscosity"], _num(nu[i]), f.value[3] if from_temperature else f.input[3])
+        if t.temperature is not None:
+            write_value(sheet, r, col["temperature"], _num(_si_to(t.temperature[i], TEMPERATURE)), f.input[1])
+        write_value(sheet, r, col["density"], _num(e.density[i]), f.value[1])
+        if np.isfinite(mu[i]):  # μ [mPa·s] = ν [mm²/s]·ρ [kg/m³]/1000
+            write_formula(sheet, r, col["mu"], f"={cell('viscosity', r)}*{cell('density', r)}/1000",
+                          float(mu[i]), f.value[3])
+        if ok:
+            qth = float(_si_to(pe.geometric_flow[i], FLOW))
+            phyd = float(_si_to(pe.hydraulic_power[i], POWER))
+            write_formula(sheet, r, col["qth"], f"={v_cell}*{n_c}/1000", qth, f.value[3])  # L/min = cm³·rpm/1000
+            write_formula(sheet, r, col["ev"], f"={q_c}/{cell('qth', r)}", float(pe.volumetric[i]), f.eff)
+            # η_hm = V·Δp/(2π·T) = V [cm³]·Δp [bar]/(20π·T [N·m])
+            write_formula(sheet, r, col["ehm"], f"={v_cell}*{p_c}/(20*PI()*{t_c})", float(pe.hydromechanical[i]),
+                          f.eff)
+            write_formula(sheet, r, col["phyd"], f"={p_c}*{q_c}/600", phyd, f.value[4])  # kW = bar·L/min/600
+            write_formula(sheet, r, col["et"], f"={cell('phyd', r)}/{w_c}", float(pe.total[i]), f.eff)
+            write_formula(sheet, r, col["loss"], f"={w_c}-{cell('phyd', r)}", float(_si_to(pe.power_loss[i], POWER)),
+                          f.value[4])
+        flags = pe.flags[i]
+        write_value(sheet, r, col["flags"], "; ".join(flags) if flags else "ok", f.fail if flags else f.ok)
+        pr = e.prediction
+        if pr is not None and ok:
+            write_value(sheet, r, col["m_ev"], _num(pr.volumetric[i]), f.eff)
+            write_value(sheet, r, col["m_ehm"], _num(pr.hydromechanical[i]), f.eff)
+            write_value(sheet, r, col["m_et"], _num(pr.total[i]), f.eff)
+            write_value(sheet, r, col["extrap"], str(pr.extrapolation[i]) or "no")
+    sheet.freeze_panes(_HEADER_ROW + 1, 1)
+    last = _HEADER_ROW + max(len(rows), 1)
+    sheet.autofilter(_HEADER_ROW, 0, last, len(cols) - 1)
+    return rows, col
+
+
+# -- Curves ----------------------------------------------------------------------------------------------
+def _write_curves(sheet: Any, e: Evaluation, f: _Formats) -> list[int]:
+    """Write the model curves, four columns per group; return each group's first column."""
+    write_value(sheet, 0, 0, "Model curves at each measured speed and viscosity (over the measured pressure "
+                "range)", f.title)
+    first: list[int] = []
+    for k, (pressure, pred) in enumerate(e.curves):
+        c = 5 * k
+        first.append(c)
+        write_value(sheet, 1, c, _group_label(e, k), f.section)
+        for j, h in enumerate(("pressure [bar]", "η_v [-]", "η_hm [-]", "η_t [-]")):
+            write_value(sheet, 2, c + j, h, f.header)
+            sheet.set_column(c + j, c + j, 11)
+        for i, p in enumerate(pressure):
+            write_value(sheet, 3 + i, c, float(_si_to(p, PRESSURE)), f.value[2])
+            for j, arr in enumerate((pred.volumetric, pred.hydromechanical, pred.total), start=1):
+                write_value(sheet, 3 + i, c + j, _num(np.ravel(arr)[i]), f.eff)
+    if not e.curves:
+        write_value(sheet, 2, 0, "no model: " + e.model_error, f.note_line)
+    sheet.freeze_panes(3, 0)
+    return first
+
+
+# -- Charts ----------------------------------------------------------------------------------------------
+def _write_charts(book: Any, sheet: Any, e: Evaluation, f: _Formats, rows: dict[int, int], col: dict[str, int],
+                  curve_cols: list[int]) -> None:
+    write_value(sheet, 0, 0, "Efficiencies against pressure: measured points (markers) and the model (lines)",
+                f.title)
+    sheet.set_column(0, 11, 9)
+    sheet.merge_range(1, 0, 1, 11, SAFETY_CAUTION, f.caution)
+    sheet.set_row(1, 48)
+    charts = (("ev", 1, "Volumetric efficiency η_v"), ("ehm", 2, "Hydro-mechanical efficiency η_hm"),
+              ("et", 3, "Total efficiency η_t"))
+    for place, (key, offset, title) in enumerate(charts):
+        chart = book.add_chart({"type": "scatter"})
+        chart.set_title({"name": title, "name_font": {"size": 12}})
+        chart.set_x_axis({"name": "pressure [bar]", "major_gridlines": {"visible": True,
+                                                                         "line": {"color": "#E0E0E0"}}})
+        chart.set_y_axis({"name": f"{title.split()[-1]} [-]", "num_format": "0.00",
+                          "major_gridlines": {"visible": True, "line": {"color": "#E0E0E0"}}})
+        values: list[float] = []
+        for k, g in enumerate(e.groups):
+            colour = PALETTE[k % len(PALETTE)]
+            rs = [rows[int(i)] for i in g.index]
+            lo, hi = min(rs), max(rs)
+            label = _group_label(e, k)
+            chart.add_series({
+                "name": f"{label} measured",
+                "categories": [POINTS, lo, col["pressure"], hi, col["pressure"]],
+                "values": [POINTS, lo, col[key], hi, col[key]],
+                "marker": {"type": "circle", "size": 6, "fill": {"color": colour}, "border": {"color": colour}},
+                "line": {"none": True},
+            })
+            arr = {"ev": e.points.volumetric, "ehm": e.points.hydromechanical, "et": e.points.total}[key]
+            values += [float(x) for x in arr[g.index] if np.isfinite(x)]
+            if k < len(curve_cols):
+                c = curve_cols[k]
+                pressure, pred = e.curves[k]
+                chart.add_series({
+                    "name": f"{label} model",
+                    "categories": [CURVES, 3, c, 3 + len(pressure) - 1, c],
+                    "values": [CURVES, 3, c + offset, 3 + len(pressure) - 1, c + offset],
+                    "line": {"color": colour, "width": 1.75},
+                    "marker": {"type": "none"},
+                })
+                arr = (pred.volumetric, pred.hydromechanical, pred.total)[offset - 1]
+                values += [float(x) for x in np.ravel(arr) if np.isfinite(x) and x > 0.2]
+        if values:
+            low = max(0.0, math.floor(min(values) * 20) / 20)
+            high = max(1.0, math.ceil(max(values) * 20) / 20)
+            chart.set_y_axis({"name": f"{title.split()[-1]} [-]", "num_format": "0.00", "min": low, "max": high,
+                              "major_gridlines": {"visible": True, "line": {"color": "#E0E0E0"}}})
+        chart.set_legend({"position": "right"})
+        chart.set_size({"width": 760, "height": 380})
+        sheet.insert_chart(3 + place * 20, 0, chart)
