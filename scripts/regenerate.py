@@ -14,11 +14,15 @@ from pathlib import Path
 ROOT = Path(__file__).resolve().parents[1]
 sys.path.insert(0, str(ROOT))
 
+from sheetpump import demo  # noqa: E402
 from sheetpump.cli.functions import markdown  # noqa: E402
 from sheetpump.workbooks.example import write_worked_example  # noqa: E402
+from sheetpump.workbooks.templates import write_template  # noqa: E402
 
 GENERATED = {
     "worked-example.xlsx": write_worked_example,
+    "datasheet-template.xlsx": lambda path: write_template("datasheet", path),
+    "application-template.xlsx": lambda path: write_template("application", path),
 }
 
 
@@ -39,6 +43,8 @@ def main() -> None:
         target.parent.mkdir(parents=True, exist_ok=True)
         write(target)
         print(target.relative_to(ROOT))
+    for path in demo.write_inputs(ROOT / "workbooks" / "demo"):
+        print(path.relative_to(ROOT))
     update_readme()
 
 

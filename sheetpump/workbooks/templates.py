@@ -19,7 +19,7 @@ point or segment. The header cells carry drop-downs of common units; any unit of
 from __future__ import annotations
 
 import os
-from collections.abc import Sequence
+from collections.abc import Mapping, Sequence
 from dataclasses import dataclass
 from pathlib import Path
 from typing import Any
@@ -30,7 +30,7 @@ from .. import SAFETY_CAUTION
 from .. import units as u
 from ..errors import InputError
 from ..units import Kind
-from .writer import STYLES, open_book
+from .writer import STYLES, open_book, write_value
 
 __all__ = [
     "APPLICATION_FIELDS",
@@ -293,7 +293,8 @@ def _top(sheet: Any, book: Any, name: str, width: int) -> None:
     sheet.set_row(2, 32)
 
 
-def _field_sheet(book: Any, name: str, fields: Sequence[Field]) -> None:
+def _field_sheet(book: Any, name: str, fields: Sequence[Field],
+                 values: Mapping[str, tuple[Any, ...]] | None = None) -> None:
     sheet = book.add_worksheet(name)
     _top(sheet, book, name, 4)
     sheet.set_column(0, 0, 28)
@@ -314,7 +315,8 @@ def _field_sheet(book: Any, name: str, fields: Sequence[Field]) -> None:
         sheet.write_string(row, 0, field.key)
         # Text fields are formatted as text so that "18/16/13" never becomes a date.
         fmt = text_input if field.kind in (TEXT, CHOICE) else book.styles["input"]
-        sheet.write_blank(row, 1, None, fmt)
+        value, *unit = (values or {}).get(field.key, (None,))
+        write_value(sheet, row, 1, value, fmt)
         book.define_name(f"{NAME_PREFIX[name]}.{field.key}", f"='{name}'!{xl_rowcol_to_cell(row, 1, True, True)}")
         need = "Required. " if field.required else ""
         sheet.write_comment(row, 1, need + field.help, {"author": "sheetpump", "x_scale": 2})
@@ -324,7 +326,7 @@ def _field_sheet(book: Any, name: str, fields: Sequence[Field]) -> None:
                 "error_title": field.key, "error_message": "Choose one of: " + ", ".join(field.choices)})
         units = field.units
         if units:
-            sheet.write_string(row, 2, units[0], book.styles["input"])
+            sheet.write_string(row, 2, unit[0] if unit else units[0], book.styles["input"])
             sheet.data_validation(row, 2, row, 2, {
                 "validate": "list", "source": list(units), "error_type": "warning",
                 "error_title": "unit", "error_message": "Not in the list: any unit of this kind that "
@@ -336,13 +338,16 @@ def _field_sheet(book: Any, name: str, fields: Sequence[Field]) -> None:
     sheet.freeze_panes(HEADER_ROW + 1, 0)
 
 
-def _table_sheet(book: Any, name: str, columns: Sequence[Column], rows: int) -> None:
+def _table_sheet(book: Any, name: str, columns: Sequence[Column], rows: int,
+                 table: Sequence[Sequence[Any]] = (), headers: Sequence[str] | None = None) -> None:
     sheet = book.add_worksheet(name)
     width = len(columns)
     _top(sheet, book, name, max(width, 4))
     sheet.set_column(0, width - 1, 20)
+    rows = max(rows, len(table))
     for col, column in enumerate(columns):
-        sheet.write_string(HEADER_ROW, col, column.header, book.styles["header"])
+        header = headers[col] if headers and col < len(headers) else column.header
+        sheet.write_string(HEADER_ROW, col, header, book.styles["header"])
         need = "Required. " if column.required else ""
         sheet.write_comment(HEADER_ROW, col, need + column.help, {"author": "sheetpump", "x_scale": 2})
         if column.kind is not None:
@@ -351,13 +356,20 @@ def _table_sheet(book: Any, name: str, columns: Sequence[Column], rows: int) -> 
                 "error_title": "column", "error_message": "Not in the list: write the trade word and any unit "
                 f"of its kind in brackets, e.g. {column.header!r}."})
         for row in range(HEADER_ROW + 1, HEADER_ROW + 1 + rows):
-            sheet.write_blank(row, col, None, book.styles["input"])
+            i = row - HEADER_ROW - 1
+            value = table[i][col] if i < len(table) and col < len(table[i]) else None
+            write_value(sheet, row, col, value, book.styles["input"])
     sheet.freeze_panes(HEADER_ROW + 1, 0)
 
 
 
-def write_template(kind: str, target: str | os.PathLike[str]) -> Path:
+def write_template(kind: str, target: str | os.PathLike[str], values: Mapping[str, tuple[Any, ...]] | None = None,
+                   table: Sequence[Sequence[Any]] = (), headers: Sequence[str] | None = None) -> Path:
     """Write the blank ``"datasheet"`` or ``"application"`` template to ``target`` (atomically).
+
+    With ``values`` (field key -> ``(value,)`` or ``(value, unit)``), ``table`` (rows of the
+    Performance or Duty sheet, in the template's column order) and ``headers`` (that sheet's header
+    texts, e.g. with other units), the same code writes a filled-in workbook, as the demo does.
 
     The output is byte-for-byte the same for the same sheetpump version (XlsxWriter with a fixed
     creation time, see :mod:`sheetpump.workbooks.writer`).
@@ -369,12 +381,12 @@ def write_template(kind: str, target: str | os.PathLike[str]) -> Path:
     """
     if kind == "datasheet":
         with open_book(target, title="sheetpump pump datasheet") as book:
-            _field_sheet(book, PUMP_SHEET, DATASHEET_FIELDS)
-            _table_sheet(book, PERFORMANCE_SHEET, PERFORMANCE_COLUMNS, PERFORMANCE_ROWS)
+            _field_sheet(book, PUMP_SHEET, DATASHEET_FIELDS, values)
+            _table_sheet(book, PERFORMANCE_SHEET, PERFORMANCE_COLUMNS, PERFORMANCE_ROWS, table, headers)
     elif kind == "application":
         with open_book(target, title="sheetpump application") as book:
-            _field_sheet(book, MACHINE_SHEET, APPLICATION_FIELDS)
-            _table_sheet(book, DUTY_SHEET, DUTY_COLUMNS, DUTY_ROWS)
+            _field_sheet(book, MACHINE_SHEET, APPLICATION_FIELDS, values)
+            _table_sheet(book, DUTY_SHEET, DUTY_COLUMNS, DUTY_ROWS, table, headers)
     else:
         raise InputError(f"unknown template {kind!r}", hint="choose 'datasheet' or 'application'")
     return Path(target)

@@ -1,0 +1,237 @@
+"""The bundled demo: an invented baling press and four invented suppliers' gear pumps.
+
+Everything here is invented for the demonstration — the machine, the suppliers, the pumps and their
+figures. The datasheets are filled-in sheetpump templates, as a user would fill them, in each
+supplier's own units (one in inch-pound units). Their performance tables are generated from Wilson
+loss models with invented coefficients, rounded as a printed datasheet would round them.
+
+What the demo is meant to show:
+
+* **Marrow & Tepp MT-G28** — measured at three speeds and two oil viscosities: passes.
+* **Quillfeather QF-175** (inch-pound datasheet) — its intermittent rating allows only 10 % of the
+  cycle above continuous pressure; the press spends 17.5 % there, so it fails although every
+  pressure is inside its intermittent rating.
+* **Orrin Gearworks OG-22** — cheap, but too small: after its leakage it delivers less than the
+  approach stroke needs.
+* **Sandlow SL-32** — passes with room to spare, at a higher price and more energy.
+
+:func:`write_inputs` writes the workbooks (the same generator writes the committed copies under
+``workbooks/demo/``); :func:`run` checks and compares them into a folder.
+"""
+
+from __future__ import annotations
+
+import os
+from dataclasses import dataclass
+from pathlib import Path
+from typing import Any
+
+from . import SAFETY_CAUTION
+from .physics.losses import WilsonModel
+from .units import FLOW, POWER, PRESSURE, TORQUE, from_si, to_si
+
+__all__ = ["APPLICATION_FILE", "PUMPS", "DemoResult", "run", "write_inputs"]
+
+APPLICATION_FILE = "baling-press.xlsx"
+
+MACHINE: dict[str, tuple[Any, ...]] = {
+    "name": ("Hollin Vale HV-4 baling press (invented)",),
+    "drive_speed": (1470, "rpm"),  # a 4-pole 50 Hz motor under load
+    "rotation": ("clockwise",),
+    "motor_standard": ("IEC",),
+    "relief_setting": (250, "bar"),
+    "overshoot": (10, "%"),
+    "oil_name": ("ISO VG 46 mineral oil",),
+    "oil_grade": ("46",),
+    "oil_viscosity_index": (100,),
+    "oil_density": (870, "kg/m^3"),
+    "oil_temperature": (50, "degC"),
+    "cold_start_temperature": (5, "degC"),
+    "cleanliness": ("17/15/12",),
+    "inlet_pressure": (0.92, "bara"),
+    "cycles_per_hour": (90,),
+    "hours_per_year": (3000,),
+    "evaluation_years": (8,),
+    "energy_price": (0.22,),
+    "currency": ("EUR",),
+    "flow_margin": (5, "%"),
+    "pressure_margin": (0, "%"),
+    "speed_margin": (0, "%"),
+}
+
+# name, duration [s], pressure [bar], flow [L/min], speed [rpm] (empty: drive speed),
+# temperature [degC], inlet pressure [bara] (empty: the machine's)
+DUTY: list[list[Any]] = [
+    ["unload", 8, 12, 0, None, 45, None],
+    ["fast approach", 6, 55, 36, None, 48, None],
+    ["compact", 10, 185, 33, None, 52, None],
+    ["final press", 4, 238, 18, None, 55, None],
+    ["hold", 3, 242, 2, None, 55, None],
+    ["decompress", 1, 90, 0, None, 55, None],
+    ["return", 8, 70, 36, None, 50, None],
+]
+
+
+@dataclass(frozen=True)
+class _Pump:
+    file: str
+    values: dict[str, tuple[Any, ...]]
+    model: WilsonModel
+    speeds_rpm: tuple[float, ...]
+    viscosities_cst: tuple[float, ...]
+    pressures: tuple[float, ...]  # in the datasheet's pressure unit
+    units: dict[str, str]  # pressure, flow, power or torque, speed, viscosity units of the table
+    power_column: str  # "input power" or "torque"
+
+
+def _identity(supplier: str, model: str, note: str) -> dict[str, tuple[Any, ...]]:
+    return {"supplier": (supplier,), "model": (model,),
+            "source_note": (f"invented demo data ({note})",)}
+
+
+PUMPS: tuple[_Pump, ...] = (
+    _Pump(
+        "marrow-tepp-mt-g28.xlsx",
+        {**_identity("Marrow & Tepp Hydraulics", "MT-G28", "catalogue sheet 4.2, invented"),
+         "displacement": (28.0, "cm^3/rev"), "speed_min": (500, "rpm"), "speed_max": (3000, "rpm"),
+         "speed_rated": (1500, "rpm"), "pressure_continuous": (230, "bar"), "pressure_intermittent": (260, "bar"),
+         "intermittent_max_duration": (15, "s"), "intermittent_max_share": (20, "%"), "pressure_peak": (280, "bar"),
+         "inlet_pressure_min": (0.8, "bara"), "inlet_pressure_max": (3, "bara"),
+         "viscosity_min": (10, "mm^2/s"), "viscosity_max": (300, "mm^2/s"), "viscosity_min_short": (8, "mm^2/s"),
+         "viscosity_max_cold_start": (1000, "mm^2/s"), "temperature_min": (-20, "degC"),
+         "temperature_max": (80, "degC"), "cleanliness": ("19/17/14",), "rotation": ("clockwise",),
+         "torque_max": (180, "N*m"), "teeth": (12,), "price": (540,), "mass": (6.2, "kg"), "noise": (66,)},
+        WilsonModel(28e-6, c_s=1.2e-8, c_f=0.045, c_v=9.0e4, t_c=0.9),
+        (1000.0, 1500.0, 2000.0), (20.0, 46.0), (10, 50, 100, 150, 200, 250),
+        {"pressure": "bar", "flow": "L/min", "power": "kW", "speed": "rpm", "viscosity": "mm^2/s"},
+        "input power",
+    ),
+    _Pump(
+        "quillfeather-qf-175.xlsx",
+        {**_identity("Quillfeather Fluid Power", "QF-175", "inch-pound catalogue, invented"),
+         "displacement": (1.75, "in^3/rev"), "speed_min": (600, "rpm"), "speed_max": (3400, "rpm"),
+         "speed_rated": (1800, "rpm"), "pressure_continuous": (3200, "psi"), "pressure_intermittent": (3700, "psi"),
+         "intermittent_max_duration": (10, "s"), "intermittent_max_share": (10, "%"),
+         "pressure_peak": (4000, "psi"), "inlet_pressure_min": (11.6, "psia"), "inlet_pressure_max": (44, "psia"),
+         "viscosity_min": (10, "cSt"), "viscosity_max": (400, "cSt"), "viscosity_min_short": (7, "cSt"),
+         "viscosity_max_cold_start": (1600, "cSt"), "temperature_min": (-4, "degF"),
+         "temperature_max": (180, "degF"), "cleanliness": ("18/16/13",), "rotation": ("clockwise",),
+         "torque_max": (110, "lbf*ft"), "teeth": (11,), "price": (495,), "mass": (14.5, "lb"), "noise": (68,)},
+        WilsonModel(28.68e-6, c_s=1.5e-8, c_f=0.05, c_v=1.1e5, t_c=1.2),
+        (1800.0,), (32.0,), (150, 750, 1500, 2250, 3000, 3600),
+        {"pressure": "psi", "flow": "gpm", "power": "hp", "speed": "rpm", "viscosity": "cSt"},
+        "input power",
+    ),
+    _Pump(
+        "orrin-og-22.xlsx",
+        {**_identity("Orrin Gearworks", "OG-22", "price list 2026, invented"),
+         "displacement": (22.0, "cm^3/rev"), "speed_min": (600, "rpm"), "speed_max": (3000, "rpm"),
+         "pressure_continuous": (250, "bar"), "pressure_intermittent": (270, "bar"),
+         "intermittent_max_duration": (20, "s"), "intermittent_max_share": (25, "%"), "pressure_peak": (290, "bar"),
+         "inlet_pressure_min": (0.8, "bara"), "viscosity_min": (10, "mm^2/s"), "viscosity_max": (250, "mm^2/s"),
+         "viscosity_min_short": (8, "mm^2/s"), "viscosity_max_cold_start": (800, "mm^2/s"),
+         "temperature_min": (-15, "degC"), "temperature_max": (80, "degC"), "cleanliness": ("18/16/13",),
+         "rotation": ("clockwise",), "teeth": (10,), "price": (310,), "mass": (4.9, "kg"), "noise": (70,)},
+        WilsonModel(22e-6, c_s=1.6e-8, c_f=0.05, c_v=1.0e5, t_c=0.8),
+        (1500.0,), (32.0,), (10, 50, 100, 150, 200, 250),
+        {"pressure": "bar", "flow": "L/min", "power": "kW", "speed": "rpm", "viscosity": "mm^2/s"},
+        "input power",
+    ),
+    _Pump(
+        "sandlow-sl-32.xlsx",
+        {**_identity("Sandlow Pumpen", "SL-32", "data sheet rev. C, invented"),
+         "displacement": (32.0, "cm^3/rev"), "speed_min": (400, "rpm"), "speed_max": (2800, "rpm"),
+         "speed_rated": (1500, "rpm"), "pressure_continuous": (250, "bar"), "pressure_intermittent": (280, "bar"),
+         "intermittent_max_duration": (20, "s"), "intermittent_max_share": (20, "%"), "pressure_peak": (300, "bar"),
+         "inlet_pressure_min": (0.7, "bara"), "viscosity_min": (12, "mm^2/s"), "viscosity_max": (300, "mm^2/s"),
+         "viscosity_min_short": (8, "mm^2/s"), "viscosity_max_cold_start": (1000, "mm^2/s"),
+         "temperature_min": (-20, "degC"), "temperature_max": (90, "degC"), "cleanliness": ("20/18/15",),
+         "rotation": ("either",), "torque_max": (220, "N*m"), "teeth": (13,), "price": (780,), "mass": (8.1, "kg"),
+         "noise": (64,)},
+        WilsonModel(32e-6, c_s=1.1e-8, c_f=0.05, c_v=1.0e5, t_c=1.1),
+        (1500.0,), (32.0,), (10, 50, 100, 150, 200, 250, 280),
+        {"pressure": "bar", "flow": "L/min", "torque": "N*m", "speed": "rpm", "viscosity": "mm^2/s"},
+        "torque",
+    ),
+)
+
+
+def _table(pump: _Pump) -> tuple[list[str], list[list[Any]]]:
+    """The performance table: header texts and rows, rounded as a printed datasheet would be."""
+    u = pump.units
+    headers = [f"pressure [{u['pressure']}]", f"flow [{u['flow']}]",
+               f"input power [{u['power']}]" if "power" in u else "input power [kW]",
+               f"torque [{u['torque']}]" if "torque" in u else "torque [N*m]",
+               f"speed [{u['speed']}]", f"viscosity [{u['viscosity']}]"]
+    rows: list[list[Any]] = []
+    for nu_cst in pump.viscosities_cst:
+        mu = nu_cst * 1e-6 * 870.0  # the supplier's test oil, 870 kg/m³ (invented)
+        for n_rpm in pump.speeds_rpm:
+            for p in pump.pressures:
+                p_si = float(to_si(f"{p} {u['pressure']}", PRESSURE, "pressure"))
+                pred = pump.model.predict(n_rpm / 60.0, p_si, mu)
+                flow = round(float(from_si(float(pred.flow), FLOW, u["flow"])), 2)
+                if pump.power_column == "input power":
+                    power = round(float(from_si(float(pred.input_power), POWER, u["power"])), 2)
+                    rows.append([p, flow, power, None, n_rpm, nu_cst])
+                else:
+                    torque = round(float(from_si(float(pred.torque), TORQUE, u["torque"])), 1)
+                    rows.append([p, flow, None, torque, n_rpm, nu_cst])
+    return headers, rows
+
+
+def write_inputs(folder: str | os.PathLike[str]) -> list[Path]:
+    """Write the demo's application and datasheet workbooks into ``folder``; returns their paths."""
+    from .workbooks.templates import DUTY_COLUMNS, write_template
+
+    folder = Path(folder)
+    folder.mkdir(parents=True, exist_ok=True)
+    paths = [write_template("application", folder / APPLICATION_FILE, MACHINE, DUTY,
+                            [c.header for c in DUTY_COLUMNS])]
+    for pump in PUMPS:
+        headers, rows = _table(pump)
+        paths.append(write_template("datasheet", folder / pump.file, pump.values, rows, headers))
+    return paths
+
+
+@dataclass(frozen=True)
+class DemoResult:
+    """Where the demo wrote its files."""
+
+    folder: Path
+    inputs: list[Path]
+    comparison: Path
+    report: Path
+    verdicts: dict[str, str]
+
+
+def _new_folder(base: Path) -> Path:
+    candidate, n = base, 1
+    while candidate.exists():
+        n += 1
+        candidate = base.with_name(f"{base.name}-{n}")
+    return candidate
+
+
+def run(folder: str | os.PathLike[str] | None = None) -> DemoResult:
+    """Write the demo inputs, check every pump and write the comparison and a report into ``folder``.
+
+    Without ``folder`` a new folder ``sheetpump-demo`` (or ``-2``, ``-3`` …) in the current directory.
+    """
+    from .cli.compare import build
+    from .files import atomic_write
+    from .report import text_report
+
+    out = Path(folder) if folder is not None else _new_folder(Path.cwd() / "sheetpump-demo")
+    inputs = write_inputs(out / "inputs")
+    comparison = out / "comparison.xlsx"
+    comp = build(str(inputs[0]), [str(p) for p in inputs[1:]], str(comparison))
+    results = [c.result for c in comp.candidates]
+    report = out / "report.txt"
+    text = text_report(results, strict=False)
+    if SAFETY_CAUTION not in text:
+        text += "\n" + SAFETY_CAUTION + "\n"
+    atomic_write(report, text)
+    return DemoResult(out, inputs, comparison, report,
+                      {c.datasheet.label: c.result.verdict for c in comp.candidates})
+
