@@ -84,8 +84,8 @@ def _candidate(result: CheckResult, app: Application) -> Candidate:
     notes: list[str] = []
     try:
         motor = drive.select_motor(fig.rms_power, max(fig.peak_power, fig.rms_power), app.motor_standard)
-        motor_note = (f"RMS {motor.rms_load:.0%}, peak {motor.peak_load:.0%} of rating "
-                      f"(peak allowed {motor.overload_factor:.0%})")
+        motor_note = (f"RMS {motor.rms_load:.0%}, peak {motor.peak_load:.0%} "
+                      f"(≤ {motor.overload_factor:.0%} allowed)")
         efficiency = motor.efficiency
     except PhysicsError as exc:
         motor, efficiency = None, math.nan

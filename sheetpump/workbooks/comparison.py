@@ -221,6 +221,7 @@ def _summary(book: Any, comp: Comparison, units: str, duty_refs: list[dict[str, 
     sheet.write_string(row, 0, "candidate", f["header"])
     for c, cand in enumerate(cands, start=1):
         sheet.write_string(row, c, cand.datasheet.label, f["header"])
+    sheet.set_row(row, 32)
     row += 1
 
     def line(label: str, values: Sequence[Any], styles: Sequence[str | None] | str | None = None) -> None:
@@ -274,7 +275,7 @@ def _summary(book: Any, comp: Comparison, units: str, duty_refs: list[dict[str, 
         row += 1
     line("motor chosen", [c.motor.label if c.motor else "none" for c in cands],
          [None if c.motor else "fail" for c in cands])
-    line("motor sizing", [c.motor_note for c in cands])
+    line("motor load (of its rating)", [c.motor_note for c in cands])
     line("motor full-load efficiency", [c.motor.efficiency if c.motor else None for c in cands], "pct")
     line("electrical energy per cycle [kWh]", [c.electrical_energy_per_cycle / 3.6e6 for c in cands], "n3")
     line("electrical energy per year [kWh]", [c.electrical_energy_per_year / 3.6e6 for c in cands], "n0")
@@ -283,7 +284,7 @@ def _summary(book: Any, comp: Comparison, units: str, duty_refs: list[dict[str, 
     line("rank (passing candidates, by cost over the period)", [c.rank if c.rank else "not ranked" for c in cands])
     line("notes", ["; ".join(c.notes) for c in cands])
     sheet.set_column(0, 0, 75)
-    sheet.set_column(1, max(len(cands), 2), 30)
+    sheet.set_column(1, max(len(cands), 2), 36)
     sheet.freeze_panes(8, 1)
 
 
