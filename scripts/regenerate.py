@@ -15,7 +15,7 @@ ROOT = Path(__file__).resolve().parents[1]
 sys.path.insert(0, str(ROOT))
 
 from sheetpump import demo  # noqa: E402
-from sheetpump.cli.functions import markdown  # noqa: E402
+from sheetpump.cli import functions, rules  # noqa: E402
 from sheetpump.workbooks.example import write_worked_example  # noqa: E402
 from sheetpump.workbooks.templates import write_template  # noqa: E402
 
@@ -28,10 +28,10 @@ GENERATED = {
 
 def update_readme() -> None:
     readme = ROOT / "README.md"
-    text = readme.read_text(encoding="utf-8")
-    table = markdown()
-    new = re.sub(r"(<!-- functions:start -->\n).*?(\n<!-- functions:end -->)",
-                 lambda m: m.group(1) + table + m.group(2), text, flags=re.S)
+    text = new = readme.read_text(encoding="utf-8")
+    for block, table in (("functions", functions.markdown()), ("rules", rules.markdown())):
+        new = re.sub(rf"(<!-- {block}:start -->\n).*?(\n<!-- {block}:end -->)",
+                     lambda m, t=table: m.group(1) + t + m.group(2), new, flags=re.S)
     if new != text:
         readme.write_text(new, encoding="utf-8")
     print("README.md")

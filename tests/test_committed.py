@@ -10,6 +10,7 @@ import pytest
 
 from sheetpump.catalogue import CATALOGUE
 from sheetpump.cli.functions import markdown
+from sheetpump.cli.rules import markdown as rules_markdown
 from sheetpump.workbooks.example import EXAMPLE_SHEET, write_worked_example
 
 ROOT = Path(__file__).resolve().parents[1]
@@ -23,7 +24,12 @@ def _block(text: str, name: str) -> str:
 
 def test_readme_function_list_matches_declarations():
     readme = (ROOT / "README.md").read_text(encoding="utf-8")
-    assert _block(readme, "functions") == markdown(), "run: sheetpump functions --markdown, paste into README"
+    assert _block(readme, "functions") == markdown(), "run scripts/regenerate.py"
+
+
+def test_readme_rule_list_matches_the_checker():
+    readme = (ROOT / "README.md").read_text(encoding="utf-8")
+    assert _block(readme, "rules") == rules_markdown(), "run scripts/regenerate.py"
 
 
 def _cells(path: Path, data_only: bool) -> dict:

@@ -19,14 +19,17 @@ from .check import _read, _read_application, _read_datasheet
 EXIT_OK, EXIT_FAIL = 0, 1
 
 
-def datasheet_paths(items: list[str]) -> list[str]:
-    """Expand folders into their ``.xlsx`` files (sorted; Excel's ``~$`` lock files left out)."""
+def datasheet_paths(items: list[str], app: str | None = None) -> list[str]:
+    """Expand folders into their ``.xlsx`` files (sorted; Excel's ``~$`` lock files and the application
+    workbook ``app`` left out)."""
     paths: list[str] = []
+    skip = Path(app).resolve() if app else None
     for item in items:
         p = Path(item)
         if p.is_dir():
             found = sorted(str(x) for x in p.iterdir()
-                           if x.suffix.lower() in (".xlsx", ".xlsm") and not x.name.startswith(("~$", ".")))
+                           if x.suffix.lower() in (".xlsx", ".xlsm") and not x.name.startswith(("~$", "."))
+                           and x.resolve() != skip)
             if not found:
                 raise InputError("folder holds no .xlsx datasheets", Where(file=item))
             paths.extend(found)
@@ -58,7 +61,7 @@ def build(app_path: str, datasheets: list[str], out: str, units: str = "metric",
     from ..workbooks.comparison import write_comparison
 
     app = _read(_read_application, app_path, "application workbook")
-    paths = datasheet_paths(datasheets)
+    paths = datasheet_paths(datasheets, app_path)
     progress = _Progress(len(paths))
     sheets = []
     for i, path in enumerate(paths, start=1):

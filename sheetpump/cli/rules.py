@@ -1,0 +1,31 @@
+"""``sheetpump rules``: list the checker's rules by their stable ids (``--markdown`` for the README)."""
+
+from __future__ import annotations
+
+import argparse
+
+from ..checks import RULES
+
+
+def markdown() -> str:
+    """The rule table of the README (kept in sync with the checker by a test)."""
+    lines = ["| rule id | what it checks |", "| --- | --- |"]
+    lines += [f"| `{rule}` | {text} |" for rule, text in RULES.items()]
+    return "\n".join(lines)
+
+
+def run(args: argparse.Namespace) -> int:
+    if args.markdown:
+        print(markdown())
+    else:
+        width = max(len(r) for r in RULES)
+        for rule, text in RULES.items():
+            print(f"{rule:<{width}}  {text}")
+    return 0
+
+
+def register(sub: argparse._SubParsersAction) -> argparse.ArgumentParser:
+    parser = sub.add_parser("rules", help="list the checker's rules by their ids")
+    parser.add_argument("--markdown", action="store_true", help="print the table used in the README")
+    parser.set_defaults(run=run)
+    return parser
