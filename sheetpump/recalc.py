@@ -263,10 +263,27 @@ def _split_ref(ref: str) -> tuple[int, int]:
     m = _REF_RE.match(ref)
     if not m:
         raise ValueError(ref)
-    col = 0
-    for ch in m.group(1).upper():
-        col = col * 26 + ord(ch) - 64
+    letters = m.group(1)
+    col = _COLUMNS.get(letters)
+    if col is None:
+        col = 0
+        for ch in letters.upper():
+            col = col * 26 + ord(ch) - 64
+        _COLUMNS[letters] = col
     return int(m.group(2)), col
+
+
+_COLUMNS: dict[str, int] = {}  # column letters -> number, filled as met
+_R_ATTR_RE = re.compile(r"""(?:^|\s)r\s*=\s*(?:"([^"]*)"|'([^']*)')""")
+
+
+def _cell_ref(attrs: str) -> str | None:
+    """The ``r`` attribute of a cell's attribute text (what ``_attrs(attrs).get("r")`` gives, faster)."""
+    m = _R_ATTR_RE.search(attrs)
+    if m is None:
+        return None
+    ref = m.group(1) if m.group(1) is not None else m.group(2)
+    return html.unescape(ref) if "&" in ref else ref
 
 
 def _column_letters(col: int) -> str:
@@ -507,13 +524,17 @@ def _engine_key_index(keys: Iterable[Any], filename: str) -> dict[tuple[str, str
     return index
 
 
-def recalculate(path: str | os.PathLike[str]) -> Recalculation:
+def recalculate(path: str | os.PathLike[str], *, engine: str = "auto") -> Recalculation:
     """Compute every formula of a workbook; never modifies it.
 
     Parameters
     ----------
     path : str or path-like
         An .xlsx (or .xlsm) workbook.
+    engine : {"auto", "formulas"}
+        ``"auto"`` computes with the fast column-at-a-time path of :mod:`sheetpump.recalc_fast` when
+        every formula is in its subset and with the ``formulas`` engine otherwise; ``"formulas"``
+        always uses the engine (the reference the fast path is tested against).
 
     Returns
     -------
@@ -527,12 +548,21 @@ def recalculate(path: str | os.PathLike[str]) -> Recalculation:
     InputError
         When the file cannot be read as a workbook.
     """
-    import formulas
-    from formulas.excel import ERR_CIRCULAR
-
     path = Path(path)
     if not path.is_file():
         raise InputError("no such workbook", Where(file=str(path)))
+    if engine not in ("auto", "formulas"):
+        raise ValueError(f"engine must be 'auto' or 'formulas', not {engine!r}")
+    if engine == "auto":
+        from .recalc_fast import recalculate_fast
+
+        fast = recalculate_fast(path)
+        if fast is not None:
+            return fast
+
+    import formulas
+    from formulas.excel import ERR_CIRCULAR
+
     sheets = _scan(path)
     result = Recalculation(path=path)
     for sheet in sheets:
@@ -712,9 +742,14 @@ def _value_xml(prefix: str, value: Any) -> tuple[str | None, str]:
     return "str", f"<{prefix}v>{escape(str(value))}</{prefix}v>"
 
 
+@functools.cache
+def _attr_pattern(name: str) -> re.Pattern[str]:
+    return re.compile(rf"""\s{re.escape(name)}\s*=\s*(?:"[^"]*"|'[^']*')""")
+
+
 def _set_attr(attrs: str, name: str, value: str | None) -> str:
-    pattern = re.compile(rf"""\s{re.escape(name)}\s*=\s*(?:"[^"]*"|'[^']*')""")
-    attrs = pattern.sub("", attrs)
+    if name in attrs:
+        attrs = _attr_pattern(name).sub("", attrs)
     if value is not None:
         attrs = f'{attrs} {name}="{value}"'
     return attrs
@@ -723,8 +758,9 @@ def _set_attr(attrs: str, name: str, value: str | None) -> str:
 def _cell_xml(prefix: str, attrs: str, inner: str, value: Any) -> str:
     kind, v = _value_xml(prefix, value)
     attrs = _set_attr(attrs.rstrip(), "t", kind)
-    f = _F_RE.search(inner)
-    ext = re.search(rf"<{re.escape(prefix)}extLst\b.*?</{re.escape(prefix)}extLst>", inner, re.S)
+    f = _F_RE.search(inner) if inner else None
+    ext = (re.search(rf"<{re.escape(prefix)}extLst\b.*?</{re.escape(prefix)}extLst>", inner, re.S)
+           if "extLst" in inner else None)
     body = (f.group(0) if f else "") + v + (ext.group(0) if ext else "")
     return f"<{prefix}c{attrs}>{body}</{prefix}c>"
 
@@ -737,6 +773,8 @@ def _patch_rows(text: str, prefix: str, values: dict[str, Any]) -> str:
         by_row.setdefault(r, {})[c] = ref
     out: list[str] = []
     pos = 0
+    pending = sorted(by_row)  # row numbers still to place, ascending (one pass: linear in the rows)
+    next_pending = 0
     for m in _ROW_RE.finditer(text):
         out.append(text[pos:m.start()])
         pos = m.end()
@@ -746,8 +784,11 @@ def _patch_rows(text: str, prefix: str, values: dict[str, Any]) -> str:
             out.append(m.group(0))
             continue
         # rows the file lacks but an array formula covers go before this one, in order
-        for missing in sorted(r for r in by_row if r < number):
-            out.append(_new_row(prefix, missing, by_row.pop(missing), values))
+        while next_pending < len(pending) and pending[next_pending] < number:
+            missing = pending[next_pending]
+            next_pending += 1
+            if missing in by_row:
+                out.append(_new_row(prefix, missing, by_row.pop(missing), values))
         wanted = by_row.pop(number, None)
         out.append(_patched_row(m, number, wanted, values) if wanted else m.group(0))
     out.append(text[pos:])
@@ -766,11 +807,17 @@ def _patched_row(m: re.Match[str], number: int, wanted: dict[int, str], values: 
     pieces: list[str] = []
     pos = 0
     inserted = False
+    order = sorted(wanted)  # columns still to place, ascending (one pass over the row)
+    k = 0
     for cm in _CELL_RE.finditer(body):
-        ref = _attrs(cm.group(2)).get("r")
+        ref = _cell_ref(cm.group(2))
         col = _split_ref(ref)[1] if ref else None
         if col is not None:
-            for c in sorted(c for c in wanted if c < col):
+            while k < len(order) and order[k] < col:
+                c = order[k]
+                k += 1
+                if c not in wanted:
+                    continue
                 pieces.append(body[pos:cm.start()])
                 pos = cm.start()
                 pieces.append(_cell_xml(prefix, f' r="{wanted.pop(c)}"', "", values[_ref(c, number)]))
@@ -799,12 +846,29 @@ def _ref(col: int, row: int) -> str:
     return f"{_column_letters(col)}{row}"
 
 
+def _patch_cells(text: str, values: dict[str, Any]) -> str | None:
+    """Set the values of existing cells in one pass; None when some cell of ``values`` is not in the file."""
+    seen: set[str] = set()
+
+    def patch(cm: re.Match[str]) -> str:
+        ref = _cell_ref(cm.group(2))
+        if ref is None or ref not in values:
+            return cm.group(0)
+        seen.add(ref)
+        return _cell_xml(cm.group(1), cm.group(2), cm.group(3) or "", values[ref])
+
+    patched = _CELL_RE.sub(patch, text)
+    return patched if len(seen) == len(values) else None
+
+
 def _patch_sheet(text: str, values: dict[str, Any]) -> str:
     m = _SHEETDATA_RE.search(text)
     if not m or not values:
         return text
     prefix, attrs, body = m.group(1), m.group(2), m.group(3) or ""
-    patched = _patch_rows(body, prefix, values)
+    patched = _patch_cells(body, values)
+    if patched is None:  # some cells must be added: row by row
+        patched = _patch_rows(body, prefix, values)
     return f"{text[:m.start()]}<{prefix}sheetData{attrs}>{patched}</{prefix}sheetData>{text[m.end():]}"
 
 
