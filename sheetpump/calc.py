@@ -30,9 +30,11 @@ import numpy as np
 
 from .errors import InputError, Where
 from .physics.pump import PhysicsError
-from .units import Kind, from_si, to_si, unit_factor
+from .units import Kind, all_finite, to_si, unit_factor
 
 __all__ = ["ERROR_PREFIX", "Arg", "Calculation", "Registry"]
+
+_isfinite = math.isfinite
 
 #: Every error text a cell function returns starts with this, so a sheet can test for it.
 ERROR_PREFIX = "#SP! "
@@ -115,9 +117,17 @@ class Calculation:
     category: str = "sheetpump"
     _defaults: tuple[float | None, ...] = field(init=False, repr=False, compare=False)
     _physics_names: list[str] = field(init=False, repr=False, compare=False)
+    #: Per argument, the factor from its default unit to SI when a bare number needs nothing else (no
+    #: offset, not a choice), else None: a number in a cell then costs one multiply and no lookup.
+    _factors: tuple[float | None, ...] = field(init=False, repr=False, compare=False)
+    _result_default: tuple[float, float] = field(init=False, repr=False, compare=False)
 
     def __post_init__(self) -> None:
         object.__setattr__(self, "_defaults", tuple(a.default_si for a in self.args))
+        object.__setattr__(self, "_factors", tuple(
+            None if isinstance(a.kind, Choice) or a.kind.offset else unit_factor(a.kind.default, a.kind)[0]
+            for a in self.args))
+        object.__setattr__(self, "_result_default", unit_factor(self.result.default, self.result))
         optional = [a.default is not None for a in self.args]
         if optional != sorted(optional):
             raise ValueError(f"{self.name}: a required argument follows an optional one")
@@ -155,17 +165,78 @@ class Calculation:
     # -- Python-side evaluation -------------------------------------------------------------------
     def si(self, *values: Any) -> float | np.ndarray:
         """Convert cell values to SI and compute; raises :class:`InputError` or ``PhysicsError``."""
-        n = len(self.args)
+        if len(values) > len(self.args):
+            raise InputError(f"{self.name} takes at most {len(self.args)} arguments and a result unit")
+        return self._compute(values, si=True)
+
+    def _argument(self, i: int, value: Any) -> Any:
+        a = self.args[i]
+        if isinstance(a.kind, Choice):
+            return a.kind.pick(value, a.name)
+        return to_si(value, a.kind, a.name, self._defaults[i])
+
+    def _result_conversion(self, unit: Any) -> tuple[float, float]:
+        """``(factor, offset)`` from SI to the asked result unit (``None``, blank or NaN: the default)."""
+        if unit is None:
+            return self._result_default
+        if not isinstance(unit, str):
+            if isinstance(unit, float) and math.isnan(unit):  # an empty cell through a numpy range
+                return self._result_default
+            raise InputError(f"{unit!r} is not a unit name", hint=f"write e.g. {self.result.default!r}")
+        if not unit.strip():
+            return self._result_default
+        try:
+            return unit_factor(unit, self.result)
+        except InputError as exc:
+            raise exc.at(field="unit") from None
+
+    def evaluate(self, *values: Any) -> float | np.ndarray:
+        """Compute as a cell does, but raise on bad input and give numpy arrays for ranges.
+
+        The arguments are those of :meth:`cell`: the calculation's arguments, then optionally the
+        result unit. A number in, a float out; a range in (nested lists, a numpy array, or a pint
+        Quantity array of :data:`sheetpump.units.ureg`), a numpy array of the broadcast shape out.
+        This is the numerical path of every cell: :meth:`cell` adds only the error texts and the
+        conversion of an array to the 2-D list a spreadsheet spills.
+
+        Raises :class:`InputError` (also for a result that is not finite), ``PhysicsError``, or
+        ``ValueError`` for ranges whose shapes cannot be combined.
+
+        >>> from sheetpump.catalogue import CATALOGUE
+        >>> CATALOGUE["SP_HYDRAULIC_POWER"].evaluate(np.array([100.0, 200.0]), 60, "hp")
+        array([13.41..., 26.82...])
+        """
+        return self._compute(values)
+
+    def _compute(self, values: tuple[Any, ...], si: bool = False) -> float | np.ndarray:
+        """Cell values (and an optional result unit) to the result; ``si``: the SI result as it comes."""
+        factors = self._factors
+        n = len(factors)
         if len(values) > n:
-            raise InputError(f"{self.name} takes at most {n} arguments and a result unit")
+            factor, offset = self._result_conversion(values[n])  # a bad unit is reported first
+            values = values[:n]
+        else:
+            factor, offset = self._result_default
         converted = []
-        for i, a in enumerate(self.args):
-            value = values[i] if i < len(values) else None
-            if isinstance(a.kind, Choice):
-                converted.append(a.kind.pick(value, a.name))
+        for i, (value, f) in enumerate(zip(values, factors, strict=False)):  # missing ones below
+            tv = type(value)
+            if (tv is float or tv is int) and f is not None and _isfinite(value):
+                converted.append(value * f)  # the common case: a bare number in the default unit
             else:
-                converted.append(to_si(value, a.kind, a.name, self._defaults[i]))
-        return self.func(*converted)
+                converted.append(self._argument(i, value))
+        for i in range(len(values), n):
+            converted.append(self._argument(i, None))  # an argument not given is an empty cell
+        result = self.func(*converted)
+        if si:
+            return result
+        if type(result) is float:  # inline: the scalar path is a handful of operations
+            out = (result - offset) / factor if offset else result / factor
+            if _isfinite(out):
+                return out
+            raise _not_finite()
+        if not isinstance(result, np.ndarray) or result.ndim == 0:
+            return _scalar_result(float(result), factor, offset)
+        return _array_result(result, factor, offset, values)
 
     def cell(self, *values: Any) -> float | list[list[Any]] | str:
         """Evaluate as a spreadsheet cell does: never raises.
@@ -174,33 +245,17 @@ class Calculation:
         (nested lists or an array) gives a 2-D list of the broadcast shape; single cells give a number.
         Errors come back as text starting with :data:`ERROR_PREFIX`.
         """
-        n = len(self.args)
-        unit = None
-        if len(values) > n:
-            unit = values[n]
-            values = values[:n]
         try:
-            if unit is not None and not isinstance(unit, str):
-                if isinstance(unit, float) and math.isnan(unit):
-                    unit = None
-                else:
-                    raise InputError(f"{unit!r} is not a unit name", hint=f"write e.g. {self.result.default!r}")
-            if unit is not None and not unit.strip():
-                unit = None
-            if unit is not None:
-                try:
-                    unit_factor(unit, self.result)
-                except InputError as exc:
-                    raise exc.at(field="unit") from None
-            result = self.si(*values)
-            out = from_si(result, self.result, unit)
+            out = self._compute(values)
         except InputError as exc:
             return ERROR_PREFIX + _cell_text(exc)
         except PhysicsError as exc:
             return f"{ERROR_PREFIX}{self._cell_argument(exc.argument)}: {exc.reason}"
         except (ValueError, TypeError, ArithmeticError) as exc:  # broadcasting and other numpy misuse
             return f"{ERROR_PREFIX}{self.name}: {_plain(exc)}"
-        return _finish(out)
+        if type(out) is float:
+            return out
+        return (out.reshape(1, -1) if out.ndim == 1 else out).tolist()
 
     def __call__(self, *values: Any) -> float | list[list[Any]] | str:
         return self.cell(*values)
@@ -222,20 +277,35 @@ def _plain(exc: Exception) -> str:
     return text.split("\n")[0][:120]
 
 
-def _finish(out: float | np.ndarray) -> float | list[list[Any]] | str:
-    if isinstance(out, np.ndarray):
-        if out.ndim == 0:
-            out = float(out)
-        else:
-            if not np.isfinite(out).all():
-                return ERROR_PREFIX + "result is not a finite number (check for zero or huge inputs)"
-            if out.ndim == 1:
-                out = out.reshape(1, -1)
-            return out.tolist()
-    out = float(out)
-    if not math.isfinite(out):
-        return ERROR_PREFIX + "result is not a finite number (check for zero or huge inputs)"
+def _not_finite() -> InputError:
+    return InputError("result is not a finite number", hint="check for zero or huge inputs")
+
+
+def _scalar_result(result: float, factor: float, offset: float) -> float:
+    out = (result - offset) / factor if offset else result / factor
+    if not _isfinite(out):
+        raise _not_finite()
     return out
+
+
+def _array_result(result: np.ndarray, factor: float, offset: float, values: tuple[Any, ...]) -> np.ndarray:
+    """The physics' array result in the asked unit, checked finite.
+
+    A result array that the physics made (not a view, not sharing memory with an argument) is ours, so
+    the unit conversion is done in place: one pass and no new array.
+    """
+    if factor != 1.0 or offset:
+        arguments = [getattr(v, "magnitude", v) for v in values]  # a Quantity's values are the caller's too
+        own = result.flags.owndata and result.flags.writeable and not any(
+            isinstance(v, np.ndarray) and np.may_share_memory(result, v) for v in arguments)
+        if not own or result.dtype != np.float64:
+            result = np.array(result, dtype=float)
+        if offset:
+            result -= offset
+        result /= factor
+    if not all_finite(result):
+        raise _not_finite()
+    return result
 
 
 class Registry(dict[str, Calculation]):

@@ -47,7 +47,9 @@ def cell_function(calc: Calculation) -> Callable[..., Any]:
     """
 
     def function(*values: Any) -> Any:
-        return calc.cell(*(_unwrap(v) for v in values))
+        if list in map(type, values):  # checked in C: single numbers pass straight through
+            values = tuple(_unwrap(v) for v in values)
+        return calc.cell(*values)
 
     params = [
         inspect.Parameter(a.name, inspect.Parameter.POSITIONAL_OR_KEYWORD,

@@ -41,7 +41,9 @@ from .errors import InputError, Where
 __all__ = [
     "KINDS",
     "Kind",
+    "all_finite",
     "check_unit",
+    "default_factor",
     "from_si",
     "to_si",
     "unit_factor",
@@ -69,12 +71,14 @@ _GAUGE_UNITS = ("barg", "psig", "kPag")
 _ABSOLUTE_UNITS = ("bara", "psia", "kPaa")
 
 
-@dataclass(frozen=True)
+@dataclass(frozen=True, eq=False)
 class Kind:
     """A kind of quantity as a cell sees it.
 
     ``default`` is the unit a bare number is taken in; ``si`` the unit of the number inside;
     ``angle`` is -1 for "per revolution" kinds, +1 for "revolutions per time", 0 otherwise.
+    There is one object per kind (the constants below, listed in :data:`KINDS`), compared by identity:
+    a kind keys the unit caches on every cell call, and an identity hash costs nothing.
     """
 
     name: str
@@ -87,6 +91,13 @@ class Kind:
 
     def __repr__(self) -> str:
         return f"Kind({self.name!r})"
+
+    def __reduce__(self) -> tuple[Any, tuple[str]]:
+        return _kind_named, (self.name,)  # unpickles as the one object of that kind
+
+
+def _kind_named(name: str) -> Kind:
+    return KINDS[name]
 
 
 DISPLACEMENT = Kind("displacement", "cm^3/rev", "m^3/rev", "28 cm^3/rev", angle=-1)
@@ -236,19 +247,16 @@ def _scalar_to_si(value: Any, kind: Kind, name: str, default: float | None) -> f
             raise InputError(f"{value!r} is not a finite number", Where(field=name))
         if kind.offset:
             return value + 273.15
-        f = _DEFAULT_FACTORS.get(kind)
-        if f is None:
-            f = _DEFAULT_FACTORS[kind] = unit_factor(kind.default, kind)[0]
-        return value * f
-    if value is None or (tv is str and not value.strip()):
+        return value * default_factor(kind)
+    if tv is str and (text := value.strip()):
+        try:
+            return _parse_text(text, kind)
+        except InputError as exc:
+            raise exc.at(field=name) from None
+    if value is None or tv is str:
         if default is not None:
             return default
         raise InputError("missing (empty cell)", Where(field=name), f"give a {kind.name}, e.g. {kind.example!r}")
-    if tv is str:
-        try:
-            return _parse_text(value.strip(), kind)
-        except InputError as exc:
-            raise exc.at(field=name) from None
     if tv is bool or isinstance(value, (bool, np.bool_)):
         raise InputError(f"{value!r} is a true/false value, not a {kind.name}", Where(field=name))
     if isinstance(value, (_dt.date, _dt.datetime, _dt.time, _dt.timedelta)):
@@ -257,12 +265,62 @@ def _scalar_to_si(value: Any, kind: Kind, name: str, default: float | None) -> f
     if isinstance(value, (np.floating, np.integer)):
         return _scalar_to_si(float(value), kind, name, default)
     if isinstance(value, pint.Quantity):
-        unit = f"{value.units:~}"
-        return _scalar_to_si(f"{value.magnitude} {unit}", kind, name, default)
+        return _quantity_to_si(value, kind, name)
     raise InputError(f"cannot use a {type(value).__name__} as a {kind.name}", Where(field=name))
 
 
 _DEFAULT_FACTORS: dict[Kind, float] = {}
+
+
+def default_factor(kind: Kind) -> float:
+    """The factor from ``kind.default`` to SI (cached; offset kinds are all in degC here)."""
+    f = _DEFAULT_FACTORS.get(kind)
+    if f is None:
+        f = _DEFAULT_FACTORS[kind] = unit_factor(kind.default, kind)[0]
+    return f
+
+
+def all_finite(arr: np.ndarray) -> bool:
+    """Whether every element of a float array is finite, in one pass without a temporary array.
+
+    A NaN or an infinity anywhere makes the sum non-finite, so a finite sum proves every element
+    finite; only a sum that overflows (huge finite values) needs the exact element-wise test.
+
+    >>> all_finite(np.array([1.0, 2.0])), all_finite(np.array([1.0, np.nan])), all_finite(np.array([1e308] * 2))
+    (True, False, True)
+    """
+    with np.errstate(over="ignore", invalid="ignore"):
+        total = arr.sum()
+    return math.isfinite(total) or bool(np.isfinite(arr).all())
+
+
+def _array_to_si(arr: np.ndarray, factor: float, offset: float, name: str) -> np.ndarray:
+    """A float array times ``factor`` plus ``offset``; the caller's array is never modified.
+
+    With factor 1 and no offset the array itself is returned, not a copy: physics never writes to its
+    arguments. One pass for the finiteness check, one for the conversion.
+    """
+    if not all_finite(arr):
+        bad = tuple(int(i) for i in np.argwhere(~np.isfinite(arr))[0])
+        raise InputError("not a finite number", Where(field=f"{name}{list(bad)}"))
+    if factor != 1.0:
+        out = arr * factor
+        if offset:
+            out += offset  # our own new array
+        return out
+    return arr + offset if offset else arr
+
+
+def _quantity_to_si(value: pint.Quantity, kind: Kind, name: str) -> float | np.ndarray:
+    """A pint Quantity of this registry (a number or an array with one unit) in SI."""
+    factor, offset = check_unit(f"{value.units:~}", kind, name)
+    magnitude = value.magnitude
+    if isinstance(magnitude, np.ndarray) and magnitude.ndim and magnitude.dtype.kind in "fiu":
+        return _array_to_si(magnitude.astype(float, copy=False), factor, offset, name)
+    number = float(magnitude)
+    if not math.isfinite(number):
+        raise InputError(f"{number!r} is not a finite number", Where(field=name))
+    return number * factor + offset
 
 
 def to_si(value: Any, kind: Kind, name: str, default: float | None = None) -> float | np.ndarray:
@@ -270,9 +328,10 @@ def to_si(value: Any, kind: Kind, name: str, default: float | None = None) -> fl
 
     Parameters
     ----------
-    value : float, int, str, None, sequence or numpy array
+    value : float, int, str, None, sequence, numpy array or pint Quantity
         A bare number (taken in ``kind.default``), a string with a unit (``"3000 psi"``), an empty
-        cell (``None`` or ``""``), or a range of such values (nested lists or an array).
+        cell (``None`` or ``""``), a range of such values (nested lists or an array), or a Quantity
+        of :data:`ureg` (a number or a whole array with one unit: converted with one factor).
     kind : Kind
         The kind of quantity expected.
     name : str
@@ -295,21 +354,17 @@ def to_si(value: Any, kind: Kind, name: str, default: float | None = None) -> fl
     >>> to_si([[1500], [3000]], SPEED, "speed")
     array([[25.],
            [50.]])
+    >>> to_si(ureg.Quantity(np.array([1000.0, 3000.0]), "psi"), PRESSURE, "pressure")
+    array([ 6894757.29316836, 20684271.87950509])
     """
     tv = type(value)
     if tv is float or tv is int or tv is str or value is None:
         return _scalar_to_si(value, kind, name, default)
     if isinstance(value, np.ndarray) and value.dtype.kind in "fiu":
         arr = value.astype(float, copy=False)
-        if not np.isfinite(arr).all():
-            bad = tuple(int(i) for i in np.argwhere(~np.isfinite(arr))[0])
-            raise InputError("not a finite number", Where(field=f"{name}{list(bad)}"))
         if kind.offset:
-            return arr + 273.15
-        f = _DEFAULT_FACTORS.get(kind)
-        if f is None:
-            f = _DEFAULT_FACTORS[kind] = unit_factor(kind.default, kind)[0]
-        return arr * f if f != 1.0 else arr.copy()
+            return _array_to_si(arr, 1.0, 273.15, name)
+        return _array_to_si(arr, default_factor(kind), 0.0, name)
     if isinstance(value, (list, tuple, np.ndarray)):
         arr = np.asarray(value, dtype=object)
         if arr.ndim == 0:

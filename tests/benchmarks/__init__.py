@@ -1,0 +1,1 @@
+"""Speed benchmarks of sheetpump against plain references (not tests: ``python -m tests.benchmarks.run``)."""
