@@ -30,11 +30,12 @@ import numpy as np
 
 from .errors import InputError, Where
 from .physics.pump import PhysicsError
-from .units import Kind, all_finite, to_si, unit_factor
+from .units import Kind, all_finite, check_unit, to_si, unit_factor, ureg
 
 __all__ = ["ERROR_PREFIX", "Arg", "Calculation", "Registry"]
 
 _isfinite = math.isfinite
+_QUANTITY = ureg.Quantity
 
 #: Every error text a cell function returns starts with this, so a sheet can test for it.
 ERROR_PREFIX = "#SP! "
@@ -114,6 +115,10 @@ class Calculation:
     #: A sample call as a user would type it (arguments, then optionally the result unit); a list is a
     #: range. Used by the worked-example workbook and the README.
     example: tuple[Any, ...] = ()
+    #: For a formula that is a product of powers of its arguments (most pump relations), the exponent
+    #: of each argument: f(a·x, b·y) = aᵉ¹·bᵉ²·f(x, y). Arrays in their default units then go to the
+    #: physics as they are and one scalar factor converts the result: no pass per argument.
+    scaling: tuple[float, ...] | None = None
     category: str = "sheetpump"
     _defaults: tuple[float | None, ...] = field(init=False, repr=False, compare=False)
     _physics_names: list[str] = field(init=False, repr=False, compare=False)
@@ -131,6 +136,8 @@ class Calculation:
         optional = [a.default is not None for a in self.args]
         if optional != sorted(optional):
             raise ValueError(f"{self.name}: a required argument follows an optional one")
+        if self.scaling is not None and len(self.scaling) != len(self.args):
+            raise ValueError(f"{self.name}: one scaling exponent per argument")
         physics_names = list(inspect.signature(self.func).parameters)
         if len(physics_names) < len(self.args):
             raise ValueError(f"{self.name}: {self.formula_source} takes fewer arguments than declared")
@@ -218,12 +225,21 @@ class Calculation:
         else:
             factor, offset = self._result_default
         converted = []
-        for i, (value, f) in enumerate(zip(values, factors, strict=False)):  # missing ones below
+        for value, f in zip(values, factors, strict=False):  # the common case: numbers, default units
             tv = type(value)
             if (tv is float or tv is int) and f is not None and _isfinite(value):
-                converted.append(value * f)  # the common case: a bare number in the default unit
+                converted.append(value * f)
             else:
-                converted.append(self._argument(i, value))
+                break
+        if len(converted) < len(values):  # a range, a text with a unit, an empty cell, ...
+            first = values[len(converted)]
+            if (self.scaling is not None and not si and not offset and len(values) == n
+                    and (type(first) is np.ndarray or isinstance(first, _QUANTITY))):
+                folded = self._folded(values, factor)
+                if folded is not None:
+                    return folded
+            for i in range(len(converted), len(values)):
+                converted.append(self._argument(i, values[i]))
         for i in range(len(values), n):
             converted.append(self._argument(i, None))  # an argument not given is an empty cell
         result = self.func(*converted)
@@ -237,6 +253,46 @@ class Calculation:
         if not isinstance(result, np.ndarray) or result.ndim == 0:
             return _scalar_result(float(result), factor, offset)
         return _array_result(result, factor, offset, values)
+
+    def _folded(self, values: tuple[Any, ...], factor: float) -> np.ndarray | None:
+        """The array path of a :attr:`scaling` calculation, or None where it does not apply.
+
+        It applies when every argument is a float array or a number in its default unit, and no
+        efficiency is scaled (its (0, 1] check must see the true value). The physics' checks of sign
+        see the raw values, which is the same as seeing SI values: unit factors are positive.
+        """
+        raw = []
+        scale = 1.0
+        array = False
+        for value, f, e, a in zip(values, self._factors, self.scaling, self.args, strict=True):
+            if f is None:
+                return None
+            if isinstance(value, _QUANTITY):  # an array with its unit: that unit's factor
+                magnitude = value.magnitude
+                if not isinstance(magnitude, np.ndarray) or magnitude.dtype != np.float64:
+                    return None
+                f, offset = check_unit(f"{value.units:~}", a.kind, a.name)
+                if offset:
+                    return None
+                value = magnitude
+            if isinstance(value, np.ndarray) and value.dtype == np.float64:
+                if f != 1.0 and a.kind.si == "":
+                    return None
+                raw.append(value)
+                scale *= f**e
+                array = True
+            elif (type(value) is float or type(value) is int) and _isfinite(value):
+                raw.append(value * f)
+            else:
+                return None
+        if not array:
+            return None
+        # Optimistic: anything wrong (a NaN, a bad sign, a result that is not finite) goes the full
+        # way, which checks each argument in turn and names the element.
+        try:
+            return _array_result(self.func(*raw), factor / scale, 0.0, values)
+        except (PhysicsError, InputError, FloatingPointError):
+            return None
 
     def cell(self, *values: Any) -> float | list[list[Any]] | str:
         """Evaluate as a spreadsheet cell does: never raises.
@@ -255,6 +311,8 @@ class Calculation:
             return f"{ERROR_PREFIX}{self.name}: {_plain(exc)}"
         if type(out) is float:
             return out
+        if out.size == 0 or out.ndim > 2:
+            return f"{ERROR_PREFIX}{self.name}: a range must be a non-empty row, column or block of cells"
         return (out.reshape(1, -1) if out.ndim == 1 else out).tolist()
 
     def __call__(self, *values: Any) -> float | list[list[Any]] | str:

@@ -88,3 +88,40 @@ def test_every_declared_function_documents_its_arguments():
             assert arg.help, (calc.name, arg.name)
         assert calc.name.startswith("SP_")
         assert calc.formula_source.startswith("sheetpump.physics.")
+
+
+# --- the folded array path: declared scaling exponents are right, and it equals the full path ----
+
+SCALED = [c for c in CATALOGUE.values() if c.scaling is not None]
+
+
+@pytest.mark.parametrize("calc", SCALED, ids=[c.name for c in SCALED])
+def test_declared_scaling_exponents_hold(calc):
+    # f(a·x, b·y, ...) = aᵉ¹·bᵉ²·...·f(x, y, ...): checked on the physics itself, one argument at a time
+    base = [0.9 if a.kind.si == "" else 3.0 for a in calc.args]
+    f0 = calc.func(*base)
+    for i, e in enumerate(calc.scaling):
+        scaled = list(base)
+        scaled[i] *= 0.5
+        assert calc.func(*scaled) == pytest.approx(0.5**e * f0, rel=1e-12)
+
+
+@pytest.mark.parametrize("calc", SCALED, ids=[c.name for c in SCALED])
+def test_folded_path_equals_elementwise_cells(calc):
+    rng = np.random.default_rng(7)
+    arrays = [rng.uniform(0.5, 0.99, 50) if a.kind.si == "" else rng.uniform(10, 300, 50) for a in calc.args]
+    folded = calc.evaluate(*arrays)
+    one_by_one = [calc.cell(*(float(x[i]) for x in arrays)) for i in range(50)]
+    np.testing.assert_allclose(folded, one_by_one, rtol=1e-12)
+    # with units carried by pint quantity arrays of the one registry, and a result unit
+    from sheetpump.units import ureg
+    quantities = [x if a.kind.si == "" else ureg.Quantity(x, a.kind.default) for x, a in zip(arrays, calc.args)]
+    np.testing.assert_allclose(calc.evaluate(*quantities), folded, rtol=1e-12)
+
+
+def test_folded_path_still_validates():
+    power = CATALOGUE["SP_INPUT_POWER"]
+    assert power.cell(np.array([100.0, -1.0]), np.array([10.0, 10.0]), np.array([0.9, 0.9])) == (
+        "#SP! pressure: must not be negative")
+    assert power.cell(np.array([100.0]), np.array([10.0]), np.array([1.5])).startswith("#SP! total_eff:")
+    assert power.cell(np.array([100.0, np.nan]), np.array([10.0, 10.0]), 0.9).startswith("#SP! pressure[1]")
