@@ -891,8 +891,28 @@ def write_values(source: str | os.PathLike[str], target: str | os.PathLike[str],
             per_part.setdefault(sheets[sheet], {})[cell] = value
         with atomic_path(target) as tmp, zipfile.ZipFile(tmp, "w", zipfile.ZIP_DEFLATED) as out:
             for info in archive.infolist():
+                if _is_macro_part(info.filename):
+                    continue  # macros are never written back (a recalculated .xlsm is a plain workbook)
                 data = archive.read(info)
                 if info.filename in per_part:
                     data = _patch_sheet(data.decode("utf-8"), per_part[info.filename]).encode("utf-8")
+                elif info.filename in ("[Content_Types].xml", "xl/_rels/workbook.xml.rels"):
+                    data = _without_macros(info.filename, data.decode("utf-8")).encode("utf-8")
                 out.writestr(info, data, compress_type=zipfile.ZIP_DEFLATED)
     return target
+
+
+_MACRO_PARTS = re.compile(r"^xl/(vbaProject\.bin|vbaProjectSignature\.bin|vbaData\.xml|_rels/vbaProject\.bin\.rels)$")
+
+
+def _is_macro_part(name: str) -> bool:
+    return bool(_MACRO_PARTS.match(name))
+
+
+def _without_macros(name: str, xml: str) -> str:
+    """Drop the macro project from the content types and the workbook's relationships."""
+    if name == "[Content_Types].xml":
+        xml = xml.replace("application/vnd.ms-excel.sheet.macroEnabled.main+xml",
+                          "application/vnd.openxmlformats-officedocument.spreadsheetml.sheet.main+xml")
+        return re.sub(r'<(Override|Default)[^>]*(vbaProject|vbaData)[^>]*/>', "", xml)
+    return re.sub(r'<Relationship [^>]*vbaProject[^>]*/>', "", xml)

@@ -29,6 +29,7 @@ from __future__ import annotations
 import datetime as _dt
 import math
 import re
+import tokenize
 from dataclasses import dataclass
 from functools import cache, lru_cache
 from typing import Any
@@ -181,7 +182,7 @@ def unit_factor(unit: str, kind: Kind) -> tuple[float, float]:
     try:
         parsed = ureg.parse_units(text)
     except (pint.errors.UndefinedUnitError, pint.errors.DefinitionSyntaxError, AttributeError,
-            TypeError, ValueError, SyntaxError, AssertionError) as exc:
+            TypeError, ValueError, SyntaxError, AssertionError, tokenize.TokenError) as exc:
         raise InputError(f"unknown unit {unit!r}", hint=f"write e.g. {kind.example!r}") from exc
     if kind.offset:
         try:

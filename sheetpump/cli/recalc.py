@@ -16,6 +16,7 @@ from pathlib import Path
 
 from ..errors import InputError, Where
 from ..recalc import DEFAULT_ABS_TOL, DEFAULT_REL_TOL, compare, recalculate, write_values
+from ..workbooks.safe import check_file
 
 
 def _tolerance(text: str) -> float:
@@ -35,6 +36,9 @@ def run(args: argparse.Namespace) -> int:
     if args.output is not None and Path(args.output).resolve() == book.resolve():
         raise InputError("the output would replace the input workbook", Where(file=str(args.output)),
                          "give another file name with -o")
+    # The guarded opening every reader uses: not a workbook, encrypted, damaged, a zip bomb or XML
+    # entities are refused here with a clear line, before the engine parses anything.
+    check_file(book)
     result = recalculate(book)
     result.raise_problems()
     if args.output is not None:

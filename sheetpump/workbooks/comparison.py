@@ -58,7 +58,7 @@ _DUTY_FORMATS = {1: "n1", 2: "n1", 3: "n0", 4: "n1", 5: "n1", 6: "n2", 7: "n2", 
                  11: "n2"}
 _CURVE_POINTS = 25  # points of each efficiency and flow curve
 _LABEL_COL = 60  # column of the Curves sheet that holds chart labels
-_BAD_SHEET_CHARS = re.compile(r"[\[\]:*?/\\']")
+_SHEET_KEEP = re.compile(r"[^\w .&-]")
 
 
 def _unit(units: str, kind: Kind) -> str:
@@ -72,7 +72,12 @@ def _show(value: float | None, kind: Kind, units: str) -> float | None:
 
 
 def _sheet_name(i: int, label: str) -> str:
-    clean = _BAD_SHEET_CHARS.sub(" ", label).strip()
+    # Sheet names stand inside formulas ('Duty 1 ...'!B5): a label from an input goes into the name only
+    # when it holds nothing but plain characters, so '=HYPERLINK(...)' or "+cmd|'..." never reaches a
+    # formula (the label is in the sheet's title cell anyway, as text).
+    clean = " ".join(label.split())
+    if _SHEET_KEEP.search(clean):
+        return f"Duty {i + 1}"
     return f"Duty {i + 1} {clean}"[:31].rstrip()
 
 

@@ -120,13 +120,17 @@ def _grid_xlsx(path: Path, sheet: str | None) -> tuple[str, list[list[Any]], int
 
 def _choose_sheet(path: Path) -> str | None:
     """The first sheet that holds a header row of a measured table (None: none does)."""
+    refused: InputError | None = None
     for name in sheet_members(path):
         try:
             _, rows, _, _ = _grid_xlsx(path, name)
-        except InputError:
+        except InputError as exc:
+            refused = refused or exc
             continue
         if _header_index(rows) is not None:
             return name
+    if refused is not None:  # a sheet that could not be read may be the table: say why, not "no table"
+        raise refused
     return None
 
 
@@ -210,6 +214,11 @@ def read_measured(path: str | os.PathLike[str], *, sheet: str | None = None,
         values[key] = raw * factor + offset
         letters[key] = letter
         units[key] = parse_header(headers[index])[1] or ""
+    # A column with a header but no value in any row (the template's spare torque or power column) is
+    # as good as absent: otherwise it would hide the other one.
+    for key in ("torque", "input_power"):
+        if key in values and np.isnan(values[key]).all():
+            values.pop(key)
     where = Where(file, sheet_name)
     notes = []
     if "speed" not in values:

@@ -137,7 +137,9 @@ class _Book:
             else:
                 try:
                     self._evaluated = dict(evaluate_workbook(self.path))
-                except InputError:
+                except InputError as exc:
+                    if exc.where.sheet == sheet.title and exc.where.cell == coord:
+                        raise exc.at(field=field) from None  # this very cell: name its field too
                     raise
                 except Exception as exc:  # the evaluator failing is reported as the formula's problem
                     raise InputError(f"the formula {formula} has no stored value and could not be "
@@ -336,7 +338,7 @@ def convert(field: Field, value: Any, unit: Any, where: Where, unit_where: Where
         except InputError as exc:
             raise exc.at(**vars(unit_where)) from None
         si = number * factor + offset
-    return _checked(field, si, where)
+    return _checked(field, si, where, f"{number:g} {unit_text}".strip())
 
 
 def _kind_name(field: Field) -> str:
@@ -380,15 +382,17 @@ def _same_unit(a: str, b: str, field: Field) -> bool:
     return a.lower() == b.lower()
 
 
-def _checked(field: Field, si: float, where: Where) -> float:
+def _checked(field: Field, si: float, where: Where, shown: str = "") -> float:
+    # ``shown``: the value as the user wrote it (the SI value would puzzle: 28 cm³ is 2.8e-05 m³).
+    shown = shown or f"{si:g}"
     if not math.isfinite(si):
-        raise InputError("not a finite number", where)
+        raise InputError(f"{shown} is not a finite number", where)
     if field.kind is not None and isinstance(field.kind, Kind) and field.kind.offset and si <= 0:
-        raise InputError("temperature at or below absolute zero", where)
+        raise InputError(f"{shown} is at or below absolute zero", where, "check the temperature and its unit")
     if field.check == "positive" and not si > 0:
-        raise InputError(f"must be greater than zero, not {si:g}", where)
+        raise InputError(f"must be greater than zero, not {shown}", where)
     if field.check == "non_negative" and si < 0:
-        raise InputError(f"must not be negative, not {si:g}", where)
+        raise InputError(f"must not be negative, not {shown}", where)
     if field.kind == FRACTION and si > 1:
         raise InputError(f"{si:.0%} is more than 100 %", where,
                          "write e.g. 10 with unit '%', or 0.1 with unit 'fraction'")
@@ -463,10 +467,10 @@ def _column(rows: list[tuple[int, dict[str, Any]]], key: str, default: float | N
                 raise InputError("missing value", Where(book.file, sheet.title, coord if key in letters else
                                                         f"row {r}", key), hint)
             value = default
-        elif rule == "positive" and not value > 0:
-            raise InputError(f"must be greater than zero, not {value:g}", book.where(sheet, coord, key))
+        elif rule == "positive" and not value > 0:  # (value is SI here: not shown, the cell is named)
+            raise InputError("must be greater than zero", book.where(sheet, coord, key))
         elif rule == "non_negative" and value < 0:
-            raise InputError(f"must not be negative, not {value:g}", book.where(sheet, coord, key))
+            raise InputError("must not be negative", book.where(sheet, coord, key))
         values[i] = value
     return values
 

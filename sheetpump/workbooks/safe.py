@@ -25,6 +25,7 @@ import os
 import re
 import warnings
 import zipfile
+import zlib
 from pathlib import Path
 from typing import Any
 
@@ -94,7 +95,8 @@ def check_file(path: str | os.PathLike[str], *, allow_csv: bool = False,
     with open(path, "rb") as handle:
         head = handle.read(1 << 16)
     if not head:
-        raise _refuse(path, "the file is empty")
+        raise _refuse(path, "the file is empty (0 bytes)",
+                      "save the workbook again from the spreadsheet program, or start from `sheetpump template`")
     suffix = path.suffix.lower()
     if head.startswith(_OLE):
         # Both old .xls files and password-protected .xlsx files are OLE compound documents; an
@@ -147,15 +149,49 @@ def _check_zip(path: Path, max_uncompressed: int, max_ratio: float) -> None:
             for info in infos:
                 if info.filename.endswith((".xml", ".rels", ".vml")) and info.file_size:
                     with archive.open(info) as member:
-                        start = member.read(4096)
-                    if b"<!DOCTYPE" in start or b"<!ENTITY" in start:
+                        start = member.read(_PROLOG_MAX)
+                    if _declares_entities(start):
                         raise _refuse(path, f"member {info.filename!r} declares XML entities (refused: "
                                       "entity expansion can exhaust memory)", _SAVE_AS)
     except zipfile.BadZipFile as exc:
         raise _refuse(path, f"the workbook is damaged (not a readable zip file: {exc})",
                       "open it in the spreadsheet program, repair it and save again") from None
-    except (zipfile.LargeZipFile, NotImplementedError, EOFError, OSError) as exc:
-        raise _refuse(path, f"the workbook cannot be read ({exc})") from None
+    except (zipfile.LargeZipFile, NotImplementedError, EOFError, OSError, zlib.error) as exc:
+        raise _refuse(path, f"the workbook cannot be read ({_one_line(exc)})",
+                      "open it in the spreadsheet program, repair it and save again") from None
+
+
+#: Bytes of an XML part read to find its prolog's end; a DOCTYPE can only stand in the prolog.
+_PROLOG_MAX = 1 << 16
+# What may stand before the root element: the declaration, processing instructions, comments, blanks.
+_PROLOG_ITEM = re.compile(rb"\s+|<\?.*?\?>|<!--.*?-->", re.S)
+
+
+def _declares_entities(start: bytes) -> bool:
+    """Whether an XML part's prolog holds a DOCTYPE (or one cannot tell within :data:`_PROLOG_MAX` bytes).
+
+    >>> _declares_entities(b'<?xml version="1.0"?><!-- note --><worksheet/>')
+    False
+    >>> _declares_entities(b'<?xml version="1.0"?><!--' + b' ' * 9000 + b'--><!DOCTYPE x [<!ENTITY a "b">]><x/>')
+    True
+    """
+    if start.startswith(b"\xef\xbb\xbf"):
+        start = start[3:]
+    at = 0
+    while True:
+        match = _PROLOG_ITEM.match(start, at)
+        if not match:
+            break
+        at = match.end()
+    rest = start[at:at + 9]
+    if rest.startswith(b"<!"):
+        return True  # a DOCTYPE (or an unclosed comment): refused
+    # The root element starts here; a prolog running past what was read is refused too.
+    return not rest.startswith(b"<") and len(start) >= _PROLOG_MAX
+
+
+def _one_line(exc: BaseException) -> str:
+    return " ".join(str(exc).split())[:200]
 
 
 def open_workbook(path: str | os.PathLike[str], *, data_only: bool = True,
@@ -182,10 +218,15 @@ def open_workbook(path: str | os.PathLike[str], *, data_only: bool = True,
     except InputError:
         raise
     except Exception as exc:  # openpyxl raises many kinds on a damaged part
-        name = type(exc).__name__
-        if "Entities" in name or "DTD" in name:
-            raise _refuse(path, "the workbook declares XML entities (refused)") from None
-        raise _refuse(path, f"the workbook cannot be read ({name}: {exc})",
+        chain, cause = [], exc
+        while cause is not None and len(chain) < 10:
+            chain.append(cause)
+            cause = cause.__cause__ or cause.__context__
+        if any("Entities" in type(e).__name__ or "DTD" in type(e).__name__ for e in chain):
+            raise _refuse(path, "the workbook declares XML entities (refused)", _SAVE_AS) from None
+        inner = chain[-1]
+        raise _refuse(path, f"the workbook cannot be read: a part holds invalid XML or values "
+                      f"({type(inner).__name__}: {_one_line(inner)})",
                       "open it in the spreadsheet program and save it again") from None
 
 

@@ -130,12 +130,14 @@ def _numeric(values: np.ndarray, key: str, *, file: str, sheet: str | None, col:
                 if isinstance(v, bool) or not (isinstance(v, (int, float, np.integer, np.floating))
                                                or _is_number_text(v)):
                     what = "an empty cell" if v is None or (isinstance(v, str) and not v.strip()) else repr(v)
-                    raise InputError(f"{what} where a number belongs", Where(file, sheet, f"{col}{row0 + i}", key))
+                    raise InputError(f"{what} where a number belongs", Where(file, sheet, f"{col}{row0 + i}", key),
+                                     "write the number alone; the unit belongs in the header, e.g. "
+                                     "'pressure [bar]'")
     bad = ~np.isfinite(arr)
     if bad.any():
         i = int(np.flatnonzero(bad)[0])
         raise InputError("an empty cell or a non-finite number where a number belongs",
-                         Where(file, sheet, f"{col}{row0 + i}", key))
+                         Where(file, sheet, f"{col}{row0 + i}", key), "give every sample a finite number")
     return arr
 
 
@@ -185,8 +187,10 @@ def _read_csv(path: Path) -> tuple[list[str], dict[int, np.ndarray]]:
     # A semicolon-separated file from a European locale writes decimal commas.
     decimal = "," if sep == ";" and re.search(r"\d,\d", sample) else "."
     try:
-        frame = pd.read_csv(path, sep=sep, decimal=decimal, encoding=encoding, skipinitialspace=True,
-                            dtype=None, low_memory=False, keep_default_na=False, na_values=[""])
+        # pandas' C parser skips a UTF-8 BOM itself and decodes UTF-8 natively ("utf-8-sig" would go
+        # through Python's codec), and its number parser skips leading spaces: both options cost time.
+        frame = pd.read_csv(path, sep=sep, decimal=decimal, encoding="utf-8" if encoding == "utf-8-sig" else encoding,
+                            keep_default_na=False, na_values=[""])
     except (ValueError, pd.errors.ParserError, UnicodeDecodeError) as exc:
         raise InputError(f"the CSV file cannot be read ({exc})", Where(file=str(path))) from None
     headers = [str(c) for c in frame.columns]
@@ -297,11 +301,16 @@ def read_series(path: str | os.PathLike[str], *, sheet: str | None = None,
         if column.key == "time":
             raw = _time_column(raw)
         values = _numeric(raw, column.key, file=file, sheet=sheet_name, col=letter, row0=row0)
-        values = values * factor + offset if (factor != 1.0 or offset) else values
+        if factor != 1.0 or offset:
+            values = values * factor  # a new array: the in-place offset below touches only ours
+            if offset:
+                values += offset
         _check_signal(column, values, file, sheet_name, letter, row0)
         signals[column.key] = values
     t = signals["time"]
-    step = np.diff(t)
+    # durations in one array: step i = t[i+1] - t[i], the last one filled with the median step below
+    duration = np.empty_like(t)
+    step = np.subtract(t[1:], t[:-1], out=duration[:-1])
     bad = np.flatnonzero(step <= 0)
     if bad.size:
         i = int(bad[0])
@@ -318,7 +327,7 @@ def read_series(path: str | os.PathLike[str], *, sheet: str | None = None,
                          f"({gaps.size} step(s) longer than {limit:g} s; median step {median:g} s)",
                          Where(file, sheet_name, f"{letters['time']}{row0 + i + 1}", "time"),
                          "split the log at the gap, or set duty_series_max_step on the Machine sheet")
-    duration = np.append(step, median)
+    duration[-1] = median
     where = Where(file, sheet_name)
     return Duty(duration=duration, pressure=signals["pressure"], flow=signals["flow"],
                 speed=signals["speed"], temperature=signals["temperature"],
