@@ -36,6 +36,7 @@ __all__ = ["ERROR_PREFIX", "Arg", "Calculation", "Registry"]
 
 _isfinite = math.isfinite
 _QUANTITY = ureg.Quantity
+_TEXTS_KEPT = 4096  # texts remembered per argument
 
 #: Every error text a cell function returns starts with this, so a sheet can test for it.
 ERROR_PREFIX = "#SP! "
@@ -126,8 +127,14 @@ class Calculation:
     #: offset, not a choice), else None: a number in a cell then costs one multiply and no lookup.
     _factors: tuple[float | None, ...] = field(init=False, repr=False, compare=False)
     _result_default: tuple[float, float] = field(init=False, repr=False, compare=False)
+    #: Per argument, texts already converted ("3000 psi" -> SI); and result units already looked up.
+    #: Plain dicts: a sheet full of the same texts costs one lookup each. Bounded by _TEXTS_KEPT.
+    _texts: tuple[dict[str, float], ...] = field(init=False, repr=False, compare=False)
+    _units: dict[str, tuple[float, float]] = field(init=False, repr=False, compare=False)
 
     def __post_init__(self) -> None:
+        object.__setattr__(self, "_texts", tuple({} for _ in self.args))
+        object.__setattr__(self, "_units", {})
         object.__setattr__(self, "_defaults", tuple(a.default_si for a in self.args))
         object.__setattr__(self, "_factors", tuple(
             None if isinstance(a.kind, Choice) or a.kind.offset else unit_factor(a.kind.default, a.kind)[0]
@@ -220,15 +227,27 @@ class Calculation:
         factors = self._factors
         n = len(factors)
         if len(values) > n:
-            factor, offset = self._result_conversion(values[n])  # a bad unit is reported first
+            unit = values[n]
+            known = self._units.get(unit) if type(unit) is str else None
+            factor, offset = known or self._result_conversion(unit)  # a bad unit is reported first
+            if known is None and type(unit) is str and len(self._units) < _TEXTS_KEPT:
+                self._units[unit] = (factor, offset)
             values = values[:n]
         else:
             factor, offset = self._result_default
         converted = []
-        for value, f in zip(values, factors, strict=False):  # the common case: numbers, default units
+        texts = self._texts
+        for i, (value, f) in enumerate(zip(values, factors, strict=False)):  # the common cases
             tv = type(value)
             if (tv is float or tv is int) and f is not None and _isfinite(value):
-                converted.append(value * f)
+                converted.append(value * f)  # a number in the default unit
+            elif tv is str and value in texts[i]:
+                converted.append(texts[i][value])  # a text seen before
+            elif tv is str:
+                si_value = self._argument(i, value)  # raises for a bad text: nothing is kept
+                if type(si_value) is float and len(texts[i]) < _TEXTS_KEPT:
+                    texts[i][value] = si_value
+                converted.append(si_value)
             else:
                 break
         if len(converted) < len(values):  # a range, a text with a unit, an empty cell, ...

@@ -306,6 +306,15 @@ def _bound(ctx: _Context, rule: str, values: np.ndarray, limit: float | np.ndarr
     """
     values = np.asarray(values, float)
     scalar = np.ndim(limit) == 0
+    if scalar and active is None and not check_nan and not extra and values.size:
+        # The common case, one read pass: the worst element first; the outside mask only if it is outside.
+        lim = float(limit)
+        i = int(values.argmax() if upper else values.argmin())
+        outside = values[i] > lim if upper else values[i] < lim
+        bad = (values > lim if upper else values < lim) if outside else np.zeros(0, bool)
+        count = int(np.count_nonzero(bad))
+        return _bound_finding(ctx, rule, kind, where, what, rating_note, severity, upper, bad, count,
+                              float(values[i]), lim, ctx.label(i), ctx.row(i))
     if scalar:
         lim = float(limit)
         bad = values > lim if upper else values < lim
@@ -341,6 +350,14 @@ def _bound(ctx: _Context, rule: str, values: np.ndarray, limit: float | np.ndarr
         return Finding(rule, INFO, f"not applicable: {what or 'no segment to judge'}", kind=kind,
                        unit=ctx.unit(kind), where=where)
     _, worst, li, label, at = max(candidates, key=lambda c: c[0])
+    return _bound_finding(ctx, rule, kind, where, what, rating_note, severity, upper, bad, count, worst, li,
+                          label, at)
+
+
+def _bound_finding(ctx: _Context, rule: str, kind: Kind, where: Where, what: str, rating_note: str,
+                   severity: str, upper: bool, bad: np.ndarray, count: int, worst: float, li: float,
+                   label: str, at: Where | None) -> Finding:
+    """The finding of :func:`_bound` from its worst value and the mask of what is outside."""
     margin = _margin(worst, li, upper) if math.isfinite(worst) else None
     share = float(np.sum(ctx.duty.duration, where=bad) / ctx.cycle) if count and ctx.cycle > 0 else 0.0
     word = "above" if upper else "below"

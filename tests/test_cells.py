@@ -115,7 +115,8 @@ def test_folded_path_equals_elementwise_cells(calc):
     np.testing.assert_allclose(folded, one_by_one, rtol=1e-12)
     # with units carried by pint quantity arrays of the one registry, and a result unit
     from sheetpump.units import ureg
-    quantities = [x if a.kind.si == "" else ureg.Quantity(x, a.kind.default) for x, a in zip(arrays, calc.args)]
+    quantities = [x if a.kind.si == "" else ureg.Quantity(x, a.kind.default)
+                  for x, a in zip(arrays, calc.args, strict=True)]
     np.testing.assert_allclose(calc.evaluate(*quantities), folded, rtol=1e-12)
 
 

@@ -182,7 +182,7 @@ def test_the_check_can_fail_on_a_wrong_stored_value(workbook, tmp_path):
     assert len(altered) == 1
     differs = [k for k in cells
                if not math.isclose(recomputed[k], stored[k[0]][k[1]].value, rel_tol=1e-9, abs_tol=1e-12)]
-    assert differs == altered  # the comparison used above catches exactly the wrong stored value  # the comparison used above catches a wrong stored value
+    assert differs == altered  # the comparison used above catches exactly the wrong stored value
 
 
 @lo.needs_soffice
