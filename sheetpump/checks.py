@@ -306,15 +306,17 @@ def _bound(ctx: _Context, rule: str, values: np.ndarray, limit: float | np.ndarr
     """
     values = np.asarray(values, float)
     scalar = np.ndim(limit) == 0
-    if scalar and active is None and not check_nan and not extra and values.size:
-        # The common case, one read pass: the worst element first; the outside mask only if it is outside.
+    if scalar and not extra and values.size and (active is None or active.any()):
+        # The common case in one read pass: the worst element first, the mask of what is outside only
+        # if that one is outside. (argmax/argmin return a NaN first: that case takes the full way.)
         lim = float(limit)
-        i = int(values.argmax() if upper else values.argmin())
-        outside = values[i] > lim if upper else values[i] < lim
-        bad = (values > lim if upper else values < lim) if outside else np.zeros(0, bool)
-        count = int(np.count_nonzero(bad))
-        return _bound_finding(ctx, rule, kind, where, what, rating_note, severity, upper, bad, count,
-                              float(values[i]), lim, ctx.label(i), ctx.row(i))
+        v = values if active is None else np.where(active, values, -np.inf if upper else np.inf)
+        i = int(v.argmax() if upper else v.argmin())
+        if not math.isnan(v[i]):
+            outside = v[i] > lim if upper else v[i] < lim
+            bad = (v > lim if upper else v < lim) if outside else np.zeros(0, bool)
+            return _bound_finding(ctx, rule, kind, where, what, rating_note, severity, upper, bad,
+                                  int(np.count_nonzero(bad)), float(v[i]), lim, ctx.label(i), ctx.row(i))
     if scalar:
         lim = float(limit)
         bad = values > lim if upper else values < lim

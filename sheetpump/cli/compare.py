@@ -14,7 +14,7 @@ from pathlib import Path
 
 from ..checks import FAIL, WARN, CheckSettings
 from ..errors import InputError, Where
-from .check import _read, _read_application, _read_datasheet
+from . import check as _check  # by module: its readers are looked up at call time
 
 EXIT_OK, EXIT_FAIL = 0, 1
 
@@ -60,13 +60,13 @@ def build(app_path: str, datasheets: list[str], out: str, units: str = "metric",
     from ..comparison import compare
     from ..workbooks.comparison import write_comparison
 
-    app = _read(_read_application, app_path, "application workbook")
+    app = _check._read(_check._read_application, app_path, "application workbook")
     paths = datasheet_paths(datasheets, app_path)
     progress = _Progress(len(paths))
     sheets = []
     for i, path in enumerate(paths, start=1):
         progress.step(i, Path(path).name)
-        sheets.append(_read(_read_datasheet, path, "datasheet workbook"))
+        sheets.append(_check._read(_check._read_datasheet, path, "datasheet workbook"))
     progress.done()
     comp = compare(sheets, app, CheckSettings(units=units, strict=strict))
     inputs = [app_path, *paths]
