@@ -6,8 +6,8 @@ ragged or nested, of mixed types. Whatever comes in, the result must be a finite
 finite numbers or error texts, or an error text starting with ``#SP! ``. Checked through both faces:
 ``CATALOGUE[name].cell`` and the xlwings function ``sheetpump.cells.NAME``.
 
-``SHEETPUMP_FUZZ_EXAMPLES`` sets the examples per function and face (default below: about a minute in
-all on two cores; run with e.g. 20000 for a deeper search).
+``SHEETPUMP_FUZZ_EXAMPLES`` sets the examples per function and face (default below: 1000 per face, so
+2000 per function, a few minutes in all; run with e.g. 20000 for a deeper search).
 """
 
 from __future__ import annotations
@@ -26,7 +26,7 @@ from sheetpump.calc import ERROR_PREFIX
 from sheetpump.catalogue import CATALOGUE
 from sheetpump.workbooks.templates import UNITS
 
-EXAMPLES = int(os.environ.get("SHEETPUMP_FUZZ_EXAMPLES", "350"))
+EXAMPLES = int(os.environ.get("SHEETPUMP_FUZZ_EXAMPLES", "1000"))  # per face: 2000 per function
 
 _UNITS = sorted({u for units in UNITS.values() for u in units} | {"%", "Pa", "m^3/s", "rev/s", "K", "mPa*s",
                                                                   "1/min", "degF", "W", "furlong", "", "  "})

@@ -37,6 +37,7 @@ from ..units import (
     DISPLACEMENT,
     ENERGY,
     FLOW,
+    MASS,
     POWER,
     PRESSURE,
     SPEED,
@@ -251,7 +252,9 @@ def _summary(book: Any, comp: Comparison, units: str, duty_refs: list[dict[str, 
     line(f"intermittent pressure [{u(PRESSURE)}]", [_show(d.pressure_intermittent, PRESSURE, units) for d in ds], "n0")
     line(f"peak pressure [{u(PRESSURE)}]", [_show(d.pressure_peak, PRESSURE, units) for d in ds], "n0")
     line(f"price [{app.currency}]", [d.price for d in ds], "n0")
-    line("mass [kg]", [d.mass for d in ds], "n1")
+    mass_unit = "kg" if units == "metric" else "lb"
+    line(f"mass [{mass_unit}]", [None if d.mass is None else float(from_si(d.mass, MASS, mass_unit)) for d in ds],
+         "n1")
     line("noise [dB(A)]", [d.noise for d in ds], "n0")
     row += 1
     line("verdict", [c.result.verdict for c in cands], [c.result.verdict for c in cands])
