@@ -119,7 +119,7 @@ IMPERIAL_PUMP = [
     ("total_efficiency", 0.9, "fraction", "dimensionless"),
     ("mass", 21, "lb", "lb"),
 ]
-IDENTITY = {"supplier": ("Kestrel Fluidtech",), "model": ("KG-28 (invented)",),
+IDENTITY = {"supplier": ("Fenwhistle Fluidtech",), "model": ("KG-28 (invented)",),
             "source_note": ("invented test data",), "cleanliness": ("18/16/13",), "rotation": ("clockwise",),
             "teeth": (12,), "price": (420,), "noise": (72,)}
 
@@ -132,7 +132,7 @@ def test_datasheet_round_trip(tmp_path, rows):
     for key, value, _, ref_unit in rows:
         assert getattr(ds, key) == pytest.approx(si(value, ref_unit), rel=1e-9), key
     assert (ds.supplier, ds.model, ds.cleanliness, ds.rotation, ds.teeth) == (
-        "Kestrel Fluidtech", "KG-28 (invented)", "18/16/13", "clockwise", 12)
+        "Fenwhistle Fluidtech", "KG-28 (invented)", "18/16/13", "clockwise", 12)
     assert ds.price == 420 and ds.noise == 72
     # each value remembers its cell: the template's defined name points at the same place
     wb = openpyxl.load_workbook(path)
@@ -422,7 +422,7 @@ def _script_datasheet(path: Path, displacement_formula: str, cached: float | Non
     book = xlsxwriter.Workbook(path)
     ws = book.add_worksheet("Pump")
     ws.write_row(0, 0, ["field", "value", "unit", "help"])
-    rows = [("supplier", "Kestrel Fluidtech", ""), ("model", "KG-28", ""), ("displacement", None, "cm^3/rev"),
+    rows = [("supplier", "Fenwhistle Fluidtech", ""), ("model", "KG-28", ""), ("displacement", None, "cm^3/rev"),
             ("speed_min", 500, "rpm"), ("speed_max", 3000, "rpm"), ("pressure_continuous", 250, "bar"),
             ("pressure_peak", 300, "bar")]
     for r, (key, value, unit) in enumerate(rows, 1):
