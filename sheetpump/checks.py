@@ -94,6 +94,7 @@ RULES: dict[str, str] = {
     "pressure.intermittent-share": "total time above continuous within the allowed share of the cycle",
     "pressure.peak": "pressure never above the peak rating",
     "pressure.relief": "relief-valve setting plus overshoot at or below the peak rating",
+    "pressure.duty-relief": "duty pressures at or below the relief-valve setting (the duty is consistent)",
     "flow.delivered": "delivered flow after volumetric losses at least the required flow",
     "inlet.min": "inlet pressure (absolute) at or above the minimum",
     "inlet.max": "inlet pressure (absolute) at or below the maximum",
@@ -428,6 +429,12 @@ def _pressure(ctx: _Context) -> list[Finding]:
     out: list[Finding] = []
     peak_finding = _bound(ctx, "pressure.peak", p, peak, True, PRESSURE, ds.where("pressure_peak"),
                           rating_note=_note(m, "peak rating"))
+    relief = _bound(ctx, "pressure.duty-relief", p, app.relief_setting, True, PRESSURE,
+                    app.where("relief_setting"), severity=WARN)
+    if relief.severity == WARN:  # a duty above its own relief setting: the duty or the setting is wrong
+        relief = _replace(relief, message=relief.message + ": the relief valve would open, so the duty "
+                          "table or the relief setting is wrong")
+    out.append(relief)
     if ds.pressure_intermittent is None:
         out.append(_bound(ctx, "pressure.continuous", p, cont, True, PRESSURE,
                           ds.where("pressure_continuous"),
@@ -568,16 +575,21 @@ def _viscosity(ctx: _Context, nu: np.ndarray) -> list[Finding]:
                              f"{_fmt(ctx, VISCOSITY, cold)}")
         out.append(f)
     t_cold = app.cold_start_temperature
-    if t_cold is not None and ds.viscosity_max_cold_start is not None:
+    cold_limit = ds.viscosity_max_cold_start if ds.viscosity_max_cold_start is not None else ds.viscosity_max
+    if t_cold is not None and cold_limit is not None:
         oil = app.oil
         nu_cold = float(fluid.viscosity_at(t_cold, oil.nu1, oil.t1, oil.nu2, oil.t2))
-        lim = ds.viscosity_max_cold_start
+        stated = ds.viscosity_max_cold_start is not None
+        lim = cold_limit
         ok = nu_cold <= lim
+        # Without a stated cold-start maximum the continuous maximum is the only limit known.
+        label = "cold-start maximum" if stated else "maximum (no cold-start maximum stated)"
         out.append(Finding("viscosity.cold-start", PASS if ok else FAIL,
                            f"{_fmt(ctx, VISCOSITY, nu_cold)} at the cold start "
-                           f"({_fmt(ctx, TEMPERATURE, t_cold)}), cold-start maximum {_fmt(ctx, VISCOSITY, lim)}",
+                           f"({_fmt(ctx, TEMPERATURE, t_cold)}), {label} {_fmt(ctx, VISCOSITY, lim)}",
                            nu_cold, lim, _margin(nu_cold, lim, True), VISCOSITY, ctx.unit(VISCOSITY),
-                           "cold start", 0 if ok else 1, None, (), ds.where("viscosity_max_cold_start"),
+                           "cold start", 0 if ok else 1, None, (),
+                           ds.where("viscosity_max_cold_start" if stated else "viscosity_max"),
                            app.where("cold_start_temperature")))
     return out
 
@@ -586,8 +598,11 @@ def _temperature(ctx: _Context) -> list[Finding]:
     ds, duty = ctx.ds, ctx.duty
     out = []
     if ds.temperature_min is not None:
+        t_cold = ctx.app.cold_start_temperature  # the oil is coldest at a start
+        extra = (((t_cold, "cold start", ctx.app.where("cold_start_temperature")),) if t_cold is not None
+                 else ())
         out.append(_bound(ctx, "temperature.min", duty.temperature, ds.temperature_min, False, TEMPERATURE,
-                          ds.where("temperature_min")))
+                          ds.where("temperature_min"), extra=extra))
     if ds.temperature_max is not None:
         out.append(_bound(ctx, "temperature.max", duty.temperature, ds.temperature_max, True, TEMPERATURE,
                           ds.where("temperature_max")))

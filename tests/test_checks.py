@@ -567,3 +567,33 @@ def test_standing_pump_is_not_below_minimum_speed():
     r = check(ds, app_for(duty(rows)))
     assert finding(r, "speed.min").severity == PASS
     assert r.drive.input_power[1] == 0.0
+
+
+# --------------------------------------------------------------------------------------------------
+# The cold start and the relief valve (review findings)
+
+def test_cold_start_counts_for_the_minimum_temperature():
+    # the oil at a cold start is the coldest the pump sees: -25 °C on a pump rated down to -20 °C fails
+    ds = metric_pump()
+    d = duty(quiet(ds))
+    assert finding(check(ds, app_for(d, cold_start_temperature=273.15 - 25)), "temperature.min").severity == FAIL
+    assert finding(check(ds, app_for(d, cold_start_temperature=273.15 - 15)), "temperature.min").severity == PASS
+
+
+def test_cold_start_viscosity_falls_back_to_the_maximum():
+    # no cold-start maximum stated: the continuous maximum is the only limit known (common practice)
+    ds = metric_pump(viscosity_max_cold_start=None, viscosity_max=300e-6)
+    d = duty(quiet(ds))
+    # VG 46 (VI about 100) at 0 °C is about 570 mm²/s by the Walther line (ASTM D341): above 300
+    f = finding(check(ds, app_for(d, cold_start_temperature=273.15)), "viscosity.cold-start")
+    assert f.severity == FAIL and f.limit == 300e-6 and "no cold-start maximum stated" in f.message
+    warm = finding(check(ds, app_for(d, cold_start_temperature=273.15 + 20)), "viscosity.cold-start")
+    assert warm.severity == PASS  # about 140 mm²/s at 20 °C
+
+
+def test_duty_above_its_own_relief_setting_is_flagged():
+    ds = metric_pump()
+    at = finding(check(ds, app_for(duty(quiet(ds, pressure=200e5)))), "pressure.duty-relief")
+    above = finding(check(ds, app_for(duty(quiet(ds, pressure=200e5 * (1 + EPS))))), "pressure.duty-relief")
+    assert at.severity == PASS and above.severity == WARN
+    assert "relief valve would open" in above.message
