@@ -8,7 +8,11 @@ the oil, and the cost over the application's evaluation period, and ranks the ca
 
 Ranking: candidates whose verdict is ``pass`` or ``warn`` are ranked by cost over the evaluation period
 (price + energy cost per year × years), ties broken by the worst margin (larger first); a candidate that
-fails a rule is not ranked. Where a price is missing, only the energy cost counts and the candidate says so.
+fails a rule is not ranked. A candidate without a price is ranked after those with one, and says so.
+
+Heat into the oil is the pump's own power loss plus the surplus flow (delivered beyond what the machine
+takes) throttled over the relief valve or a valve at the segment's pressure: a fixed pump at fixed speed
+has nowhere else to put it.
 """
 
 from __future__ import annotations
@@ -17,7 +21,9 @@ import math
 from collections.abc import Sequence
 from dataclasses import dataclass, field
 
-from .checks import FAIL, CheckResult, CheckSettings, check
+import numpy as np
+
+from .checks import FAIL, CheckResult, CheckSettings, DriveFigures, check, stretches
 from .datasheet import Datasheet
 from .duty import Application
 from .physics import drive
@@ -40,6 +46,7 @@ class Candidate:
     energy_cost_per_year: float  # currency per year
     heat_to_oil: float  # mean power loss of the pump [W]
     cost_over_period: float | None  # price + energy cost over the evaluation period
+    throttling_heat: float = 0.0  # mean power of the surplus flow over the relief valve or a throttle [W]
     rank: int | None = None
     notes: tuple[str, ...] = ()
 
@@ -79,19 +86,41 @@ class Comparison:
         return "pass"
 
 
+#: How long a peak above the motor's rating may last and still count on its short-time overload
+#: capacity: IEC 60034-1 allows 60 % excess torque for 15 s (from memory). A longer one sizes on the peak.
+PEAK_SECONDS = 15.0
+
+
+def _select(fig: DriveFigures, app: Application) -> tuple[drive.MotorChoice, str]:
+    """The motor: sized on RMS power with the peak inside the short-time overload, unless a stretch above
+    the rating lasts longer than :data:`PEAK_SECONDS`, in which case on the peak itself."""
+    peak = max(fig.peak_power, fig.rms_power)
+    motor = drive.select_motor(fig.rms_power, peak, app.motor_standard)
+    power = np.nan_to_num(fig.input_power)
+    _, _, length = stretches(power > motor.rated_power, fig.duration, app.duty.wraps)
+    longest = float(length.max()) if length.size else 0.0
+    if longest > PEAK_SECONDS:
+        motor = drive.select_motor(fig.rms_power, peak, app.motor_standard, overload_factor=1.0)
+        return motor, (f"RMS {motor.rms_load:.0%}, peak {motor.peak_load:.0%}: sized on the peak, which "
+                       f"lasts {longest:g} s (> {PEAK_SECONDS:g} s)")
+    return motor, (f"RMS {motor.rms_load:.0%}, peak {motor.peak_load:.0%} "
+                   f"(≤ {motor.overload_factor:.0%} allowed for ≤ {PEAK_SECONDS:g} s)")
+
+
 def _candidate(result: CheckResult, app: Application) -> Candidate:
     fig = result.drive
     notes: list[str] = []
+    if result.drive.basis == "stated" and result.datasheet.total_efficiency is None:
+        notes.append("no total efficiency stated: torque and power assume no mechanical loss (too low)")
     try:
-        motor = drive.select_motor(fig.rms_power, max(fig.peak_power, fig.rms_power), app.motor_standard)
-        motor_note = (f"RMS {motor.rms_load:.0%}, peak {motor.peak_load:.0%} "
-                      f"(≤ {motor.overload_factor:.0%} allowed)")
+        motor, motor_note = _select(fig, app)
         efficiency = motor.efficiency
     except PhysicsError as exc:
         motor, efficiency = None, math.nan
         motor_note = f"no standard motor: {exc}"
-    if motor is not None:
-        per_cycle = float(drive.electrical_energy(fig.input_power, fig.duration, efficiency))
+    running = fig.duration > 0  # a segment of no length takes no energy
+    if motor is not None and np.all(np.isfinite(fig.input_power[running])):
+        per_cycle = float(drive.electrical_energy(fig.input_power[running], fig.duration[running], efficiency))
     else:
         per_cycle = math.nan
     cycles_per_year = app.cycles_per_hour * app.hours_per_year
@@ -99,10 +128,15 @@ def _candidate(result: CheckResult, app: Application) -> Candidate:
     cost_per_year = per_year / _J_PER_KWH * app.energy_price
     price = result.datasheet.price
     if price is None:
-        notes.append("no price on the datasheet: cost over the period is energy only")
+        notes.append("no price on the datasheet: ranked after the priced candidates")
     cost = (price or 0.0) + cost_per_year * app.evaluation_years
+    # Heat into the oil: the pump's own loss, and the flow it delivers beyond what the machine takes,
+    # which a fixed pump pushes over the relief valve or a throttle at the segment's pressure.
+    d = app.duty
+    surplus = np.clip(np.nan_to_num(fig.flow) - d.flow, 0.0, None) * d.pressure
+    throttled = float(np.sum(surplus * d.duration) / d.cycle_time) if d.cycle_time > 0 else math.nan
     return Candidate(result, motor, motor_note, per_cycle, per_year, cost_per_year, fig.mean_power_loss,
-                     cost if math.isfinite(cost) else None, notes=tuple(notes))
+                     cost if math.isfinite(cost) else None, throttling_heat=throttled, notes=tuple(notes))
 
 
 def compare(datasheets: Sequence[Datasheet], application: Application,
@@ -143,7 +177,9 @@ def compare(datasheets: Sequence[Datasheet], application: Application,
     candidates = [_candidate(r, application) for r in results]
     passing = [i for i, c in enumerate(candidates)
                if c.result.verdict != FAIL and c.cost_over_period is not None]
-    order = sorted(passing, key=lambda i: (candidates[i].cost_over_period,
+    # priced candidates first: a missing price must not make a pump look cheap
+    order = sorted(passing, key=lambda i: (candidates[i].datasheet.price is None,
+                                           candidates[i].cost_over_period,
                                            -(candidates[i].result.worst_margin or 0.0), i))
     ranks = {i: n + 1 for n, i in enumerate(order)}
     ranked = [Candidate(**{**c.__dict__, "rank": ranks.get(i)}) for i, c in enumerate(candidates)]

@@ -189,3 +189,61 @@ def test_the_check_can_fail_on_a_wrong_stored_value(workbook, tmp_path):
 def test_converts_to_pdf(workbook, tmp_path):
     pdf = lo.to_pdf(workbook, tmp_path)
     assert pdf.read_bytes().startswith(b"%PDF-")
+
+
+def test_long_series_summary_keeps_the_checkers_peak_and_rms(tmp_path):
+    # 5000 samples (binned on the duty sheet): the Summary must show peak and RMS over every sample
+    n = 5000
+    t = np.full(n, 0.01)
+    p = np.full(n, 50e5)
+    p[1234] = 240e5  # one short spike: a bin mean would smear it
+    duty = Duty(duration=t, pressure=p, flow=np.full(n, 10 / 60000), speed=np.full(n, 25.0),
+                temperature=np.full(n, 323.15), inlet_pressure=np.full(n, 1e5), source="series",
+                start=np.cumsum(t) - t)
+    app = Application("invented log", duty, Oil(46e-6, 313.15, 6.8e-6, 373.15), relief_setting=250e5)
+    comp = compare([_pump("A-28", 28e-6, 0.94, 0.85, 500.0)], app)
+    path = tmp_path / "c.xlsx"
+    write_comparison(path, comp)
+    summary = openpyxl.load_workbook(path, data_only=True)["Summary"]
+    rows = {r[0]: r[1] for r in summary.iter_rows(values_only=True) if r[0]}
+    fig = comp.candidates[0].result.drive
+    # peak by hand: V·n·η_v·Δp/η_t at the spike (ISO 4391 relations)
+    assert fig.peak_power == pytest.approx(28e-6 * 25 * 0.94 * 240e5 / 0.85, rel=1e-12)
+    assert rows["peak input power [kW]"] == pytest.approx(fig.peak_power / 1000, rel=1e-12)
+    assert rows["RMS input power [kW]"] == pytest.approx(fig.rms_power / 1000, rel=1e-12)
+    # and no formula on the Summary links to a binned total
+    assert not any(sheet for sheet, cells in _xml_formula_cells(path).items() if sheet == "Summary" and cells)
+
+
+def test_heat_into_the_oil_includes_the_throttled_surplus():
+    # 28 cm³/rev x 25 rev/s x 0.94 = 39.48 L/min delivered; the press takes 35, 20 and 10 L/min
+    app = _application()
+    cand = compare([_pump("A-28", 28e-6, 0.94, 0.85, 500.0)], app).candidates[0]
+    q = 28e-6 * 25.0 * 0.94
+    need = np.array([35, 20, 10]) / 60000
+    p, t = np.array([120e5, 200e5, 240e5]), np.array([20.0, 10.0, 5.0])
+    assert cand.throttling_heat == pytest.approx(np.sum((q - need) * p * t) / t.sum(), rel=1e-12)
+
+
+def test_a_long_peak_sizes_the_motor_on_the_peak():
+    # 20 s above the rating is longer than the 15 s occasional excess torque of IEC 60034-1 (from memory)
+    duty = Duty(duration=np.array([100.0, 20.0]), pressure=np.array([20e5, 245e5]), flow=np.full(2, 1 / 60000),
+                speed=np.full(2, 25.0), temperature=np.full(2, 323.15), inlet_pressure=np.full(2, 1e5))
+    app = Application("invented", duty, Oil(46e-6, 313.15, 6.8e-6, 373.15), relief_setting=250e5)
+    cand = compare([_pump("A-28", 28e-6, 0.94, 0.85, 500.0)], app).candidates[0]
+    assert cand.motor.rated_power >= cand.result.drive.peak_power
+    assert "sized on the peak" in cand.motor_note
+    short = Duty(duration=np.array([100.0, 5.0]), pressure=np.array([20e5, 245e5]), flow=np.full(2, 1 / 60000),
+                 speed=np.full(2, 25.0), temperature=np.full(2, 323.15), inlet_pressure=np.full(2, 1e5))
+    app = Application("invented", short, Oil(46e-6, 313.15, 6.8e-6, 373.15), relief_setting=250e5)
+    cand = compare([_pump("A-28", 28e-6, 0.94, 0.85, 500.0)], app).candidates[0]
+    assert cand.motor.rated_power < cand.result.drive.peak_power <= 1.6 * cand.motor.rated_power
+
+
+def test_a_candidate_without_price_ranks_after_priced_ones():
+    app = _application()
+    free = _pump("F-28", 28e-6, 0.94, 0.85, None)
+    priced = _pump("P-28", 28e-6, 0.94, 0.85, 5000.0)
+    comp = compare([free, priced], app)
+    ranks = {c.datasheet.model: c.rank for c in comp.candidates}
+    assert ranks == {"P-28": 1, "F-28": 2}

@@ -186,11 +186,23 @@ def _duty_sheet(book: Any, name: str, candidate: Candidate, units: str) -> dict[
          float(np.sum(pin * power_si_per_display * d) * kwh_per_j)),
     ]
     refs: dict[str, str] = {}
+    if note:
+        # Binned means understate peaks and RMS: give the checker's figures over every sample instead.
+        fig = candidate.result.drive
+        exact = {"cycle": float(np.sum(fig.duration)), "peak_power": _show(fig.peak_power, POWER, units),
+                 "rms_power": _show(fig.rms_power, POWER, units),
+                 "peak_torque": _show(fig.peak_torque, TORQUE, units),
+                 "mean_loss": _show(fig.mean_power_loss, POWER, units),
+                 "energy": fig.energy_per_cycle * kwh_per_j}
+        sheet.write_string(total_row - 1, 0, "over every sample (not the bins above):", f["note"])
     for k, (key, text, c, formula, value) in enumerate(totals):
         r = total_row + k
         sheet.write_string(r, 0, text, f["header"])
-        write_formula(sheet, r, c, formula, value, f["n2"])
-        refs[key] = f"'{name}'!{xl_rowcol_to_cell(r, c, row_abs=True, col_abs=True)}"
+        if note:
+            write_value(sheet, r, c, exact[key], f["n2"])
+        else:
+            write_formula(sheet, r, c, formula, value, f["n2"])
+            refs[key] = f"'{name}'!{xl_rowcol_to_cell(r, c, row_abs=True, col_abs=True)}"
     sheet.set_column(0, 0, 24)
     sheet.set_column(1, len(headers), 13)
     sheet.freeze_panes(4, 1)
@@ -274,13 +286,20 @@ def _summary(book: Any, comp: Comparison, units: str, duty_refs: list[dict[str, 
         ("peak_power", f"peak input power [{u(POWER)}]", POWER, "peak_power"),
         ("rms_power", f"RMS input power [{u(POWER)}]", POWER, "rms_power"),
         ("peak_torque", f"peak torque [{u(TORQUE)}]", TORQUE, "peak_torque"),
-        ("mean_loss", f"heat into the oil (mean power loss) [{u(POWER)}]", POWER, "mean_power_loss"),
+        ("mean_loss", f"pump power loss, mean [{u(POWER)}]", POWER, "mean_power_loss"),
     ):
         sheet.write_string(row, 0, label)
         for c, (cand, refs) in enumerate(zip(cands, duty_refs, strict=True), start=1):
-            write_formula(sheet, row, c, f"={refs[key]}", _show(getattr(cand.result.drive, attr), kind, units),
-                          f["n2"])
+            value = _show(getattr(cand.result.drive, attr), kind, units)
+            if key in refs:
+                write_formula(sheet, row, c, f"={refs[key]}", value, f["n2"])
+            else:  # a resampled series: the duty sheet's bins are not the whole truth
+                write_value(sheet, row, c, value, f["n2"])
         row += 1
+    line(f"surplus flow over the relief valve or a throttle, mean [{u(POWER)}]",
+         [_show(c.throttling_heat, POWER, units) for c in cands], "n2")
+    line(f"heat into the oil, mean [{u(POWER)}]",
+         [_show(c.heat_to_oil + c.throttling_heat, POWER, units) for c in cands], "n2")
     line("motor chosen", [c.motor.label if c.motor else "none" for c in cands],
          [None if c.motor else "fail" for c in cands])
     line("motor load (of its rating)", [c.motor_note for c in cands])
