@@ -302,7 +302,8 @@ def _summary(book: Any, comp: Comparison, units: str, duty_refs: list[dict[str, 
          [_show(c.heat_to_oil + c.throttling_heat, POWER, units) for c in cands], "n2")
     line("motor chosen", [c.motor.label if c.motor else "none" for c in cands],
          [None if c.motor else "fail" for c in cands])
-    line("motor load (of its rating)", [c.motor_note for c in cands])
+    sheet.set_row(row, 30)
+    line("motor load (of its rating)", [c.motor_note for c in cands], "wrap")
     line("motor full-load efficiency", [c.motor.efficiency if c.motor else None for c in cands], "pct")
     line("electrical energy per cycle [kWh]", [c.electrical_energy_per_cycle / 3.6e6 for c in cands], "n3")
     line("electrical energy per year [kWh]", [c.electrical_energy_per_year / 3.6e6 for c in cands], "n0")

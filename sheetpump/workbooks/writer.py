@@ -41,6 +41,7 @@ STYLES: dict[str, dict[str, Any]] = {
     "info": {"bg_color": "#E4ECF7", "font_color": "#22406B"},
     "note": {"italic": True, "font_color": "#555555", "text_wrap": True, "valign": "top"},
     "caution": {"bold": True, "font_color": "#7A1B12", "text_wrap": True, "valign": "top"},
+    "wrap": {"text_wrap": True, "valign": "top"},
     # number formats
     "n0": {"num_format": "#,##0"},
     "n1": {"num_format": "#,##0.0"},
