@@ -26,6 +26,7 @@ import numpy as np
 from .checks import FAIL, CheckResult, CheckSettings, DriveFigures, check, stretches
 from .datasheet import Datasheet
 from .duty import Application
+from .errors import InputError
 from .physics import drive
 from .physics.pump import PhysicsError
 
@@ -173,6 +174,11 @@ def compare(datasheets: Sequence[Datasheet], application: Application,
     ('15 kW', 1)
     """
     settings = settings or CheckSettings()
+    busy = application.cycles_per_hour * application.duty.cycle_time
+    if busy > 3600.0 * (1 + 1e-9):
+        raise InputError(f"{application.cycles_per_hour:g} cycles per hour of {application.duty.cycle_time:g} s "
+                         f"take {busy / 3600:.2f} hours each hour", application.where("cycles_per_hour"),
+                         "check the cycles per hour against the duty's cycle time")
     results = [check(ds, application, settings) for ds in datasheets]
     candidates = [_candidate(r, application) for r in results]
     passing = [i for i, c in enumerate(candidates)

@@ -247,3 +247,12 @@ def test_a_candidate_without_price_ranks_after_priced_ones():
     comp = compare([free, priced], app)
     ranks = {c.datasheet.model: c.rank for c in comp.candidates}
     assert ranks == {"P-28": 1, "F-28": 2}
+
+
+def test_more_cycles_than_fit_in_an_hour_is_refused():
+    # 35 s cycles: at most 3600 / 35 = 102.9 an hour (arithmetic)
+    from sheetpump.errors import InputError
+
+    with pytest.raises(InputError, match="hours each hour"):
+        compare([_pump("A-28", 28e-6, 0.94, 0.85, 500.0)], _application(cycles_per_hour=103))
+    compare([_pump("A-28", 28e-6, 0.94, 0.85, 500.0)], _application(cycles_per_hour=102))

@@ -591,3 +591,11 @@ def test_speed_min_above_max_message_is_clear(tmp_path):
         read_datasheet(path)
     text = str(info.value)
     assert str(path) in text and "Pump!" in text and "(speed_max)" in text
+
+
+def test_settings_left_empty_are_reported_as_defaulted(tmp_path):
+    values = machine(cycles_per_hour=None, energy_price=None)
+    path = fill(tmp_path / "t.xlsx", "application", values, tmp_path / "app.xlsx", table=SEGMENTS_METRIC)
+    app = read_application(path)
+    assert "cycles_per_hour" in app.defaulted and "energy_price" in app.defaulted
+    assert "hours_per_year" not in app.defaulted

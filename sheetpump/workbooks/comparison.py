@@ -310,7 +310,8 @@ def _summary(book: Any, comp: Comparison, units: str, duty_refs: list[dict[str, 
     line(f"energy cost per year [{app.currency}]", [c.energy_cost_per_year for c in cands], "n0")
     line(f"cost over {app.evaluation_years:g} years [{app.currency}]", [c.cost_over_period for c in cands], "n0")
     line("rank (passing candidates, by cost over the period)", [c.rank if c.rank else "not ranked" for c in cands])
-    line("notes", ["; ".join(c.notes) for c in cands])
+    defaults = f"defaults used for: {', '.join(app.defaulted)}" if app.defaulted else ""
+    line("notes", ["; ".join([*c.notes, defaults] if defaults else c.notes) for c in cands], "wrap")
     sheet.set_column(0, 0, 75)
     sheet.set_column(1, max(len(cands), 2), 36)
     sheet.freeze_panes(8, 1)
@@ -482,6 +483,7 @@ def _assumptions(book: Any, comp: Comparison, inputs: Sequence[str | os.PathLike
         ("motor efficiency table", "IEC 60034-30-1 IE3, 4-pole 50 Hz (full load)" if app.motor_standard == "IEC"
          else "NEMA MG 1 Table 12-12, NEMA Premium, 4-pole enclosed (full load)"),
         ("electrical energy", "shaft energy / full-load motor efficiency (part-load efficiency not modelled)"),
+        ("settings not given (defaults used)", ", ".join(app.defaulted) or "none"),
         ("sheetpump version", __version__),
     ]
     sheet.write_string(0, 0, "Assumptions and inputs", f["title"])

@@ -636,7 +636,14 @@ def read_application(path: str | os.PathLike[str]) -> Application:
         sources["speed_min"] = sources["speed_max"] = w("drive_speed")
     sources["duty"] = duty.where
     sources["oil"] = w("oil_grade") if got["oil_grade"] is not None else w("oil_viscosity_1")
-    return Application(duty=duty, oil=oil, file=book.file, sources=sources, **kw)
+    defaulted = tuple(k for k in _DEFAULTED if got.get(k) is None)
+    if got.get("oil_density") is None:
+        defaulted += ("oil_density",)
+    return Application(duty=duty, oil=oil, file=book.file, sources=sources, defaulted=defaulted, **kw)
+
+
+#: Settings with a default: when one is not given, reports say that the default was used.
+_DEFAULTED = ("overshoot", "cycles_per_hour", "hours_per_year", "evaluation_years", "energy_price")
 
 
 _APP_ATTRS = {
