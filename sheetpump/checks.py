@@ -806,9 +806,9 @@ def check(datasheet: Datasheet, application: Application,
     ctx = _Context(datasheet, application, duty, settings, duty.cycle_time)
     oil = application.oil
     nu = np.asarray(fluid.viscosity_at(duty.temperature, oil.nu1, oil.t1, oil.nu2, oil.t2), float)
-    rho = fluid.density_at(duty.temperature, oil.density_15)
-    # the supplier's test oil is rarely stated: its kinematic viscosities are taken at this oil's density
-    est = performance.estimate(datasheet, duty.pressure, duty.speed, nu, rho, oil.density_15)
+    # The supplier's test oil is rarely stated: its kinematic viscosities and the duty's are turned into
+    # dynamic ones with one density, so the loss model sees the ratio of kinematic viscosities.
+    est = performance.estimate(datasheet, duty.pressure, duty.speed, nu, oil.density_15, oil.density_15)
     findings: list[Finding] = []
     findings += _speed(ctx)
     findings += _pressure(ctx)

@@ -23,10 +23,11 @@ from dataclasses import dataclass
 import numpy as np
 
 from .datasheet import Datasheet
+from .physics import losses
+from .physics.pump import TWO_PI
 
 __all__ = ["Estimate", "efficiencies", "estimate"]
 
-_TWO_PI = 2.0 * math.pi
 
 
 @dataclass(frozen=True)
@@ -51,94 +52,53 @@ class Estimate:
     notes: tuple[str, ...] = ()
 
 
-def _field(result: object, *names: str) -> np.ndarray | None:
-    """Read one output of a loss model's prediction, an attribute or a mapping key."""
-    for name in names:
-        value = result.get(name) if isinstance(result, dict) else getattr(result, name, None)
-        if value is not None:
-            return np.asarray(value, dtype=bool if name == "extrapolated" else float)
-    return None
-
-
 def _from_table(ds: Datasheet, pressure: np.ndarray, speed: np.ndarray, viscosity: np.ndarray,
                 density: np.ndarray | float, table_density: float) -> tuple[Estimate | None, str]:
     """Fit the performance table and evaluate it; ``(None, why)`` when that is not possible."""
     table = ds.performance
     if table is None or len(table) == 0:
         return None, "the datasheet has no performance table"
-    try:
-        from .physics import losses
-    except ImportError:
-        return None, "the loss model (sheetpump.physics.losses) is not available"
     t_speed = np.asarray(table.speed, float)
-    torque = table.torque
-    if torque is None and table.input_power is not None:
-        # P = T·2πn (ISO 4391)
-        torque = np.asarray(table.input_power, float) / (_TWO_PI * t_speed)
-    if torque is None:
+    if table.torque is not None:
+        torque = np.asarray(table.torque, float)
+    elif table.input_power is not None:
+        torque = np.asarray(table.input_power, float) / (TWO_PI * t_speed)  # P = T·2πn (ISO 4391)
+    else:
         return None, "the performance table gives neither torque nor input power"
     shape = np.broadcast_shapes(pressure.shape, speed.shape, viscosity.shape)
     p, n, nu, rho = (np.broadcast_to(x, shape) for x in (pressure, speed, viscosity, density))
     running = n > 0  # the model needs a turning shaft; standing points are filled in by _stopped
-    every = bool(running.all())
     try:
         # Wilson's model wants dynamic viscosity μ = ν·ρ
         model = losses.fit_performance(
-            t_speed, np.asarray(table.pressure, float), np.asarray(table.flow, float),
-            np.asarray(torque, float), np.asarray(table.viscosity, float) * table_density, ds.displacement)
-        at = (lambda x: x) if every else (lambda x: x[running])
-        result = model.predict(at(n), at(p), at(nu) * at(rho))
+            t_speed, np.asarray(table.pressure, float), np.asarray(table.flow, float), torque,
+            np.asarray(table.viscosity, float) * table_density, ds.displacement)
+        pred = model.predict(n[running], p[running], nu[running] * rho[running])
     except (ValueError, ArithmeticError, np.linalg.LinAlgError) as exc:  # PhysicsError is a ValueError
         return None, f"the performance table could not be used ({exc})"
 
-    def full(name: str, fill: float | bool) -> np.ndarray | None:
-        value = _field(result, *_NAMES[name])
-        if value is None or every:
-            return value
-        out = np.full(shape, fill, dtype=value.dtype)
-        out[running] = value
+    def full(values: np.ndarray, fill: float | bool) -> np.ndarray:
+        out = np.full(shape, fill, dtype=np.asarray(values).dtype)
+        out[running] = values
         return out
 
-    eta_v, eta_hm, eta_t = full("v", math.nan), full("hm", math.nan), full("t", math.nan)
-    if eta_v is None or eta_t is None:
-        return None, "the loss model gave no efficiencies"
-    if eta_hm is None:
-        eta_hm = eta_t / eta_v
-    flow = full("flow", 0.0)
-    if flow is None:
-        flow = ds.displacement * n * eta_v
-    torque_out = full("torque", math.nan)
-    if torque_out is None:
-        torque_out = ds.displacement * p / (_TWO_PI * eta_hm)
-    power = full("power", 0.0)
-    if power is None:
-        power = torque_out * _TWO_PI * n
-    extrapolated = full("extrapolated", False)
-    if extrapolated is None:
-        extrapolated = np.zeros(shape, bool)
-    raw = getattr(result, "notes", None) or getattr(model, "notes", None) or ()
-    method = getattr(model, "method", "")
-    notes = (f"η_v and η_t from the performance table ({len(table)} points)"
-             + (f", {method}" if method else " fitted with the loss model")
-             + "; table viscosity taken at the application oil's density",
-             *(str(x) for x in ([raw] if isinstance(raw, str) else raw)))
-    return Estimate(
-        np.broadcast_to(eta_v, shape), np.broadcast_to(eta_hm, shape), np.broadcast_to(eta_t, shape),
-        np.broadcast_to(flow, shape), np.broadcast_to(torque_out, shape),
-        np.broadcast_to(power, shape), np.broadcast_to(extrapolated, shape),
-        "table", True, True, notes,
-    ), ""
-
-
-_NAMES = {
-    "v": ("volumetric", "volumetric_efficiency"),
-    "hm": ("hydromechanical", "hydromechanical_efficiency"),
-    "t": ("total", "total_efficiency"),
-    "flow": ("flow",),
-    "torque": ("torque",),
-    "power": ("input_power",),
-    "extrapolated": ("extrapolated",),
-}
+    eta_v, eta_hm = full(pred.volumetric, math.nan), full(pred.hydromechanical, math.nan)
+    torque_out, extrapolated = full(pred.torque, math.nan), full(pred.extrapolated, False)
+    notes = [f"η_v and η_t from the performance table ({len(table)} points), {model.method}; table "
+             "viscosity taken at the application oil's density", *model.notes]
+    # A fit with a negative loss coefficient can promise η above 1: never count on more than the
+    # geometric flow or less than the loss-free torque there, and say so (the rule then warns).
+    unphysical = (eta_v > 1) | (eta_hm > 1)
+    if unphysical.any():
+        notes.append(f"the fitted model gives an efficiency above 1 at {int(unphysical.sum())} point(s) "
+                     "(a negative loss coefficient): capped at 1 and treated as extrapolated")
+        eta_v, eta_hm = np.minimum(eta_v, 1.0), np.minimum(eta_hm, 1.0)
+        torque_out = np.maximum(torque_out, ds.displacement * p / TWO_PI)
+        extrapolated = extrapolated | unphysical
+    flow = ds.displacement * n * eta_v  # Q_e = V·n·η_v
+    power = torque_out * TWO_PI * n  # P = T·2πn
+    return Estimate(eta_v, eta_hm, eta_v * eta_hm, flow, torque_out, power, extrapolated, "table", True, True,
+                    tuple(notes)), ""
 
 
 def estimate(datasheet: Datasheet, pressure: np.ndarray, speed: np.ndarray, viscosity: np.ndarray,
@@ -225,8 +185,8 @@ def _from_stated(ds: Datasheet, pressure: np.ndarray, speed: np.ndarray, why: st
     eta_t = np.broadcast_to(np.float64(t_), shape)
     eta_hm = np.broadcast_to(np.float64(t_ / v_), shape)
     flow = (ds.displacement * v_) * speed
-    torque = (ds.displacement / (_TWO_PI * (t_ / v_))) * pressure
-    power = torque * (_TWO_PI * speed)
+    torque = (ds.displacement / (TWO_PI * (t_ / v_))) * pressure
+    power = torque * (TWO_PI * speed)
     return Estimate(eta_v, eta_hm, eta_t, np.broadcast_to(flow, shape), np.broadcast_to(torque, shape),
                     np.broadcast_to(power, shape), np.broadcast_to(np.True_, shape), basis,
                     ds.volumetric_efficiency is not None,
@@ -240,7 +200,7 @@ def _stopped(ds: Datasheet, est: Estimate, pressure: np.ndarray, speed: np.ndarr
         return est
     flow = np.where(still, 0.0, est.flow)
     power = np.where(still, 0.0, est.input_power)
-    torque = np.where(still, ds.displacement * pressure / _TWO_PI, est.torque)
+    torque = np.where(still, ds.displacement * pressure / TWO_PI, est.torque)
     return Estimate(est.volumetric_efficiency, est.hydromechanical_efficiency, est.total_efficiency,
                     flow, torque, power, est.extrapolated & ~still, est.basis, est.volumetric_known,
                     est.total_known, est.notes)

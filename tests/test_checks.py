@@ -9,7 +9,6 @@ from __future__ import annotations
 
 import dataclasses
 import math
-import sys
 import types
 
 import numpy as np
@@ -510,25 +509,31 @@ def test_table_is_used_through_the_loss_model(monkeypatch):
         def predict(self, speed, pressure, viscosity):
             seen["mu"] = np.asarray(viscosity)
             v = np.full(np.shape(speed), 0.9)
+            torque = 28e-6 * np.asarray(pressure) / (2 * np.pi * v)  # T = V·Δp/(2π·η_hm)
             return types.SimpleNamespace(volumetric=v, hydromechanical=v, total=v * v,
-                                         flow=28e-6 * np.asarray(speed) * v, torque=None, input_power=None,
+                                         flow=28e-6 * np.asarray(speed) * v, torque=torque,
+                                         input_power=torque * 2 * np.pi * np.asarray(speed),
                                          extrapolated=np.asarray(pressure) > 200e5)
 
-    fake = types.ModuleType("sheetpump.physics.losses")
-    fake.fit_performance = lambda *a, **k: Model()
-    monkeypatch.setitem(sys.modules, "sheetpump.physics.losses", fake)
-    import sheetpump.physics as physics
+    class Fitted:
+        method = "stand-in"
+        notes = ()
+        predict = Model().predict
 
-    monkeypatch.setattr(physics, "losses", fake, raising=False)
+    fake = types.SimpleNamespace(fit_performance=lambda *a, **k: Fitted())
+    import sheetpump.performance as performance
+
+    monkeypatch.setattr(performance, "losses", fake)
     table = PerformanceTable(np.array([50e5, 250e5]), np.array([6e-4, 5.8e-4]), np.array([25.0, 25.0]),
                              np.array([32e-6, 32e-6]), torque=np.array([30.0, 120.0]))
     ds = metric_pump(performance=table)
     rows = _p_rows([(10, 150e5), (5, 240e5)], ds)
     r = check(ds, app_for(duty(rows)))
     np.testing.assert_allclose(r.drive.volumetric_efficiency, 0.9)
-    from sheetpump.physics.fluid import density_at, viscosity_at
+    from sheetpump.physics.fluid import viscosity_at
 
-    mu = viscosity_at(323.15, OIL.nu1, OIL.t1, OIL.nu2, OIL.t2) * density_at(323.15, OIL.density_15)
+    # one density for the table and the duty, so the model sees the ratio of kinematic viscosities
+    mu = viscosity_at(323.15, OIL.nu1, OIL.t1, OIL.nu2, OIL.t2) * OIL.density_15
     np.testing.assert_allclose(seen["mu"], mu)
     f = finding(r, "performance.basis")
     assert f.severity == WARN and f.count == 1 and f.segments == ("s1",)
@@ -597,3 +602,19 @@ def test_duty_above_its_own_relief_setting_is_flagged():
     above = finding(check(ds, app_for(duty(quiet(ds, pressure=200e5 * (1 + EPS))))), "pressure.duty-relief")
     assert at.severity == PASS and above.severity == WARN
     assert "relief valve would open" in above.message
+
+
+def test_a_fit_promising_more_than_geometric_flow_is_capped_and_warned():
+    # An invented table whose flow rises with pressure above V·n (η_v > 1: a bad bench reading):
+    # the fit gets a negative leakage coefficient; the checker must not count on more than V·n.
+    n = np.array([25.0] * 4 + [33.3] * 4)
+    p = np.tile([20e5, 80e5, 150e5, 220e5], 2)
+    q = 28e-6 * n * (1.0 + 0.02 * p / 220e5)
+    torque = 28e-6 * p / (2 * np.pi * 0.9) + 1.0
+    table = PerformanceTable(p, q, n, np.full(8, 32e-6), torque=torque)
+    ds = metric_pump(performance=table)
+    r = check(ds, app_for(duty(quiet(ds, pressure=180e5, speed=25.0))))
+    assert np.all(r.drive.volumetric_efficiency <= 1.0)
+    assert np.all(r.drive.flow <= 28e-6 * 25.0 * (1 + 1e-12))  # never more than V·n (geometric flow)
+    f = finding(r, "performance.basis")
+    assert f.severity == WARN and "above 1" in f.message
