@@ -606,6 +606,14 @@ def _temperature(ctx: _Context) -> list[Finding]:
     if ds.temperature_max is not None:
         out.append(_bound(ctx, "temperature.max", duty.temperature, ds.temperature_max, True, TEMPERATURE,
                           ds.where("temperature_max")))
+    # A margin as a share of a temperature in kelvin says little: take it as a share of the pump's
+    # temperature range where both ends are given (e.g. 55 °C against -20…80 °C: 25 K of 100 K = 25 %).
+    if ds.temperature_min is not None and ds.temperature_max is not None:
+        span = ds.temperature_max - ds.temperature_min
+        out = [_replace(f, margin=((f.limit - f.measured) if f.rule == "temperature.max" else
+                                   (f.measured - f.limit)) / span)
+               if isinstance(f.measured, float) and isinstance(f.limit, float) and span > 0 else f
+               for f in out]
     return out
 
 

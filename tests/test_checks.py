@@ -618,3 +618,11 @@ def test_a_fit_promising_more_than_geometric_flow_is_capped_and_warned():
     assert np.all(r.drive.flow <= 28e-6 * 25.0 * (1 + 1e-12))  # never more than V·n (geometric flow)
     f = finding(r, "performance.basis")
     assert f.severity == WARN and "above 1" in f.message
+
+
+def test_temperature_margin_is_a_share_of_the_pump_range():
+    # 50 °C on a pump rated -20…80 °C: 30 K below the top of a 100 K range = 30 % (arithmetic)
+    ds = metric_pump()
+    r = check(ds, app_for(duty(quiet(ds, temperature=323.15))))
+    assert finding(r, "temperature.max").margin == pytest.approx(0.30, rel=1e-12)
+    assert finding(r, "temperature.min").margin == pytest.approx(0.70, rel=1e-12)
