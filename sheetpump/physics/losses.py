@@ -39,6 +39,7 @@ References
 from __future__ import annotations
 
 import math
+from collections.abc import Callable
 from dataclasses import dataclass, field
 
 import numpy as np
@@ -1007,41 +1008,25 @@ def predicted_flow(speed: ArrayLike, pressure: ArrayLike, flow: ArrayLike, torqu
                     at_viscosity).flow
 
 
-def predicted_torque(speed: ArrayLike, pressure: ArrayLike, flow: ArrayLike, torque: ArrayLike,
-                     viscosity: ArrayLike, displacement: float, at_speed: ArrayLike, at_pressure: ArrayLike,
-                     at_viscosity: ArrayLike) -> np.ndarray:
-    """Input torque [N·m] at the asked points; arguments as :func:`predicted_flow`."""
-    return _predict(speed, pressure, flow, torque, viscosity, displacement, at_speed, at_pressure,
-                    at_viscosity).torque
+def _predictor(output: str, text: str) -> Callable[..., np.ndarray]:
+    """A function like :func:`predicted_flow` that gives another output of the prediction."""
+
+    def predicted(speed: ArrayLike, pressure: ArrayLike, flow: ArrayLike, torque: ArrayLike,
+                  viscosity: ArrayLike, displacement: float, at_speed: ArrayLike, at_pressure: ArrayLike,
+                  at_viscosity: ArrayLike) -> np.ndarray:
+        result = getattr(_predict(speed, pressure, flow, torque, viscosity, displacement, at_speed,
+                                  at_pressure, at_viscosity), output)
+        return result.astype(float) if output == "extrapolated" else result
+
+    name = {"volumetric": "volumetric_efficiency", "total": "total_efficiency"}.get(output, output)
+    predicted.__name__ = predicted.__qualname__ = f"predicted_{name}"
+    predicted.__doc__ = f"{text} at the asked points; arguments as :func:`predicted_flow`."
+    return predicted
 
 
-def predicted_input_power(speed: ArrayLike, pressure: ArrayLike, flow: ArrayLike, torque: ArrayLike,
-                          viscosity: ArrayLike, displacement: float, at_speed: ArrayLike,
-                          at_pressure: ArrayLike, at_viscosity: ArrayLike) -> np.ndarray:
-    """Input power [W] at the asked points; arguments as :func:`predicted_flow`."""
-    return _predict(speed, pressure, flow, torque, viscosity, displacement, at_speed, at_pressure,
-                    at_viscosity).input_power
-
-
-def predicted_volumetric_efficiency(speed: ArrayLike, pressure: ArrayLike, flow: ArrayLike, torque: ArrayLike,
-                                    viscosity: ArrayLike, displacement: float, at_speed: ArrayLike,
-                                    at_pressure: ArrayLike, at_viscosity: ArrayLike) -> np.ndarray:
-    """Volumetric efficiency η_v [-] at the asked points; arguments as :func:`predicted_flow`."""
-    return _predict(speed, pressure, flow, torque, viscosity, displacement, at_speed, at_pressure,
-                    at_viscosity).volumetric
-
-
-def predicted_total_efficiency(speed: ArrayLike, pressure: ArrayLike, flow: ArrayLike, torque: ArrayLike,
-                               viscosity: ArrayLike, displacement: float, at_speed: ArrayLike,
-                               at_pressure: ArrayLike, at_viscosity: ArrayLike) -> np.ndarray:
-    """Total efficiency η_t [-] at the asked points; arguments as :func:`predicted_flow`."""
-    return _predict(speed, pressure, flow, torque, viscosity, displacement, at_speed, at_pressure,
-                    at_viscosity).total
-
-
-def predicted_extrapolated(speed: ArrayLike, pressure: ArrayLike, flow: ArrayLike, torque: ArrayLike,
-                           viscosity: ArrayLike, displacement: float, at_speed: ArrayLike,
-                           at_pressure: ArrayLike, at_viscosity: ArrayLike) -> np.ndarray:
-    """1 where the asked point lies outside the measured ranges, else 0; arguments as :func:`predicted_flow`."""
-    return _predict(speed, pressure, flow, torque, viscosity, displacement, at_speed, at_pressure,
-                    at_viscosity).extrapolated.astype(float)
+predicted_torque = _predictor("torque", "Input torque [N·m]")
+predicted_input_power = _predictor("input_power", "Input power [W]")
+predicted_volumetric_efficiency = _predictor("volumetric", "Volumetric efficiency η_v [-]")
+predicted_total_efficiency = _predictor("total", "Total efficiency η_t [-]")
+predicted_extrapolated = _predictor("extrapolated",
+                                    "1 where the asked point lies outside the measured ranges, else 0")
