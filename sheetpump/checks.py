@@ -30,6 +30,7 @@ the end continues at the start. Durations are summed with a cumulative sum, neve
 
 from __future__ import annotations
 
+import dataclasses
 import math
 import re
 from dataclasses import dataclass, field
@@ -53,6 +54,7 @@ from .units import (
     TORQUE,
     VISCOSITY,
     Kind,
+    from_si,
 )
 
 __all__ = [
@@ -279,8 +281,6 @@ class _Context:
 
 def _fmt(ctx: _Context, kind: Kind | None, value: float) -> str:
     """A value in the display unit, for messages."""
-    from .units import from_si
-
     if kind is None:
         return f"{value:.4g}"
     if not math.isfinite(value):
@@ -473,9 +473,7 @@ def _pressure(ctx: _Context) -> list[Finding]:
 
 
 def _replace(f: Finding, **changes: object) -> Finding:
-    from dataclasses import replace
-
-    return replace(f, **changes)
+    return dataclasses.replace(f, **changes)
 
 
 def _stretch_rule(ctx: _Context, rule: str, first: np.ndarray, stop: np.ndarray, length: np.ndarray,
