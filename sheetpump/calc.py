@@ -236,20 +236,29 @@ class Calculation:
         else:
             factor, offset = self._result_default
         converted = []
-        texts = self._texts
-        for i, (value, f) in enumerate(zip(values, factors, strict=False)):  # the common cases
+        append = converted.append
+        for value, f in zip(values, factors, strict=False):  # the common case: numbers, default units
             tv = type(value)
             if (tv is float or tv is int) and f is not None and _isfinite(value):
-                converted.append(value * f)  # a number in the default unit
-            elif tv is str and value in texts[i]:
-                converted.append(texts[i][value])  # a text seen before
-            elif tv is str:
-                si_value = self._argument(i, value)  # raises for a bad text: nothing is kept
-                if type(si_value) is float and len(texts[i]) < _TEXTS_KEPT:
-                    texts[i][value] = si_value
-                converted.append(si_value)
+                append(value * f)
             else:
                 break
+        if len(converted) < len(values):  # texts: those seen before cost one lookup
+            texts = self._texts
+            for i in range(len(converted), len(values)):
+                value = values[i]
+                tv = type(value)
+                if (tv is float or tv is int) and factors[i] is not None and _isfinite(value):
+                    append(value * factors[i])
+                elif tv is str and value in texts[i]:
+                    append(texts[i][value])
+                elif tv is str:
+                    si_value = self._argument(i, value)  # raises for a bad text: nothing is kept
+                    if type(si_value) is float and len(texts[i]) < _TEXTS_KEPT:
+                        texts[i][value] = si_value
+                    append(si_value)
+                else:
+                    break
         if len(converted) < len(values):  # a range, a text with a unit, an empty cell, ...
             first = values[len(converted)]
             if (self.scaling is not None and not si and not offset and len(values) == n
@@ -320,6 +329,10 @@ class Calculation:
         (nested lists or an array) gives a 2-D list of the broadcast shape; single cells give a number.
         Errors come back as text starting with :data:`ERROR_PREFIX`.
         """
+        return self.cell_values(values)
+
+    def cell_values(self, values: tuple[Any, ...]) -> float | list[list[Any]] | str:
+        """:meth:`cell` with the arguments as one tuple (what the generated cell functions call)."""
         try:
             out = self._compute(values)
         except InputError as exc:

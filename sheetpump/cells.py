@@ -46,10 +46,12 @@ def cell_function(calc: Calculation) -> Callable[..., Any]:
     declared default") followed by ``unit=None``; its docstring is the one-line help.
     """
 
+    cell = calc.cell_values
+
     def function(*values: Any) -> Any:
         if list in map(type, values):  # checked in C: single numbers pass straight through
             values = tuple(_unwrap(v) for v in values)
-        return calc.cell(*values)
+        return cell(values)
 
     params = [
         inspect.Parameter(a.name, inspect.Parameter.POSITIONAL_OR_KEYWORD,
