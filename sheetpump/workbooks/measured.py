@@ -43,7 +43,7 @@ from .. import units as u
 from ..errors import InputError, Where
 from ..evaluation import MeasuredTable
 from .safe import check_file, sheet_members
-from .series import _read_csv, _read_xlsx, column_letter, match_columns, parse_header
+from .series import column_letter, match_columns, parse_header, read_csv_table, read_xlsx_table
 from .templates import Column
 
 __all__ = ["HEADER_SEARCH_ROWS", "MEASURED_COLUMNS", "read_measured"]
@@ -113,7 +113,7 @@ def _numbers(values: Any, key: str, file: str, sheet: str | None, letter: str, r
 
 def _grid_xlsx(path: Path, sheet: str | None) -> tuple[str, list[list[Any]], int, int]:
     """(sheet name, rows of cells, 1-based row of the first row, 0-based first column)."""
-    name, headers, table, first_row, first_col = _read_xlsx(path, sheet)
+    name, headers, table, first_row, first_col = read_xlsx_table(path, sheet)
     rows = [list(headers), *(list(r) for r in table)]
     return name, rows, first_row, first_col
 
@@ -173,7 +173,7 @@ def read_measured(path: str | os.PathLike[str], *, sheet: str | None = None,
     file = str(path)
     if kind == "csv":
         sheet_name = None
-        headers, data = _read_csv(path)
+        headers, data = read_csv_table(path)
         headers = [_PANDAS_DUPLICATE.sub(r"\1", h) for h in headers]
         count = len(next(iter(data.values()))) if data else 0
         columns = [np.asarray(data[i], dtype=object) for i in range(len(headers))]

@@ -36,7 +36,8 @@ from ..units import Kind, unit_factor
 from .safe import check_file, check_sheet_extent, sheet_members
 from .templates import SERIES_COLUMNS, Column
 
-__all__ = ["DEFAULT_GAP_FACTOR", "match_columns", "parse_header", "read_series"]
+__all__ = ["DEFAULT_GAP_FACTOR", "column_letter", "match_columns", "parse_header", "read_csv_table", "read_series",
+           "read_xlsx_table"]
 
 #: A step longer than this many median steps is a gap (unless ``max_step`` says otherwise).
 DEFAULT_GAP_FACTOR = 10.0
@@ -168,7 +169,9 @@ def _time_column(values: np.ndarray) -> np.ndarray:
     return values
 
 
-def _read_csv(path: Path) -> tuple[list[str], dict[int, np.ndarray]]:
+def read_csv_table(path: Path) -> tuple[list[str], dict[int, np.ndarray]]:
+    """A CSV file's header texts and its columns by position (comma or semicolon; decimal commas with
+    semicolons), for every reader of tables with a ``word [unit]`` header row."""
     import pandas as pd
 
     with open(path, "rb") as handle:
@@ -198,7 +201,9 @@ def _read_csv(path: Path) -> tuple[list[str], dict[int, np.ndarray]]:
     return headers, data
 
 
-def _read_xlsx(path: Path, sheet: str | None) -> tuple[str, list[Any], np.ndarray, int, int]:
+def read_xlsx_table(path: Path, sheet: str | None) -> tuple[str, list[Any], np.ndarray, int, int]:
+    """A sheet's table through calamine: ``(sheet name, header row, body, header row number, first column)``;
+    the first sheet when ``sheet`` is None. The file must have passed :func:`~.safe.check_file`."""
     from python_calamine import CalamineWorkbook
 
     members = sheet_members(path)
@@ -271,11 +276,11 @@ def read_series(path: str | os.PathLike[str], *, sheet: str | None = None,
     file = str(path)
     if kind == "csv":
         sheet_name = None
-        headers, data = _read_csv(path)
+        headers, data = read_csv_table(path)
         row0, col0 = 2, 0
         nrows = len(next(iter(data.values()))) if data else 0
     else:
-        sheet_name, headers, table, header_row, col0 = _read_xlsx(path, sheet)
+        sheet_name, headers, table, header_row, col0 = read_xlsx_table(path, sheet)
         row0 = header_row + 1
         data = {i: table[:, i] for i in range(table.shape[1])}
         nrows = table.shape[0]
