@@ -85,7 +85,8 @@ def run(args: argparse.Namespace) -> int:
             raise InputError(f"{exc.argument} {exc.reason}", Where(file=path, field=exc.argument)) from None
     several = len(results) > 1
     annotated = [annotate_target(args.annotate, path, several) for path in args.datasheets] if args.annotate else []
-    outputs = [*(("--annotate", target) for target in annotated), ("--junit", args.junit), ("--output", args.output)]
+    shown = [str(target) for target in annotated] if several else [args.annotate] * len(annotated)  # as typed
+    outputs = [*(("--annotate", target) for target in shown), ("--junit", args.junit), ("--output", args.output)]
     check_outputs([(option, path) for option, path in outputs if path], inputs_of(app, args.app, args.datasheets))
     for path, r, target in zip(args.datasheets, results, annotated, strict=False):
         report.annotate(r, target, source=path)
