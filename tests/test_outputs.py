@@ -7,7 +7,8 @@ wrong:
   a hard link (same device and inode) and a symlink to it;
 - **two outputs of one command are one file** (same path, other spelling, hard link, symlink);
 - **cannot be written**: the output is a folder (for ``demo``, whose output is a folder: a file), its
-  parent is a file, a missing folder under a file, a read-only folder.
+  parent is a file, a missing folder under a file, a read-only folder (root ignores permissions: there the
+  real read-only folder is skipped and the refusal simulated, see the ``read_only`` fixture).
 
 Each refusal must be: exit code 2, exactly one line on stderr naming the option and the path, no
 traceback, every input byte-for-byte unchanged (SHA-256), nothing written and no temporary ``.part``
@@ -248,43 +249,35 @@ def test_an_output_that_cannot_be_written_is_refused(output, kind, inputs, finge
     _unchanged(fingerprints)
 
 
-@pytest.fixture
-def read_only(tmp_path):
-    """A folder without write permission (restored afterwards so that pytest can clean up)."""
+@pytest.fixture(params=["chmod 555", "os.access denies"])
+def read_only(request, tmp_path, monkeypatch):
+    """A folder without write permission: really (mode 0555, restored afterwards so that pytest can clean
+    up), or as sheetpump is told by ``os.access``, which also works for root."""
     folder = tmp_path / "read-only"
     folder.mkdir()
+    if request.param == "os.access denies":
+        real_access = os.access
+        monkeypatch.setattr(files_module.os, "access",
+                            lambda p, mode, **kw: False if Path(p) == folder else real_access(p, mode, **kw))
+        yield folder
+        return
     folder.chmod(0o555)
+    if os.access(folder, os.W_OK):
+        folder.chmod(0o755)
+        # root (or CAP_DAC_OVERRIDE) writes into a 0555 folder anyway, so there is no read-only folder to
+        # test with here; the "os.access denies" case and test_a_write_the_system_refuses_... simulate the
+        # refusal for root, and the parent-is-a-file cases above cover a real impossible write.
+        pytest.skip("running as root: permissions are not enforced, a 0555 folder is writable")
     yield folder
     folder.chmod(0o755)
 
 
 @pytest.mark.parametrize("output", OUTPUTS, ids=str)
 def test_an_output_in_a_read_only_folder_is_refused(output, read_only, inputs, fingerprints, capsys):
-    if os.access(read_only, os.W_OK):
-        # root (or CAP_DAC_OVERRIDE) writes into a 0555 folder anyway, so there is no read-only folder to
-        # test with here; the two tests below simulate the refusal for root, and the parent-is-a-file cases
-        # above cover a real impossible write.
-        pytest.skip("running as root: permissions are not enforced, a 0555 folder is writable")
     target = str(read_only / ("results" if output.folder else "out.xlsx"))
     line = _refused(capsys, output.argv(inputs, target), output.option, target)
     assert "permission" in line, line
     assert list(read_only.iterdir()) == []
-    _unchanged(fingerprints)
-
-
-@pytest.mark.parametrize("output", OUTPUTS, ids=str)
-def test_a_folder_said_read_only_is_refused_before_anything_is_written(output, tmp_path, inputs, fingerprints,
-                                                                       monkeypatch, capsys):
-    # Works for root too: os.access, which sheetpump asks, answers as it would for a user without permission.
-    folder = tmp_path / "read-only"
-    folder.mkdir()
-    real_access = os.access
-    monkeypatch.setattr(files_module.os, "access",
-                        lambda p, mode, **kw: False if Path(p) == folder else real_access(p, mode, **kw))
-    target = str(folder / ("results" if output.folder else "out.xlsx"))
-    line = _refused(capsys, output.argv(inputs, target), output.option, target)
-    assert "permission" in line, line
-    assert list(folder.iterdir()) == []
     _unchanged(fingerprints)
 
 
