@@ -182,10 +182,10 @@ def _table(pump: _Pump) -> tuple[list[str], list[list[Any]]]:
 
 def write_inputs(folder: str | os.PathLike[str]) -> list[Path]:
     """Write the demo's application and datasheet workbooks into ``folder``; returns their paths."""
+    from .files import make_folder
     from .workbooks.templates import DUTY_COLUMNS, write_template
 
-    folder = Path(folder)
-    folder.mkdir(parents=True, exist_ok=True)
+    folder = make_folder(folder)
     paths = [write_template("application", folder / APPLICATION_FILE, MACHINE, DUTY,
                             [c.header for c in DUTY_COLUMNS])]
     for pump in PUMPS:

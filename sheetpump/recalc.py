@@ -51,7 +51,7 @@ from defusedxml import ElementTree
 from .calc import Calculation
 from .catalogue import CATALOGUE
 from .errors import InputError, Where
-from .files import atomic_path
+from .files import atomic_path, check_outputs
 
 __all__ = [
     "DEFAULT_ABS_TOL",
@@ -881,9 +881,7 @@ def write_values(source: str | os.PathLike[str], target: str | os.PathLike[str],
     the file lacks are added.
     """
     source, target = Path(source), Path(target)
-    if target.exists() and target.resolve() == source.resolve():
-        raise InputError("the output would replace the input workbook", Where(file=str(target)),
-                         "give another output file with -o")
+    check_outputs([(None, target)], [("the workbook", source)])
     with zipfile.ZipFile(source) as archive:
         sheets = {s.name: s.part for s in _book_sheets(archive)}
         per_part: dict[str, dict[str, Any]] = {}

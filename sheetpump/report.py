@@ -20,7 +20,7 @@ import numpy as np
 from . import SAFETY_CAUTION, __version__
 from .checks import DISPLAY_UNITS, FAIL, INFO, PASS, WARN, CheckResult, Finding
 from .errors import InputError, Where
-from .files import atomic_path
+from .files import atomic_path, check_outputs, same_file
 from .units import FLOW, POWER, TORQUE, VISCOSITY, Kind, from_si
 
 __all__ = ["FILLS", "FINDINGS_SHEET", "annotate", "json_report", "junit_report", "text_report"]
@@ -310,15 +310,6 @@ def junit_report(results: Sequence[CheckResult], strict: bool = False) -> str:
 # Annotated copy
 
 
-def _same_file(a: str | os.PathLike[str] | None, b: str | os.PathLike[str] | None) -> bool:
-    if not a or not b:
-        return False
-    try:
-        return Path(a).resolve() == Path(b).resolve()
-    except OSError:
-        return False
-
-
 def _put(cell: Any, value: Any) -> None:
     """Write ``value`` as data: a text that looks like a formula stays text."""
     cell.value = value
@@ -353,9 +344,8 @@ def annotate(result: CheckResult, target: str | os.PathLike[str], source: str | 
     if not source:
         raise InputError("the datasheet was not read from a workbook, so there is nothing to annotate",
                          Where(field="--annotate"))
-    if _same_file(source, target) or _same_file(result.application.file, target):
-        raise InputError("the annotated copy would overwrite an input", Where(file=str(target),
-                         field="--annotate"), "give another file name")
+    inputs = [("the datasheet", source), ("the application workbook", result.application.file)]
+    check_outputs([("--annotate", target)], [(what, path) for what, path in inputs if path])
     try:
         from .workbooks.safe import open_workbook
     except ImportError:  # pragma: no cover - the guarded opener is part of the package
@@ -371,7 +361,7 @@ def annotate(result: CheckResult, target: str | os.PathLike[str], source: str | 
         w = f.where
         if f.severity not in FILLS or not w.sheet or not w.cell or w.sheet not in wb.sheetnames:
             continue
-        if w.file and not _same_file(w.file, source):
+        if w.file and not same_file(w.file, source):
             continue
         ws = wb[w.sheet]
         try:

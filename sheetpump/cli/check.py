@@ -16,7 +16,7 @@ from typing import Any
 
 from ..checks import FAIL, CheckResult, CheckSettings, check
 from ..errors import InputError, Where
-from ..files import atomic_write
+from ..files import atomic_write, check_outputs
 from ..physics.pump import PhysicsError
 
 EXIT_OK, EXIT_FAIL = 0, 1
@@ -61,6 +61,14 @@ def annotate_target(out: str, datasheet: str, several: bool) -> Path:
     return target.with_name(f"{target.stem}-{Path(datasheet).stem}{target.suffix or '.xlsx'}")
 
 
+def inputs_of(app: Any, app_path: str, datasheets: list[str]) -> list[tuple[str, str]]:
+    """The input files of a check or comparison, each with what it is (for :func:`check_outputs`)."""
+    found = [("the application workbook", app_path)]
+    if app.duty.source == "series" and app.duty.where.file:
+        found.append(("the application's duty log", app.duty.where.file))
+    return found + [("a datasheet", path) for path in datasheets]
+
+
 def run(args: argparse.Namespace) -> int:
     from .. import report
 
@@ -75,10 +83,13 @@ def run(args: argparse.Namespace) -> int:
             raise exc.at(file=path) from None
         except PhysicsError as exc:
             raise InputError(f"{exc.argument} {exc.reason}", Where(file=path, field=exc.argument)) from None
-    if args.annotate:
-        several = len(results) > 1
-        for path, r in zip(args.datasheets, results, strict=True):
-            report.annotate(r, annotate_target(args.annotate, path, several), source=path)
+    several = len(results) > 1
+    annotated = [annotate_target(args.annotate, path, several) for path in args.datasheets] if args.annotate else []
+    shown = [str(target) for target in annotated] if several else [args.annotate] * len(annotated)  # as typed
+    outputs = [*(("--annotate", target) for target in shown), ("--junit", args.junit), ("--output", args.output)]
+    check_outputs([(option, path) for option, path in outputs if path], inputs_of(app, args.app, args.datasheets))
+    for path, r, target in zip(args.datasheets, results, annotated, strict=False):
+        report.annotate(r, target, source=path)
     if args.junit:
         atomic_write(args.junit, report.junit_report(results, strict=args.strict))
     if args.format == "json":

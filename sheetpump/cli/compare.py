@@ -14,6 +14,7 @@ from pathlib import Path
 
 from ..checks import FAIL, WARN, CheckSettings
 from ..errors import InputError, Where
+from ..files import check_outputs
 from . import check as _check  # by module: its readers are looked up at call time
 
 EXIT_OK, EXIT_FAIL = 0, 1
@@ -68,11 +69,10 @@ def build(app_path: str, datasheets: list[str], out: str, units: str = "metric",
         progress.step(i, Path(path).name)
         sheets.append(_check._read(_check._read_datasheet, path, "datasheet workbook"))
     progress.done()
+    inputs = _check.inputs_of(app, app_path, paths)
+    check_outputs([("--output", out)], inputs)
     comp = compare(sheets, app, CheckSettings(units=units, strict=strict))
-    inputs = [app_path, *paths]
-    if app.duty.source == "series" and app.duty.where.file:
-        inputs.insert(1, app.duty.where.file)
-    write_comparison(out, comp, inputs=inputs, units=units)
+    write_comparison(out, comp, inputs=[path for _, path in inputs], units=units)
     return comp
 
 

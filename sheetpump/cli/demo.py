@@ -8,11 +8,14 @@ from __future__ import annotations
 import argparse
 
 from .. import SAFETY_CAUTION
+from ..files import writable_folder
 
 
 def run(args: argparse.Namespace) -> int:
     from ..demo import run as run_demo
 
+    if args.output is not None:
+        writable_folder("--output", args.output)
     result = run_demo(args.output)
     print(f"sheetpump demo: an invented baling press and {len(result.verdicts)} invented pumps")
     for label, verdict in result.verdicts.items():

@@ -27,6 +27,7 @@ import numpy as np
 from .. import SAFETY_CAUTION
 from ..duty import Oil
 from ..errors import InputError, Where
+from ..files import check_outputs
 from ..physics import fluid
 from ..physics.losses import FLAG_TEXT
 from ..physics.pump import PhysicsError
@@ -232,6 +233,8 @@ def run(args: argparse.Namespace) -> int:
         if value is not None and value <= 0:
             raise InputError("must be positive", Where(field=name))
     oil = oil_from_args(args, density)
+    if args.output:
+        check_outputs([("--output", args.output)], [("the measured table", args.table)])
     try:
         table = read_measured(args.table, sheet=args.sheet, speed=speed)
     except OSError as exc:

@@ -14,7 +14,8 @@ import argparse
 import sys
 from pathlib import Path
 
-from ..errors import InputError, Where
+from ..errors import InputError
+from ..files import check_outputs
 from ..recalc import DEFAULT_ABS_TOL, DEFAULT_REL_TOL, compare, recalculate, write_values
 from ..workbooks.safe import check_file
 
@@ -33,9 +34,8 @@ def run(args: argparse.Namespace) -> int:
     if args.output is None and not args.verify:
         raise InputError("nothing to do", hint="give -o OUT.xlsx to write a recalculated copy, or --verify")
     book = Path(args.book)
-    if args.output is not None and Path(args.output).resolve() == book.resolve():
-        raise InputError("the output would replace the input workbook", Where(file=str(args.output)),
-                         "give another file name with -o")
+    if args.output is not None:
+        check_outputs([("--output", args.output)], [("the workbook", args.book)])
     # The guarded opening every reader uses: not a workbook, encrypted, damaged, a zip bomb or XML
     # entities are refused here with a clear line, before the engine parses anything.
     check_file(book)

@@ -6,12 +6,14 @@ import argparse
 from pathlib import Path
 
 from ..errors import InputError, Where
+from ..files import check_outputs
 
 
 def run(args: argparse.Namespace) -> int:
     from ..workbooks.templates import write_template
 
     target = Path(args.output)
+    check_outputs([("--output", target)])
     if target.suffix.lower() not in (".xlsx", ".xlsm"):
         raise InputError("the template is an Excel workbook: give a name ending in .xlsx",
                          Where(file=str(target)))
