@@ -59,6 +59,7 @@ __all__ = [
     "PointEvaluation",
     "Prediction",
     "Residuals",
+    "UNCERTAINTY_FLOOR",
     "WilsonModel",
     "derived_displacement",
     "derived_displacement_uncertainty",
@@ -89,6 +90,14 @@ LEVEL_TOLERANCE = 0.03
 
 #: Points that agree within this relative tolerance in speed, pressure and viscosity are duplicates.
 _DUPLICATE_TOLERANCE = 1e-6
+
+#: Floor of the derived displacement's standard uncertainty, relative to its value [-]. A test bench's
+#: flow meter and tachometer are good to a few parts in ten thousand at best (common practice; the
+#: accuracy classes of ISO 4409 are coarser), so no table knows a displacement to one part in a million:
+#: a fit's uncertainty below this is round-off of an (almost) noiseless table, not a measurement, and a
+#: ratio over it (difference from nominal in standard uncertainties) would be noise over noise.
+#: Still a thousand times below what any bench resolves, so it never hides a real uncertainty.
+UNCERTAINTY_FLOOR = 1e-6
 
 #: By default the derived displacement uses the points up to this share of the highest pressure.
 _LOW_PRESSURE_SHARE = 1.0 / 3.0
@@ -467,8 +476,8 @@ class DerivedDisplacement:
     value : float
         Derived displacement V_i [m³/rev].
     uncertainty : float
-        Its standard uncertainty from the least-squares covariance [m³/rev] (NaN with no redundant
-        point).
+        Its standard uncertainty from the least-squares covariance [m³/rev], at least
+        :data:`UNCERTAINTY_FLOOR` × the value (NaN with no redundant point).
     points : int
         Number of points used.
     used : array of int
@@ -512,7 +521,8 @@ def derived_displacement(
     a speed-independent offset (a flow meter's zero, for instance). Setting Δp = 0 and taking the slope
     in n is the ISO 8426 extrapolation to zero pressure. Because V_i is a slope, two or more speeds are
     needed. The standard uncertainty of V_i is the square root of its variance from the least-squares
-    covariance s²·(AᵀA)⁻¹. If the pressures of the points used do not vary, the leakage cannot be
+    covariance s²·(AᵀA)⁻¹, but never below :data:`UNCERTAINTY_FLOOR` (1e-6) of V_i: below that it is
+    the round-off of a noiseless table, not a measurement (said in ``notes``). If the pressures of the points used do not vary, the leakage cannot be
     separated from c and is left out (V_i is still the slope, which does not depend on pressure in this
     model).
 
@@ -591,8 +601,14 @@ def derived_displacement(
         leak_cols = []
     if nu.size <= len(coef):
         notes.append("no redundant point: the uncertainty is unknown")
+    uncertainty = float(math.sqrt(cov[0, 0])) if cov[0, 0] >= 0 else math.nan
+    floor = UNCERTAINTY_FLOOR * abs(float(coef[0]))
+    if uncertainty < floor:  # False for NaN
+        notes.append(f"the fit's standard uncertainty of the derived displacement is below {UNCERTAINTY_FLOOR:g} of "
+                     "its value (round-off of an almost noiseless table, not a measurement): that floor is given")
+        uncertainty = floor
     return DerivedDisplacement(
-        value=float(coef[0]), uncertainty=float(math.sqrt(cov[0, 0])) if cov[0, 0] >= 0 else math.nan,
+        value=float(coef[0]), uncertainty=uncertainty,
         points=int(nu.size), used=np.flatnonzero(use), leakage=tuple(float(k) for k in coef[2:]),
         offset=float(coef[1]), max_pressure=float(pu.max()), notes=tuple(notes))
 
