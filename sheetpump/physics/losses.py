@@ -51,6 +51,7 @@ from .pump import PhysicsError, non_negative, positive
 __all__ = [
     "DEFAULT_TOLERANCE",
     "LEVEL_TOLERANCE",
+    "UNCERTAINTY_FLOOR",
     "DerivedDisplacement",
     "InterpolatedPerformance",
     "MeasuredRanges",
@@ -59,7 +60,6 @@ __all__ = [
     "PointEvaluation",
     "Prediction",
     "Residuals",
-    "UNCERTAINTY_FLOOR",
     "WilsonModel",
     "derived_displacement",
     "derived_displacement_uncertainty",
@@ -522,9 +522,9 @@ def derived_displacement(
     in n is the ISO 8426 extrapolation to zero pressure. Because V_i is a slope, two or more speeds are
     needed. The standard uncertainty of V_i is the square root of its variance from the least-squares
     covariance s²·(AᵀA)⁻¹, but never below :data:`UNCERTAINTY_FLOOR` (1e-6) of V_i: below that it is
-    the round-off of a noiseless table, not a measurement (said in ``notes``). If the pressures of the points used do not vary, the leakage cannot be
-    separated from c and is left out (V_i is still the slope, which does not depend on pressure in this
-    model).
+    the round-off of a noiseless table, not a measurement (said in ``notes``). If the pressures of the
+    points used do not vary, the leakage cannot be separated from c and is left out (V_i is still the
+    slope, which does not depend on pressure in this model).
 
     Parameters
     ----------
