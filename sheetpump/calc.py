@@ -73,12 +73,21 @@ class Arg:
     """One argument of a calculation.
 
     ``default`` is in the kind's *default unit* (as a user would type it); ``None`` means required.
+    ``scalar`` marks an argument that takes one value (the physics takes a float, e.g. a displacement
+    to fit with): a one-cell range gives its value, a larger range a ``#SP!`` text naming the argument.
+    A :class:`Choice` always takes one value.
     """
 
     name: str
     kind: Kind | Choice
     help: str
     default: float | None = None
+    scalar: bool = False
+
+    @property
+    def one_value(self) -> bool:
+        """True when the argument takes a single value, never a range."""
+        return self.scalar or isinstance(self.kind, Choice)
 
     @property
     def default_si(self) -> float | None:
@@ -185,6 +194,8 @@ class Calculation:
 
     def _argument(self, i: int, value: Any) -> Any:
         a = self.args[i]
+        if a.one_value and isinstance(value, (list, tuple, np.ndarray, _QUANTITY)):
+            value = _one_cell(value, a.name)
         if isinstance(a.kind, Choice):
             return a.kind.pick(value, a.name)
         return to_si(value, a.kind, a.name, self._defaults[i])
@@ -349,6 +360,25 @@ class Calculation:
 
     def __call__(self, *values: Any) -> float | list[list[Any]] | str:
         return self.cell(*values)
+
+
+def _one_cell(value: Any, name: str) -> Any:
+    """The value of a one-cell range given for a one-value argument; a larger range is refused."""
+    if isinstance(value, _QUANTITY):
+        magnitude = np.asarray(value.magnitude)
+        if magnitude.size == 1:
+            return _QUANTITY(magnitude.item(), value.units)
+        size = magnitude.size
+    else:
+        try:
+            cells = np.asarray(value, dtype=object)
+        except ValueError:  # ragged
+            cells = None
+        if cells is not None and cells.size == 1:
+            return cells.item()
+        size = cells.size if cells is not None else None
+    what = f"a range of {size} cells" if size else "an empty or ragged range"
+    raise InputError(f"takes one value, not {what}", Where(field=name), "point it at a single cell")
 
 
 def _cell_text(exc: InputError) -> str:

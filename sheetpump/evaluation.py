@@ -97,7 +97,10 @@ class MeasuredTable:
 
 @dataclass(frozen=True, eq=False)
 class Group:
-    """Points measured at one speed and one viscosity (within the level tolerance), by rising pressure."""
+    """Points measured at one speed and one viscosity (within the level tolerance), by rising pressure.
+
+    The groups are those of the plausibility flags (:func:`sheetpump.physics.losses.group_points`).
+    """
 
     speed: float  # mean speed [rev/s]
     viscosity: float  # mean kinematic viscosity [m^2/s]
@@ -146,30 +149,11 @@ class Evaluation:
 
 def _groups(n: np.ndarray, nu: np.ndarray, mu: np.ndarray, p: np.ndarray, usable: np.ndarray
             ) -> tuple[Group, ...]:
-    """Group the usable points by speed level, then viscosity level (relative LEVEL_TOLERANCE)."""
-
-    def levels(x: np.ndarray) -> np.ndarray:
-        labels = np.full(x.size, -1)
-        order = np.argsort(x, kind="stable")
-        label, start = -1, None
-        for i in order:
-            if start is None or x[i] > start * (1 + losses.LEVEL_TOLERANCE):
-                label, start = label + 1, x[i]
-            labels[i] = label
-        return labels
-
-    idx = np.flatnonzero(usable)
-    if idx.size == 0:
-        return ()
-    ln, lv = levels(n[idx]), levels(nu[idx])
-    out = []
-    for a in np.unique(ln):
-        for b in np.unique(lv[ln == a]):
-            members = idx[(ln == a) & (lv == b)]
-            members = members[np.argsort(p[members], kind="stable")]
-            out.append(Group(speed=float(n[members].mean()), viscosity=float(nu[members].mean()),
-                             dynamic_viscosity=float(mu[members].mean()), index=members))
-    return tuple(out)
+    """Group the usable points by speed level, then viscosity level, as the plausibility flags do
+    (:func:`sheetpump.physics.losses.group_points`: one sort, O(N log N))."""
+    return tuple(Group(speed=float(n[members].mean()), viscosity=float(nu[members].mean()),
+                       dynamic_viscosity=float(mu[members].mean()), index=members)
+                 for members in losses.group_points(n, p, mu, usable))
 
 
 def _viscosity(table: MeasuredTable, oil: Oil | None, density_15: float | None, viscosity: float | None,

@@ -15,6 +15,13 @@ from sheetpump.workbooks.example import EXAMPLE_SHEET, write_worked_example
 
 ROOT = Path(__file__).resolve().parents[1]
 
+#: Relative tolerance of computed values compared with the committed ones. The least-squares results
+#: (SP_DERIVED_DISPLACEMENT_U, the Wilson coefficients behind SP_PREDICT_*) come from LAPACK through
+#: numpy; another numpy or OpenBLAS build sums and blocks in another order, so the last digits move by
+#: about cond(A)·eps (seen: 1.4e-13 relative on SP_DERIVED_DISPLACEMENT_U, 0.04041451884327792 against
+#: 0.04041451884328355). 1e-9 leaves room for that and is far below any digit a user sees.
+REL = 1e-9
+
 
 def _block(text: str, name: str) -> str:
     match = re.search(rf"<!-- {name}:start -->\n(.*?)\n<!-- {name}:end -->", text, re.S)
@@ -42,17 +49,18 @@ def test_worked_example_matches_generator(tmp_path):
     fresh = tmp_path / "worked-example.xlsx"
     write_worked_example(fresh)
     committed = ROOT / "workbooks" / "worked-example.xlsx"
-    assert _cells(fresh, False) == _cells(committed, False), "run scripts/regenerate.py"
+    # Formulas and texts exactly; numbers (the expected values are stored as numbers) within REL.
+    assert_same_values(_cells(fresh, False), _cells(committed, False))
     assert_same_values(_cells(fresh, True), _cells(committed, True))
 
 
 def assert_same_values(a: dict, b: dict) -> None:
-    assert a.keys() == b.keys()
+    assert a.keys() == b.keys(), "run scripts/regenerate.py"
     for key, value in a.items():
         if isinstance(value, float):
-            assert b[key] == pytest.approx(value, rel=1e-12), key
+            assert b[key] == pytest.approx(value, rel=REL), (key, "run scripts/regenerate.py")
         else:
-            assert b[key] == value, key
+            assert b[key] == value, (key, "run scripts/regenerate.py")
 
 
 def test_worked_example_shows_every_function_with_its_expected_value(tmp_path):
@@ -66,9 +74,9 @@ def test_worked_example_shows_every_function_with_its_expected_value(tmp_path):
         formula = formulas.cell(row, 2).value
         assert formula.startswith(f"={name}(")
         # the stored result equals the expected column and a direct call of the declaration
-        assert values.cell(row, 2).value == pytest.approx(values.cell(row, 3).value, rel=1e-12)
+        assert values.cell(row, 2).value == pytest.approx(values.cell(row, 3).value, rel=REL)
         direct = CATALOGUE[name].cell(*CATALOGUE[name].example)
         direct = direct[0][0] if isinstance(direct, list) else direct
-        assert values.cell(row, 3).value == pytest.approx(direct, rel=1e-12)
+        assert values.cell(row, 3).value == pytest.approx(direct, rel=REL)
         shown[name] = True
     assert set(shown) == set(CATALOGUE), "every cell function needs an example in its declaration"

@@ -241,8 +241,13 @@ def test_libreoffice_recomputes_the_stored_values(evaluated: dict) -> None:
     got = lo.recalculated_values(path)
     stored = openpyxl.load_workbook(path, data_only=True)
     assert len(got) >= 7 * len(evaluated["xlsx"]["points"])
+    # rel 1e-9: two engines evaluating the same formulas on the same stored inputs agree to round-off.
+    # abs 1e-8: LibreOffice returns 0 for a difference below about 2^-48 of its operands (its
+    # approximate subtraction; from memory), as in "derived less nominal" on this noiseless table; over
+    # the uncertainty's floor of 1e-6 of the displacement (losses.UNCERTAINTY_FLOOR) the "× std. unc."
+    # ratio of such a difference is at most 2^-48/1e-6 = 3.6e-9.
     for (sheet, ref), value in got.items():
-        assert value == pytest.approx(stored[sheet][ref].value, rel=1e-9), (sheet, ref)
+        assert value == pytest.approx(stored[sheet][ref].value, rel=1e-9, abs=1e-8), (sheet, ref)
 
 
 # -- flags and text -------------------------------------------------------------------------------------

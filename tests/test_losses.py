@@ -22,6 +22,7 @@ from sheetpump.calc import ERROR_PREFIX
 from sheetpump.catalogue import CATALOGUE
 from sheetpump.physics.losses import (
     FLAG_TEXT,
+    UNCERTAINTY_FLOOR,
     InterpolatedPerformance,
     MeasuredRanges,
     PhysicsError,
@@ -397,3 +398,21 @@ def test_cell_errors_are_text():
     assert out.startswith(ERROR_PREFIX) and "speed" in out and "two or more" in out
     out = CATALOGUE["SP_PREDICT_FLOW"].cell(n, p, q, t, mu, 28, 1500, "-5 bar", 30)
     assert out.startswith(ERROR_PREFIX) and "at_pressure" in out
+
+
+def test_derived_displacement_uncertainty_has_a_floor():
+    # A noiseless table: the fit's uncertainty is round-off (about 1e-15 of the value); the floor of
+    # 1e-6 of the value is given instead and said in the notes. Flow = V·n exactly (ISO 8426 idea: the
+    # slope of flow on speed at zero pressure is the displacement).
+    n = np.repeat([1000 / 60, 1500 / 60, 2000 / 60], 3)
+    p = np.tile([0.0, 10e5, 20e5], 3)
+    d = derived_displacement(n, p, 28e-6 * n - 2e-12 * p, max_pressure=30e5)
+    assert d.value == pytest.approx(28e-6, rel=1e-12)
+    assert d.uncertainty == pytest.approx(UNCERTAINTY_FLOOR * d.value, rel=1e-12)
+    assert any("floor" in note for note in d.notes)
+    # With a bench's noise (1e-3 of the flow) the fitted uncertainty stands, well above the floor.
+    rng = np.random.default_rng(4409)
+    noisy = derived_displacement(n, p, (28e-6 * n - 2e-12 * p) * (1 + rng.normal(0, 1e-3, n.size)),
+                                 max_pressure=30e5)
+    assert noisy.uncertainty > 100 * UNCERTAINTY_FLOOR * noisy.value
+    assert not any("floor" in note for note in noisy.notes)

@@ -19,12 +19,12 @@ _P = Arg("pressure", PRESSURE, "Measured pressure rise of each point (a range)")
 _Q = Arg("flow", FLOW, "Measured delivered flow of each point (a range)")
 _T = Arg("torque", TORQUE, "Measured input torque of each point (a range)")
 _MU = Arg("viscosity", DYN_VISCOSITY, "Dynamic viscosity of the oil at each point (a range or one cell)")
-_V = Arg("displacement", DISPLACEMENT, "Displacement (e.g. the result of SP_DERIVED_DISPLACEMENT)")
+_V = Arg("displacement", DISPLACEMENT, "Displacement (e.g. the result of SP_DERIVED_DISPLACEMENT)", scalar=True)
 _AT_N = Arg("at_speed", SPEED, "Speed to predict at")
 _AT_P = Arg("at_pressure", PRESSURE, "Pressure rise to predict at")
 _AT_MU = Arg("at_viscosity", DYN_VISCOSITY, "Dynamic viscosity to predict at")
 _MAXP = Arg("max_pressure", PRESSURE, "Highest pressure of the points used (0: a third of the highest "
-            "measured)", default=0)
+            "measured)", default=0, scalar=True)
 _TABLE = (_N, _P, _Q, _T, _MU, _V, _AT_N, _AT_P, _AT_MU)
 _FIT = " Wilson's loss model fitted to the table (interpolation in pressure if the table is too small)."
 

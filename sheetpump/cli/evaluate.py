@@ -106,40 +106,66 @@ def _f(x: float | None) -> float | None:
     return x if x is not None and math.isfinite(x) else None
 
 
-def results(e: Any, source: str) -> dict[str, Any]:
-    """The evaluation as plain data for JSON (metric units named in each key)."""
+#: Points converted to records at a time when the JSON is written (memory stays bounded).
+JSON_CHUNK = 10_000
+#: Flagged points listed one by one in the text summary; the rest are counted.
+SUMMARY_FLAGGED_ROWS = 50
+
+
+def _column(x: Any, kind: Any = None) -> np.ndarray:
+    x = np.asarray(x, dtype=float)
+    return np.asarray(from_si(x, kind), dtype=float) if kind is not None else x
+
+
+def point_records(e: Any, start: int = 0, stop: int | None = None) -> list[dict[str, Any]]:
+    """The points ``start:stop`` of the evaluation as plain data for JSON (metric units in each key).
+
+    Each column is converted once for the slice (not value by value), so a table of millions of
+    points is written in chunks of :data:`JSON_CHUNK`.
+    """
+    t, pe = e.table, e.points
+    stop = t.size if stop is None else min(stop, t.size)
+    cut = slice(start, stop)
+    rows = t.rows[cut].tolist() if t.rows.size else list(range(start + 1, stop + 1))
+    columns = {
+        "speed_rpm": (t.speed, SPEED), "pressure_bar": (t.pressure, PRESSURE), "flow_L_min": (t.flow, FLOW),
+        "torque_N_m": (pe.torque, None), "input_power_kW": (pe.input_power, POWER),
+        "viscosity_mm2_s": (e.viscosity, VISCOSITY), "dynamic_viscosity_mPa_s": (e.dynamic_viscosity, DYN_VISCOSITY),
+        "density_kg_m3": (e.density, None), "geometric_flow_L_min": (pe.geometric_flow, FLOW),
+        "volumetric_efficiency": (pe.volumetric, None), "hydromechanical_efficiency": (pe.hydromechanical, None),
+        "total_efficiency": (pe.total, None), "hydraulic_power_kW": (pe.hydraulic_power, POWER),
+        "power_loss_kW": (pe.power_loss, POWER),
+    }
+    if t.temperature is not None:
+        columns["temperature_degC"] = (t.temperature, TEMPERATURE)
+    values = {k: [_f(v) for v in _column(x[cut], kind).tolist()] for k, (x, kind) in columns.items()}
+    model = e.prediction
+    if model is not None:
+        m_ev, m_ehm, m_et = ([_f(v) for v in np.asarray(a[cut], dtype=float).tolist()]
+                             for a in (model.volumetric, model.hydromechanical, model.total))
+        extrapolated = np.asarray(model.extrapolated[cut], dtype=bool).tolist()
+    out = []
+    for j, row in enumerate(rows):
+        point: dict[str, Any] = {"row": int(row)}
+        point.update({k: v[j] for k, v in values.items() if k != "temperature_degC"})
+        point["flags"] = list(pe.flags[start + j])
+        if "temperature_degC" in values:
+            point["temperature_degC"] = values["temperature_degC"][j]
+        if model is not None:
+            point["model"] = {"volumetric_efficiency": m_ev[j], "hydromechanical_efficiency": m_ehm[j],
+                              "total_efficiency": m_et[j], "extrapolated": extrapolated[j]}
+        out.append(point)
+    return out
+
+
+def results(e: Any, source: str, *, points: bool = True) -> dict[str, Any]:
+    """The evaluation as plain data for JSON (metric units named in each key).
+
+    With ``points=False`` the ``points`` list is left empty (:func:`write_json` streams it).
+    """
     from ..evaluation import TABLE_FLAG_TEXT, all_notes, coefficients
 
     t, pe = e.table, e.points
-    points = []
-    model = e.prediction
-    for i in range(t.size):
-        point = {
-            "row": int(t.rows[i]) if t.rows.size else i + 1,
-            "speed_rpm": _f(float(from_si(t.speed[i], SPEED))),
-            "pressure_bar": _f(float(from_si(t.pressure[i], PRESSURE))),
-            "flow_L_min": _f(float(from_si(t.flow[i], FLOW))),
-            "torque_N_m": _f(float(pe.torque[i])),
-            "input_power_kW": _f(float(from_si(pe.input_power[i], POWER))),
-            "viscosity_mm2_s": _f(float(from_si(e.viscosity[i], VISCOSITY))),
-            "dynamic_viscosity_mPa_s": _f(float(from_si(e.dynamic_viscosity[i], DYN_VISCOSITY))),
-            "density_kg_m3": _f(float(e.density[i])),
-            "geometric_flow_L_min": _f(float(from_si(pe.geometric_flow[i], FLOW))),
-            "volumetric_efficiency": _f(float(pe.volumetric[i])),
-            "hydromechanical_efficiency": _f(float(pe.hydromechanical[i])),
-            "total_efficiency": _f(float(pe.total[i])),
-            "hydraulic_power_kW": _f(float(from_si(pe.hydraulic_power[i], POWER))),
-            "power_loss_kW": _f(float(from_si(pe.power_loss[i], POWER))),
-            "flags": list(pe.flags[i]),
-        }
-        if t.temperature is not None:
-            point["temperature_degC"] = _f(float(from_si(t.temperature[i], TEMPERATURE)))
-        if model is not None:
-            point["model"] = {"volumetric_efficiency": _f(float(model.volumetric[i])),
-                              "hydromechanical_efficiency": _f(float(model.hydromechanical[i])),
-                              "total_efficiency": _f(float(model.total[i])),
-                              "extrapolated": bool(model.extrapolated[i])}
-        points.append(point)
     d = e.derived
     derived = None if d is None else {
         "value_cm3_rev": float(from_si(d.value, DISPLACEMENT)),
@@ -161,9 +187,11 @@ def results(e: Any, source: str) -> dict[str, Any]:
             model_out["residuals"] = {"flow_rms_L_min": float(from_si(res.flow_rms, FLOW)),
                                       "flow_max_L_min": float(from_si(res.flow_max, FLOW)),
                                       "torque_rms_N_m": res.torque_rms, "torque_max_N_m": res.torque_max}
-    flagged = [p["row"] for p in points if p["flags"]]
+    flagged_index = [i for i, f in enumerate(pe.flags) if f]
+    flagged = [int(t.rows[i]) if t.rows.size else i + 1 for i in flagged_index]
     return {
-        "file": source, "sheet": t.sheet, "points": points,
+        "file": source, "sheet": t.sheet, "points": point_records(e) if points else [],
+        "point_count": t.size,
         "nominal_displacement_cm3_rev": None if e.nominal_displacement is None
         else float(from_si(e.nominal_displacement, DISPLACEMENT)),
         "displacement_used_cm3_rev": float(from_si(e.displacement, DISPLACEMENT)),
@@ -175,10 +203,24 @@ def results(e: Any, source: str) -> dict[str, Any]:
     }
 
 
-def summary(r: dict[str, Any]) -> str:
-    """A short readable summary of :func:`results`."""
+def write_json(e: Any, source: str, stream: Any) -> None:
+    """Write :func:`results` as JSON to ``stream``, the points converted :data:`JSON_CHUNK` at a time."""
+    text = json.dumps(results(e, source, points=False), indent=2, ensure_ascii=False, allow_nan=False)
+    # The key is written with its quotes only as a key: a text value would hold them escaped.
+    head, tail = text.split('"points": []', 1)
+    stream.write(head + '"points": [')
+    for start in range(0, e.table.size, JSON_CHUNK):
+        for j, point in enumerate(point_records(e, start, start + JSON_CHUNK)):
+            sep = "" if start + j == 0 else ","
+            stream.write(sep + "\n    " + json.dumps(point, ensure_ascii=False, allow_nan=False))
+    stream.write("\n  ]" + tail + "\n")
+
+
+def summary(r: dict[str, Any], e: Any) -> str:
+    """A short readable summary of :func:`results` (without its points) and the evaluation ``e``."""
+    pe = e.points
     out = [f"Measured performance of {r['file']}" + (f" (sheet {r['sheet']})" if r["sheet"] else ""),
-           f"  points: {len(r['points'])}, flagged: {len(r['flagged_rows'])}"]
+           f"  points: {r['point_count']}, flagged: {len(r['flagged_rows'])}"]
     nominal, d = r["nominal_displacement_cm3_rev"], r["derived_displacement"]
     out.append(f"  nominal displacement: {nominal:.3f} cm³/rev" if nominal is not None
                else "  nominal displacement: not given")
@@ -189,11 +231,9 @@ def summary(r: dict[str, Any]) -> str:
         out.append(f"  derived displacement: {d['value_cm3_rev']:.3f}{unc} cm³/rev{diff}")
     else:
         out.append(f"  derived displacement: none ({r['derived_displacement_error']})")
-    effs = [(p["volumetric_efficiency"], p["total_efficiency"]) for p in r["points"]
-            if p["volumetric_efficiency"] is not None]
-    if effs:
-        out.append(f"  η_v {min(e[0] for e in effs):.3f} to {max(e[0] for e in effs):.3f}, "
-                   f"η_t {min(e[1] for e in effs):.3f} to {max(e[1] for e in effs):.3f}")
+    if np.isfinite(pe.volumetric).any():
+        out.append(f"  η_v {np.nanmin(pe.volumetric):.3f} to {np.nanmax(pe.volumetric):.3f}, "
+                   f"η_t {np.nanmin(pe.total):.3f} to {np.nanmax(pe.total):.3f}")
     m = r["model"]
     if m is None:
         out.append(f"  loss model: none ({r['model_error']})")
@@ -207,9 +247,14 @@ def summary(r: dict[str, Any]) -> str:
             res = m["residuals"]
             out.append(f"    residuals: flow RMS {res['flow_rms_L_min']:.3g} L/min, torque RMS "
                        f"{res['torque_rms_N_m']:.3g} N·m")
-    for p in r["points"]:
-        for code in p["flags"]:
-            out.append(f"  row {p['row']}: {code}: {r['flag_meanings'][code]}")
+    flagged = [i for i, f in enumerate(pe.flags) if f]
+    for i in flagged[:SUMMARY_FLAGGED_ROWS]:
+        row = int(e.table.rows[i]) if e.table.rows.size else i + 1
+        for code in pe.flags[i]:
+            out.append(f"  row {row}: {code}: {r['flag_meanings'][code]}")
+    if len(flagged) > SUMMARY_FLAGGED_ROWS:
+        out.append(f"  ... and {len(flagged) - SUMMARY_FLAGGED_ROWS} more flagged points (each listed by "
+                   "--format json)")
     for code in r["table_flags"]:
         out.append(f"  table: {code}: {r['flag_meanings'][code]}")
     for note in r["notes"]:
@@ -242,13 +287,12 @@ def run(args: argparse.Namespace) -> int:
     e = evaluate_table(table, displacement, oil=oil, density_15=density, viscosity=viscosity)
     if args.output:
         write_evaluation(e, args.output, source=args.table)
-    r = results(e, args.table)
     if args.format == "json":
-        sys.stdout.write(json.dumps(r, indent=2, ensure_ascii=False, allow_nan=False) + "\n")
+        write_json(e, args.table, sys.stdout)
     else:
         if args.output:
             sys.stdout.write(f"wrote {args.output}\n")
-        sys.stdout.write(summary(r))
+        sys.stdout.write(summary(results(e, args.table, points=False), e))
     return EXIT_FLAGGED if e.flagged else EXIT_OK
 
 

@@ -51,6 +51,7 @@ from .pump import PhysicsError, non_negative, positive
 __all__ = [
     "DEFAULT_TOLERANCE",
     "LEVEL_TOLERANCE",
+    "UNCERTAINTY_FLOOR",
     "DerivedDisplacement",
     "InterpolatedPerformance",
     "MeasuredRanges",
@@ -66,6 +67,7 @@ __all__ = [
     "evaluate_points",
     "fit_performance",
     "fit_wilson",
+    "group_points",
     "interpolate_performance",
     "predicted_extrapolated",
     "predicted_flow",
@@ -88,6 +90,14 @@ LEVEL_TOLERANCE = 0.03
 
 #: Points that agree within this relative tolerance in speed, pressure and viscosity are duplicates.
 _DUPLICATE_TOLERANCE = 1e-6
+
+#: Floor of the derived displacement's standard uncertainty, relative to its value [-]. A test bench's
+#: flow meter and tachometer are good to a few parts in ten thousand at best (common practice; the
+#: accuracy classes of ISO 4409 are coarser), so no table knows a displacement to one part in a million:
+#: a fit's uncertainty below this is round-off of an (almost) noiseless table, not a measurement, and a
+#: ratio over it (difference from nominal in standard uncertainties) would be noise over noise.
+#: Still a thousand times below what any bench resolves, so it never hides a real uncertainty.
+UNCERTAINTY_FLOOR = 1e-6
 
 #: By default the derived displacement uses the points up to this share of the highest pressure.
 _LOW_PRESSURE_SHARE = 1.0 / 3.0
@@ -144,6 +154,15 @@ def _levels(x: np.ndarray, rel: float = LEVEL_TOLERANCE) -> tuple[np.ndarray, in
     labels = np.empty(x.size, dtype=int)
     labels[order] = np.cumsum(new) - 1
     return labels, int(new.sum())
+
+
+def _count_levels(x: np.ndarray) -> int:
+    """How many levels ``x`` takes (:func:`_levels`), at least 2 where its values spread wider than the
+    level tolerance: a continuous sweep or a densely logged table chains into one level, yet varies."""
+    _, count = _levels(x)
+    if count == 1 and float(x.max() - x.min()) > LEVEL_TOLERANCE * float(np.abs(x).max()):
+        return 2
+    return count
 
 
 def _lstsq(columns: list[np.ndarray], y: np.ndarray, what: str) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
@@ -313,68 +332,137 @@ def evaluate_points(
     out["loss"][good] = pump.power_loss(pin, pg, qg)
     out["torque"][good] = tg
 
-    flags: list[list[str]] = [[] for _ in range(n.size)]
-    for i in np.flatnonzero(missing):
-        flags[i].append(FLAG_MISSING)
-    for i in np.flatnonzero(invalid):
-        flags[i].append(FLAG_INVALID)
     ev, ehm, et = out["ev"], out["ehm"], out["et"]
     with np.errstate(invalid="ignore"):
         above = good & ((ev > 1 + tolerance) | (ehm > 1 + tolerance) | (et > 1 + tolerance))
         over_partial = good & (et > np.fmin(ev, ehm) + tolerance)
-    for i in np.flatnonzero(above):
-        flags[i].append(FLAG_ABOVE_1)
-    for i in np.flatnonzero(over_partial):
-        flags[i].append(FLAG_TOTAL_ABOVE_PARTIAL)
-    for i in np.flatnonzero(_rises_with_pressure(n, p, mu, ev, good, tolerance)):
-        flags[i].append(FLAG_VOL_RISES)
-    for i in np.flatnonzero(_duplicates(n, p, mu, ~missing)):
-        flags[i].append(FLAG_DUPLICATE)
+    raised = ((FLAG_MISSING, missing), (FLAG_INVALID, invalid), (FLAG_ABOVE_1, above),
+              (FLAG_TOTAL_ABOVE_PARTIAL, over_partial),
+              (FLAG_VOL_RISES, _rises_with_pressure(n, p, mu, ev, good, tolerance)),
+              (FLAG_DUPLICATE, _duplicates(n, p, mu, ~missing)))
+    # Tuples only for the flagged points; the others share the one empty tuple (a big table stays small).
+    flags: list[tuple[str, ...]] = [()] * n.size
+    for i in np.flatnonzero(np.logical_or.reduce([mask for _, mask in raised])):
+        flags[i] = tuple(code for code, mask in raised if mask[i])
 
     return PointEvaluation(
         displacement=v, derived=derived, geometric_flow=out["qth"], volumetric=ev, hydromechanical=ehm,
         total=et, hydraulic_power=out["phyd"], input_power=out["pin"], power_loss=out["loss"],
-        torque=out["torque"], flags=tuple(tuple(f) for f in flags), tolerance=float(tolerance))
+        torque=out["torque"], flags=tuple(flags), tolerance=float(tolerance))
 
 
 def _groups(n: np.ndarray, mu: np.ndarray, mask: np.ndarray) -> np.ndarray:
-    """One label per (speed level, viscosity level) among the masked points; -1 elsewhere."""
-    labels = np.full(n.size, -1)
+    """One label per (speed level, viscosity level) among the masked points; -1 elsewhere.
+
+    Labels rise with the speed level, then the viscosity level.
+    """
+    labels = np.full(n.size, -1, dtype=np.int64)
     if mask.any():
         ln, _ = _levels(n[mask])
         lm, count = _levels(mu[mask])
-        labels[mask] = ln * max(count, 1) + lm
+        labels[mask] = ln.astype(np.int64) * max(count, 1) + lm
     return labels
+
+
+def group_points(speed: ArrayLike, pressure: ArrayLike, viscosity: ArrayLike,
+                 mask: ArrayLike | None = None) -> list[np.ndarray]:
+    """Indices of the points measured at one speed and one viscosity, each group by rising pressure.
+
+    Speeds (and viscosities) that agree within :data:`LEVEL_TOLERANCE` (relative, between neighbours
+    in sorted order) count as one level. Groups come by rising speed level, then viscosity level;
+    points outside ``mask`` belong to none. One sort of the whole table: O(N log N) in time, O(N) in
+    memory, however many groups there are.
+
+    Parameters
+    ----------
+    speed, pressure, viscosity : array
+        Shaft speed [rev/s], pressure rise [Pa] and dynamic viscosity [Pa·s] of each point.
+    mask : array of bool, optional
+        The points to group (default all).
+
+    Examples
+    --------
+    >>> [g.tolist() for g in group_points([25.0, 25.1, 40.0, 25.0], [2e7, 1e7, 1e7, 5e6], 0.03)]
+    [[3, 1, 0], [2]]
+    """
+    t = _table(speed=speed, pressure=pressure, viscosity=viscosity)
+    n, p, mu = t["speed"], t["pressure"], t["viscosity"]
+    keep = np.ones(n.size, dtype=bool) if mask is None else np.broadcast_to(np.asarray(mask, dtype=bool), n.shape)
+    labels = _groups(n, mu, keep)
+    idx = np.flatnonzero(labels >= 0)
+    if idx.size == 0:
+        return []
+    idx = idx[np.lexsort((p[idx], labels[idx]))]
+    cuts = np.flatnonzero(np.diff(labels[idx])) + 1
+    return np.split(idx, cuts)
 
 
 def _rises_with_pressure(n: np.ndarray, p: np.ndarray, mu: np.ndarray, ev: np.ndarray, good: np.ndarray,
                          tolerance: float) -> np.ndarray:
-    # Compare with every lower-pressure point of the group, not just the neighbour, so that a slow
-    # rise in small steps is caught too.
-    groups = _groups(n, mu, good)
+    """η_v above that of any lower-pressure point of its group by more than ``tolerance``.
+
+    Compared with every lower-pressure point of the group, not just the neighbour, so that a slow rise
+    in small steps is caught too: with the group sorted by pressure, the lowest η_v among the points
+    below each point's pressure is a running minimum, found by a binary search (O(N log N)).
+    """
     rises = np.zeros(n.size, dtype=bool)
-    for g in np.unique(groups[groups >= 0]):
-        idx = np.flatnonzero(groups == g)
-        pg, eg = p[idx], ev[idx]
-        gap = _DUPLICATE_TOLERANCE * max(float(pg.max()), 1.0)
-        lower = pg[:, None] < pg[None, :] - gap  # lower[i, j]: point i at a lower pressure than j
-        rises[idx] = np.any(lower & (eg[None, :] - eg[:, None] > tolerance), axis=0)
+    for idx in group_points(n, p, mu, good):
+        if idx.size < 2:
+            continue
+        pg, eg = p[idx], ev[idx]  # by rising pressure
+        gap = _DUPLICATE_TOLERANCE * max(float(pg[-1]), 1.0)
+        below = np.searchsorted(pg, pg - gap, side="left")  # points at a pressure lower than p - gap
+        lowest = np.minimum.accumulate(eg)
+        has = below > 0
+        rises[idx[has]] = eg[has] - lowest[below[has] - 1] > tolerance
     return rises
 
 
+def _grid_keys(x: np.ndarray, shift: float) -> np.ndarray:
+    """Integer cell of each value on a relative grid of width :data:`_DUPLICATE_TOLERANCE` (log scale).
+
+    Zero has its own cell; negative values mirror the positive ones.
+    """
+    h = math.log1p(_DUPLICATE_TOLERANCE)
+    with np.errstate(divide="ignore", invalid="ignore"):
+        k = np.floor(np.log(np.abs(x)) / h + shift)
+    k = np.where(np.isfinite(k), k, 0.0).astype(np.int64) + (1 << 31)  # |log x|/h < 8e8 for any double
+    return np.where(x > 0, k, np.where(x < 0, -k, 0))
+
+
 def _duplicates(n: np.ndarray, p: np.ndarray, mu: np.ndarray, mask: np.ndarray) -> np.ndarray:
+    """Points whose speed, pressure and viscosity all agree with another point's within the tolerance.
+
+    Each value is put on a relative grid of cell width :data:`_DUPLICATE_TOLERANCE` in each of the
+    2³ grids shifted by half a cell per coordinate; points sharing a cell in any grid are duplicates.
+    So every pair within half the tolerance in all three is found and no pair beyond the tolerance is
+    flagged; one sort per grid, O(N log N), instead of comparing every pair.
+    """
     idx = np.flatnonzero(mask)
     dup = np.zeros(n.size, dtype=bool)
     if idx.size < 2:
         return dup
-
-    def close(x: np.ndarray) -> np.ndarray:
-        scale = np.maximum(np.abs(x[:, None]), np.abs(x[None, :]))
-        return np.abs(x[:, None] - x[None, :]) <= _DUPLICATE_TOLERANCE * np.maximum(scale, 1e-300)
-
-    same = close(n[idx]) & close(p[idx]) & close(mu[idx])
-    np.fill_diagonal(same, False)
-    dup[idx] = same.any(axis=1)
+    found = np.zeros(idx.size, dtype=bool)
+    cols = (n[idx], p[idx], mu[idx])
+    # Dense ranks of each coordinate's cells, so that one grid's three cells pack into one integer.
+    ranks = {}
+    for c, x in enumerate(cols):
+        for s in (0.0, 0.5):
+            _, inverse = np.unique(_grid_keys(x, s), return_inverse=True)
+            ranks[(c, s)] = inverse.astype(np.int64).ravel()
+    for shifts in np.ndindex(2, 2, 2):
+        r = [ranks[(c, 0.5 * s)] for c, s in enumerate(shifts)]
+        sizes = [int(x.max()) + 1 for x in r]
+        if sizes[0] * sizes[1] * sizes[2] < 2**62:
+            _, inverse, counts = np.unique((r[0] * sizes[1] + r[1]) * sizes[2] + r[2], return_inverse=True,
+                                           return_counts=True)
+            found |= counts[inverse.ravel()] > 1
+        else:  # over 2**20 cells in every coordinate: sort the three together
+            order = np.lexsort(r[::-1])
+            same = np.logical_and.reduce([x[order][1:] == x[order][:-1] for x in r])
+            found[order[1:][same]] = True
+            found[order[:-1][same]] = True
+    dup[idx[found]] = True
     return dup
 
 
@@ -388,8 +476,8 @@ class DerivedDisplacement:
     value : float
         Derived displacement V_i [m³/rev].
     uncertainty : float
-        Its standard uncertainty from the least-squares covariance [m³/rev] (NaN with no redundant
-        point).
+        Its standard uncertainty from the least-squares covariance [m³/rev], at least
+        :data:`UNCERTAINTY_FLOOR` × the value (NaN with no redundant point).
     points : int
         Number of points used.
     used : array of int
@@ -433,9 +521,10 @@ def derived_displacement(
     a speed-independent offset (a flow meter's zero, for instance). Setting Δp = 0 and taking the slope
     in n is the ISO 8426 extrapolation to zero pressure. Because V_i is a slope, two or more speeds are
     needed. The standard uncertainty of V_i is the square root of its variance from the least-squares
-    covariance s²·(AᵀA)⁻¹. If the pressures of the points used do not vary, the leakage cannot be
-    separated from c and is left out (V_i is still the slope, which does not depend on pressure in this
-    model).
+    covariance s²·(AᵀA)⁻¹, but never below :data:`UNCERTAINTY_FLOOR` (1e-6) of V_i: below that it is
+    the round-off of a noiseless table, not a measurement (said in ``notes``). If the pressures of the
+    points used do not vary, the leakage cannot be separated from c and is left out (V_i is still the
+    slope, which does not depend on pressure in this model).
 
     Parameters
     ----------
@@ -493,7 +582,7 @@ def derived_displacement(
     else:
         non_negative(max_pressure, "max_pressure")
     use = p <= max_pressure * (1 + 1e-9)
-    _, speeds = _levels(n[use])
+    speeds = _count_levels(n[use]) if use.any() else 0
     if speeds < 2:
         raise PhysicsError(
             "speed", f"must take two or more values at low pressure to derive the displacement (found "
@@ -512,8 +601,14 @@ def derived_displacement(
         leak_cols = []
     if nu.size <= len(coef):
         notes.append("no redundant point: the uncertainty is unknown")
+    uncertainty = float(math.sqrt(cov[0, 0])) if cov[0, 0] >= 0 else math.nan
+    floor = UNCERTAINTY_FLOOR * abs(float(coef[0]))
+    if uncertainty < floor:  # False for NaN
+        notes.append(f"the fit's standard uncertainty of the derived displacement is below {UNCERTAINTY_FLOOR:g} of "
+                     "its value (round-off of an almost noiseless table, not a measurement): that floor is given")
+        uncertainty = floor
     return DerivedDisplacement(
-        value=float(coef[0]), uncertainty=float(math.sqrt(cov[0, 0])) if cov[0, 0] >= 0 else math.nan,
+        value=float(coef[0]), uncertainty=uncertainty,
         points=int(nu.size), used=np.flatnonzero(use), leakage=tuple(float(k) for k in coef[2:]),
         offset=float(coef[1]), max_pressure=float(pu.max()), notes=tuple(notes))
 
@@ -772,9 +867,7 @@ def fit_wilson(
     v = _displacement(t, displacement, notes)
     d = v / TWO_PI
     omega = TWO_PI * n
-    _, speeds = _levels(n)
-    _, viscosities = _levels(mu)
-    _, pressures = _levels(p)
+    speeds, viscosities, pressures = _count_levels(n), _count_levels(mu), _count_levels(p)
     if pressures < 2:
         raise ModelError("pressure", "must take two or more values for Wilson's model (one measured)")
 
@@ -902,11 +995,8 @@ def interpolate_performance(
     v = _displacement(t, displacement, more)
     e = evaluate_points(t["speed"], t["pressure"], t["flow"], torque=t["torque"], displacement=v,
                         viscosity=t["viscosity"])
-    groups = _groups(t["speed"], t["viscosity"], np.ones(t["speed"].size, dtype=bool))
     curves = []
-    for g in np.unique(groups):
-        idx = np.flatnonzero(groups == g)
-        idx = idx[np.argsort(t["pressure"][idx], kind="stable")]
+    for idx in group_points(t["speed"], t["pressure"], t["viscosity"]):
         curves.append(_Curve(speed=float(np.mean(t["speed"][idx])), viscosity=float(np.mean(t["viscosity"][idx])),
                              pressure=t["pressure"][idx], volumetric=e.volumetric[idx],
                              hydromechanical=e.hydromechanical[idx], torque=t["torque"][idx]))

@@ -6,12 +6,17 @@ Sheets:
   uncertainty and the difference), the loss model's coefficients with units and uncertainties, its
   residuals and measured ranges, the notes (what was assumed, not fitted) and the plausibility flags.
 * **Points** — one row per measured point, grouped by speed and viscosity and sorted by pressure, with
-  the file row it came from. Measured values carry the input fill; the columns that are plain
-  arithmetic of others (geometric flow, the three efficiencies, hydraulic power, power loss, dynamic
-  viscosity, torque from power or power from torque) are live formulas with their values stored. Then
-  each point's flags and the model's efficiencies at the point.
+  the file row it came from. A table of more than :data:`POINTS_SHEET_LIMIT` points shows an even
+  sample of them (every k-th point in that order), said on the sheet and on Summary: a spreadsheet
+  holds at most 1,048,576 rows, and a chart of millions of markers shows no more than one of ten
+  thousand. Every figure on Summary (flag counts, derived displacement, the model) covers every point,
+  and ``sheetpump evaluate --format json`` lists every point. Measured values carry the input fill; the
+  columns that are plain arithmetic of others (geometric flow, the three efficiencies, hydraulic power,
+  power loss, dynamic viscosity, torque from power or power from torque) are live formulas with their
+  values stored. Then each point's flags and the model's efficiencies at the point.
 * **Charts** — native charts of η_v, η_hm and η_t against pressure, one series of measured points per
-  speed (and viscosity) and the model's curve beside it in the same colour.
+  speed (and viscosity), drawn from the Points sheet (so from its sample on a large table), and the
+  model's curve beside it in the same colour.
 * **Curves** — the data behind the model curves, at each measured speed and viscosity.
 
 Units are the defaults of :mod:`sheetpump.units` (bar, L/min, rpm, N·m, kW, mm²/s, °C). Written with
@@ -53,6 +58,10 @@ __all__ = ["PALETTE", "write_evaluation"]
 PALETTE = ("#1F5A96", "#C2571A", "#2E7D4F", "#8A3B8F", "#9C7A00", "#3F8FA8", "#A23B3B", "#555555")
 
 SUMMARY, POINTS, CHARTS, CURVES = "Summary", "Points", "Charts", "Curves"
+#: Most points written to the Points sheet (and drawn in the charts); a larger table is sampled evenly.
+POINTS_SHEET_LIMIT = 10_000
+#: Most speed and viscosity groups drawn in the charts and listed on the Curves sheet (by rising speed).
+CHART_GROUPS_LIMIT = 24
 _HEADER_ROW = 3  # 0-based row of the Points header
 _TITLE = "Measured performance evaluation"
 
@@ -96,11 +105,31 @@ class _Formats:
         self.info = fmt("info", text_wrap=True)
 
 
-def _order(e: Evaluation) -> list[int]:
+def _order(e: Evaluation) -> np.ndarray:
     """Points by group (speed, then viscosity) and pressure; the points no group holds at the end."""
-    seen: list[int] = [int(i) for g in e.groups for i in g.index]
-    rest = [i for i in range(e.table.size) if i not in set(seen)]
-    return seen + rest
+    grouped = np.concatenate([g.index for g in e.groups]) if e.groups else np.zeros(0, dtype=int)
+    rest = np.ones(e.table.size, dtype=bool)
+    rest[grouped] = False
+    return np.concatenate([grouped, np.flatnonzero(rest)]).astype(int)
+
+
+def shown_points(e: Evaluation, limit: int = POINTS_SHEET_LIMIT) -> tuple[np.ndarray, int]:
+    """The points on the Points sheet, in its order, and the sampling step (1: every point).
+
+    Up to ``limit`` points all are shown; beyond, every k-th point of the sheet's order (by group, then
+    rising pressure), k = ⌈N/limit⌉, so each speed and viscosity keeps its share and its pressure span.
+
+    >>> import numpy as np
+    >>> from sheetpump.evaluation import evaluate_table, MeasuredTable
+    >>> t = MeasuredTable(speed=np.full(5, 25.0), pressure=np.arange(5) * 50e5, flow=np.full(5, 7e-4),
+    ...                   torque=np.arange(5) * 25.0 + 5, viscosity=np.full(5, 32e-6))
+    >>> idx, step = shown_points(evaluate_table(t, 28e-6), limit=2)
+    >>> idx.tolist(), step
+    ([0, 3], 3)
+    """
+    order = _order(e)
+    step = max(1, -(-order.size // limit))
+    return order[::step], step
 
 
 def _group_label(e: Evaluation, k: int) -> str:
@@ -169,6 +198,12 @@ def _write_summary(sheet: Any, e: Evaluation, f: _Formats, source: str | None) -
     line("table file", source if source is not None else t.file)
     line("sheet", t.sheet if t.sheet else "(CSV file)")
     line("points", t.size)
+    shown, step = shown_points(e)
+    if step > 1:
+        line("points on the Points sheet and in the charts", int(shown.size), "", None,
+             f"every {step}th point by speed, viscosity and rising pressure: a sheet holds at most 1,048,576 "
+             "rows and a chart of more points shows no more; every figure here covers every point, and "
+             "`sheetpump evaluate --format json` lists each one")
     flagged = sum(1 for fl in e.points.flags if fl)
     line("points with a plausibility flag", flagged, "", f.fail if flagged else f.ok)
     line("written by", f"sheetpump {__version__}")
@@ -253,8 +288,8 @@ def _write_summary(sheet: Any, e: Evaluation, f: _Formats, source: str | None) -
 
 # -- Points ----------------------------------------------------------------------------------------------
 def _write_points(sheet: Any, e: Evaluation, f: _Formats, v_cell: str
-                  ) -> tuple[dict[int, int], dict[str, int]]:
-    """Write the Points sheet; return the sheet row of each point and the column of each key."""
+                  ) -> tuple[np.ndarray, dict[str, int]]:
+    """Write the Points sheet; return the sheet row of each point (-1: not shown) and the column of each key."""
     t, pe = e.table, e.points
     power_measured = t.torque is None
     cols: list[tuple[str, str, int]] = [  # key, header, width
@@ -293,6 +328,11 @@ def _write_points(sheet: Any, e: Evaluation, f: _Formats, v_cell: str
         write_value(sheet, _HEADER_ROW, i, header, f.header)
         sheet.set_column(i, i, width)
     sheet.set_row(_HEADER_ROW, 45)
+    shown, step = shown_points(e)
+    if step > 1:
+        write_value(sheet, 2, 0, f"The table has {t.size:,} points; this sheet shows {shown.size:,} of them, every "
+                    f"{step}th in this order, and the charts draw these. Summary's figures and flag counts "
+                    "cover every point; `sheetpump evaluate --format json` lists each one.", f.note_line)
 
     def cell(key: str, r: int) -> str:
         return xl_rowcol_to_cell(r, col[key])
@@ -306,8 +346,8 @@ def _write_points(sheet: Any, e: Evaluation, f: _Formats, v_cell: str
     measured_power = t.input_power if t.torque is None else None
     nu = _si_to(e.viscosity, VISCOSITY)
     mu = _si_to(e.dynamic_viscosity, DYN_VISCOSITY)
-    rows: dict[int, int] = {}
-    for k, i in enumerate(_order(e)):
+    rows = np.full(t.size, -1)
+    for k, i in enumerate(shown.tolist()):
         r = _HEADER_ROW + 1 + k
         rows[i] = r
         ok = bool(np.isfinite(pe.volumetric[i]))  # evaluated (neither missing nor impossible)
@@ -354,7 +394,7 @@ def _write_points(sheet: Any, e: Evaluation, f: _Formats, v_cell: str
             write_value(sheet, r, col["m_et"], _num(pr.total[i]), f.eff)
             write_value(sheet, r, col["extrap"], str(pr.extrapolation[i]) or "no")
     sheet.freeze_panes(_HEADER_ROW + 1, 1)
-    last = _HEADER_ROW + max(len(rows), 1)
+    last = _HEADER_ROW + max(shown.size, 1)
     sheet.autofilter(_HEADER_ROW, 0, last, len(cols) - 1)
     return rows, col
 
@@ -365,7 +405,7 @@ def _write_curves(sheet: Any, e: Evaluation, f: _Formats) -> list[int]:
     write_value(sheet, 0, 0, "Model curves at each measured speed and viscosity (over the measured pressure "
                 "range)", f.title)
     first: list[int] = []
-    for k, (pressure, pred) in enumerate(e.curves):
+    for k, (pressure, pred) in enumerate(e.curves[:CHART_GROUPS_LIMIT]):
         c = 5 * k
         first.append(c)
         write_value(sheet, 1, c, _group_label(e, k), f.section)
@@ -383,13 +423,16 @@ def _write_curves(sheet: Any, e: Evaluation, f: _Formats) -> list[int]:
 
 
 # -- Charts ----------------------------------------------------------------------------------------------
-def _write_charts(book: Any, sheet: Any, e: Evaluation, f: _Formats, rows: dict[int, int], col: dict[str, int],
+def _write_charts(book: Any, sheet: Any, e: Evaluation, f: _Formats, rows: np.ndarray, col: dict[str, int],
                   curve_cols: list[int]) -> None:
     write_value(sheet, 0, 0, "Efficiencies against pressure: measured points (markers) and the model (lines)",
                 f.title)
     sheet.set_column(0, 11, 9)
     sheet.merge_range(1, 0, 1, 11, SAFETY_CAUTION, f.caution)
     sheet.set_row(1, 48)
+    if len(e.groups) > CHART_GROUPS_LIMIT:
+        write_value(sheet, 2, 0, f"The first {CHART_GROUPS_LIMIT} of {len(e.groups)} speed and viscosity groups are "
+                    "drawn (by rising speed); the Points sheet holds the others.", f.note_line)
     charts = (("ev", 1, "Volumetric efficiency η_v"), ("ehm", 2, "Hydro-mechanical efficiency η_hm"),
               ("et", 3, "Total efficiency η_t"))
     for place, (key, offset, title) in enumerate(charts):
@@ -400,20 +443,21 @@ def _write_charts(book: Any, sheet: Any, e: Evaluation, f: _Formats, rows: dict[
         chart.set_y_axis({"name": f"{title.split()[-1]} [-]", "num_format": "0.00",
                           "major_gridlines": {"visible": True, "line": {"color": "#E0E0E0"}}})
         values: list[float] = []
-        for k, g in enumerate(e.groups):
+        for k, g in enumerate(e.groups[:CHART_GROUPS_LIMIT]):
             colour = PALETTE[k % len(PALETTE)]
-            rs = [rows[int(i)] for i in g.index]
-            lo, hi = min(rs), max(rs)
+            on_sheet = g.index[rows[g.index] >= 0]
             label = _group_label(e, k)
-            chart.add_series({
-                "name": f"{label} measured",
-                "categories": [POINTS, lo, col["pressure"], hi, col["pressure"]],
-                "values": [POINTS, lo, col[key], hi, col[key]],
-                "marker": {"type": "circle", "size": 6, "fill": {"color": colour}, "border": {"color": colour}},
-                "line": {"none": True},
-            })
+            if on_sheet.size:
+                lo, hi = int(rows[on_sheet].min()), int(rows[on_sheet].max())
+                chart.add_series({
+                    "name": f"{label} measured",
+                    "categories": [POINTS, lo, col["pressure"], hi, col["pressure"]],
+                    "values": [POINTS, lo, col[key], hi, col[key]],
+                    "marker": {"type": "circle", "size": 6, "fill": {"color": colour}, "border": {"color": colour}},
+                    "line": {"none": True},
+                })
             arr = {"ev": e.points.volumetric, "ehm": e.points.hydromechanical, "et": e.points.total}[key]
-            values += [float(x) for x in arr[g.index] if np.isfinite(x)]
+            values += [float(x) for x in arr[on_sheet] if np.isfinite(x)]
             if k < len(curve_cols):
                 c = curve_cols[k]
                 pressure, pred = e.curves[k]

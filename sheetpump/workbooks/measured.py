@@ -86,7 +86,21 @@ def _empty(v: Any) -> bool:
 
 def _numbers(values: Any, key: str, file: str, sheet: str | None, letter: str, rows: np.ndarray) -> np.ndarray:
     """A column as floats: empty cells NaN; text, true/false and dates refused, naming the cell."""
-    values = np.asarray(values, dtype=object)
+    values = np.asarray(values)
+    if values.dtype.kind in "fiu":  # parsed as numbers already (a CSV column): no cell to look at one by one
+        out = values.astype(float)
+        bad = np.isinf(out)
+        if bad.any():
+            i = int(np.flatnonzero(bad)[0])
+            raise InputError(f"{float(values[i])!r} is not a finite number",
+                             Where(file, sheet, f"{letter}{rows[i]}", key))
+        return out
+    values = values.astype(object)
+    if set(map(type, values)) <= {float, int, type(None)}:  # a workbook's numbers and empty cells
+        out = np.array([np.nan if v is None else v for v in values], dtype=float)
+        bad = np.isinf(out)
+        if not bad.any():
+            return out
     out = np.full(values.size, np.nan)
     for i, v in enumerate(values):
         if _empty(v):
@@ -176,7 +190,7 @@ def read_measured(path: str | os.PathLike[str], *, sheet: str | None = None,
         headers, data = read_csv_table(path)
         headers = [_PANDAS_DUPLICATE.sub(r"\1", h) for h in headers]
         count = len(next(iter(data.values()))) if data else 0
-        columns = [np.asarray(data[i], dtype=object) for i in range(len(headers))]
+        columns = [np.asarray(data[i]) for i in range(len(headers))]
         header_row, first_col = 1, 0
     else:
         if sheet is None:
@@ -197,7 +211,10 @@ def read_measured(path: str | os.PathLike[str], *, sheet: str | None = None,
     keep = np.zeros(count, dtype=bool)
     for key, (index, _, _) in found.items():
         if key in _NUMBER_KEYS:
-            keep |= np.array([not _empty(v) for v in columns[index]], dtype=bool)
+            column = columns[index]
+            keep |= (~np.isnan(column) if column.dtype.kind == "f" else
+                     np.ones(count, dtype=bool) if column.dtype.kind in "iu" else
+                     np.array([not _empty(v) for v in column], dtype=bool))
     row_numbers = row_numbers[keep]
     if row_numbers.size == 0:
         raise InputError("the table has no points (no row below the header holds a value)",
