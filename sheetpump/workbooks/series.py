@@ -440,7 +440,8 @@ def _check_span(values: np.ndarray, column: Column, file: str, sheet: str | None
         return
     i = outside_span(values, kind)
     if i is not None:
-        raise InputError(f"{column.words[0]} {from_si(float(values[i]), kind):g} {kind.default} is outside the range sheetpump reads for a "
+        shown = f"{from_si(float(values[i]), kind):g} {kind.default}"
+        raise InputError(f"{column.words[0]} {shown} is outside the range sheetpump reads for a "
                          f"{kind.name}, {span_text(kind)}", Where(file, sheet, f"{letter}{row0 + i}", column.key),
                          "check the value and the unit in the header")
 
