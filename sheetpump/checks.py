@@ -288,7 +288,15 @@ def _fmt(ctx: _Context, kind: Kind | None, value: float) -> str:
     unit = ctx.unit(kind)
     shown = from_si(value, kind, unit) if unit else value
     pretty = unit.replace("degC", "°C").replace("degF", "°F").replace("^2", "²").replace("*", "·")
-    return f"{shown:.4g} {pretty}".strip()
+    return f"{_digits(shown)} {pretty}".strip()
+
+
+def _digits(x: float) -> str:
+    """Four significant digits, without an exponent where plain digits read well (87000, not 8.7e+04)."""
+    text = f"{x:.4g}"
+    if "e" not in text or not 1e-3 <= abs(x) < 1e7:
+        return text
+    return f"{float(text):f}".rstrip("0").rstrip(".")
 
 
 def _margin(measured: float, limit: float, upper: bool) -> float:

@@ -83,7 +83,10 @@ def _sorted(findings: Sequence[Finding]) -> list[Finding]:
 def _where_dict(where: Where | None) -> dict[str, str | None] | None:
     if where is None:
         return None
-    return {"file": where.file, "sheet": where.sheet, "cell": where.cell, "field": where.field}
+    out = {"file": where.file, "sheet": where.sheet, "cell": where.cell, "field": where.field}
+    if where.note:
+        out["note"] = where.note
+    return out
 
 
 def _label(severity: str, strict: bool) -> str:

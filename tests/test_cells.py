@@ -50,8 +50,8 @@ def test_ranges_spill_elementwise_and_broadcast():
         (lambda: cells.SP_HYDRAULIC_POWER("250 rpm", 60),
          "#SP! pressure: 'rpm' is a speed, not a pressure (write e.g. '250 bar')"),
         (lambda: cells.SP_HYDRAULIC_POWER("3,000", 60),
-         "#SP! pressure: '3,000' is ambiguous (write numbers without thousands separators and with a "
-         "point for decimals, e.g. '3000 psi' or '3.5 bar')"),
+         "#SP! pressure: '3,000' is ambiguous (a comma before exactly three digits may group thousands: "
+         "write 3000 for three thousand, 3.5 or 3,5 for three and a half)"),
         (lambda: cells.SP_HYDRAULIC_POWER(200, "plenty"),
          "#SP! flow: 'plenty' is not a number with a unit (write e.g. '40 L/min')"),
         (lambda: cells.SP_HYDRAULIC_POWER(200, 60, "rpm"),
