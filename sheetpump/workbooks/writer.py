@@ -265,8 +265,7 @@ def write_value(sheet: Worksheet, row: int, col: int, value: Any, fmt: Any = Non
         sheet.write_boolean(row, col, value, fmt)
     elif isinstance(value, (int, float)) and not isinstance(value, bool):
         if math.isfinite(value):
-            # 15 significant digits: what a double holds reliably; drops noise such as 500.0000000000001
-            sheet.write_number(row, col, float(f"{value:.15g}") if isinstance(value, float) else value, fmt)
+            sheet.write_number(row, col, value, fmt)
         else:
             sheet.write_string(row, col, str(value), fmt)
     else:
