@@ -31,9 +31,9 @@ from .. import SAFETY_CAUTION_SHORT, __version__
 from ..files import atomic_path
 
 __all__ = [
-    "LINE_HEIGHT", "MARKERS", "PALETTE", "PAPER_SIZES", "PCT", "SIGNED_PCT", "STYLES", "cell_format", "column_width",
-    "creation_time", "display_path", "header_footer", "number_format", "open_book", "page_setup", "text_lines",
-    "text_width", "write_formula", "write_header", "write_value",
+    "LINE_HEIGHT", "MARKERS", "PALETTE", "PAPER_SIZES", "PCT", "SIGNED_PCT", "STYLES", "cell_format",
+    "column_width", "creation_time", "display_path", "header_footer", "header_footer_parts", "number_format",
+    "open_book", "page_setup", "text_lines", "text_width", "write_formula", "write_header", "write_value",
 ]
 
 #: Our own colours: input cells, headers, and the three verdicts.
@@ -165,20 +165,28 @@ def write_header(sheet: Worksheet, row: int, headers: Sequence[str], widths: Seq
     sheet.set_row(row, LINE_HEIGHT * lines)
 
 
-def header_footer(machine: str) -> tuple[str, str]:
-    """Page header and footer: the machine's name, the sheet's name, page x of y; sheetpump's version and
-    the one-line safety caution.
+def header_footer_parts(machine: str) -> tuple[dict[str, str], dict[str, str]]:
+    """The texts of the page header and footer by position (``left``, ``center``, ``right``), in the
+    spreadsheet's header codes: the machine's name, the sheet's name (``&A``), page x of y (``&P``, ``&N``);
+    sheetpump's version and the one-line safety caution.
 
-    ``machine`` comes from an input: ``&`` (the code character of headers) is doubled and the text is
-    kept short (a header holds at most 255 characters).
+    ``machine`` comes from an input: ``&`` (the code character) is doubled and the text kept short (a
+    header holds at most 255 characters).
     """
     name = " ".join(str(machine).split())
     if len(name) > 60:
         name = name[:59] + "…"
     name = name.replace("&", "&&")
-    header = f"&L&9{name}&C&9sheet: &A&R&9page &P of &N"
-    footer = f"&L&8sheetpump {__version__}&C&8{SAFETY_CAUTION_SHORT}"
-    return header, footer
+    return ({"left": name, "center": "sheet: &A", "right": "page &P of &N"},
+            {"left": f"sheetpump {__version__}", "center": SAFETY_CAUTION_SHORT})
+
+
+def header_footer(machine: str) -> tuple[str, str]:
+    """Page header and footer of :func:`header_footer_parts` as XlsxWriter takes them (9 and 8 point)."""
+    head, foot = header_footer_parts(machine)
+    codes = {"left": "&L", "center": "&C", "right": "&R"}
+    return ("".join(f"{codes[k]}&9{v}" for k, v in head.items()),
+            "".join(f"{codes[k]}&8{v}" for k, v in foot.items()))
 
 
 def page_setup(sheet: Worksheet, machine: str, *, paper: str = "A4", landscape: bool = True,
