@@ -668,7 +668,7 @@ def _curves_and_charts(book: Any, comp: Comparison, units: str, duty_sheets: lis
         charts.insert_chart(band * _BAND_ROWS + 1, 0, env, second if k % 2 else {})
     bands_used = 2 + (len(cands) + 1) // 2
     page_setup(charts, app.name, paper=paper, area=(0, 0, bands_used * _BAND_ROWS - 1, 14),
-               breaks=[b * _BAND_ROWS for b in range(1, bands_used)], fit_width=False)
+               breaks=[b * _BAND_ROWS for b in range(1, bands_used)])
     curves.freeze_panes(3, 0)
     page_setup(curves, app.name, paper=paper, title_rows=(1, 2),
                area=(0, 0, max(label_row[0], row_env + env_block * len(cands)) - 1, max(4 * len(cands), 8) - 1))

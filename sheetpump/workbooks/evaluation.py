@@ -132,12 +132,13 @@ def write_evaluation(e: Evaluation, target: str | os.PathLike[str], *, source: s
                      paper: str = "A4") -> Path:
     """Write the evaluation workbook of ``e`` to ``target`` (atomically) and return its path.
 
-    ``source`` is the input file's name as the user gave it (shown as text); without it the table's file
-    relative to ``target``'s folder. ``paper`` is ``"A4"`` or ``"Letter"``.
+    ``source`` is the input file's name as the user gave it (shown as text); an absolute one, or none,
+    is shown relative to ``target``'s folder. ``paper`` is ``"A4"`` or ``"Letter"``.
     """
     target = Path(target)
-    if source is None:
-        source = display_path(e.table.file, target.resolve().parent) if e.table.file else ""
+    if source is None or Path(source).is_absolute():  # never an absolute path of this machine
+        given = source or e.table.file
+        source = display_path(given, target.resolve().parent) if given else ""
     with open_book(target, title=_TITLE) as book:
         f = _Formats(book)
         summary = book.add_worksheet(SUMMARY)
@@ -154,7 +155,7 @@ def write_evaluation(e: Evaluation, target: str | os.PathLike[str], *, source: s
         page_setup(points, name, paper=paper, title_rows=(_HEADER_ROW, _HEADER_ROW), title_columns=(0, 0),
                    area=(0, 0, _HEADER_ROW + max(len(rows), 1), len(columns) - 1))
         bands = len(_CHARTS)
-        page_setup(charts, name, paper=paper, fit_width=False, area=(0, 0, bands * _BAND_ROWS - 1, 14),
+        page_setup(charts, name, paper=paper, area=(0, 0, bands * _BAND_ROWS - 1, 14),
                    breaks=[b * _BAND_ROWS for b in range(1, bands)])
         page_setup(curves, name, paper=paper, title_rows=(1, 2))
         summary.activate()
