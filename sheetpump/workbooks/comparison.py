@@ -538,11 +538,19 @@ def _curves_and_charts(book: Any, comp: Comparison, units: str, duty_sheets: lis
     eff = book.add_chart({"type": "scatter", "subtype": "straight"})
     vol = book.add_chart({"type": "scatter", "subtype": "straight"})
     flow = book.add_chart({"type": "scatter", "subtype": "straight"})
+    lowest = {"total": 1.0, "volumetric": 1.0}
     for k, cand in enumerate(cands):
         ds = cand.datasheet
         p = np.linspace(0.0, ds.pressure_peak, _CURVE_POINTS)
         est = performance.estimate(ds, p, np.full_like(p, n_mean), np.full_like(p, nu_mean))
         c0 = 4 * k
+        # the efficiency axes start where the curves do above a fifth of the peak pressure (below it the
+        # total efficiency falls to zero and would flatten every difference between the candidates)
+        upper = p >= 0.2 * ds.pressure_peak
+        lowest["total"] = min(lowest["total"], float(np.nanmin(est.total_efficiency[upper])),
+                              float(np.nanmin(cand.result.drive.total_efficiency)))
+        lowest["volumetric"] = min(lowest["volumetric"], float(np.nanmin(est.volumetric_efficiency)),
+                                   float(np.nanmin(cand.result.drive.volumetric_efficiency)))
         curves.merge_range(1, c0, 1, c0 + 3, ds.label, group_fmt)
         for j, values in enumerate((from_si(p, PRESSURE, pu), est.volumetric_efficiency, est.total_efficiency,
                                     from_si(est.flow, FLOW, qu))):
@@ -587,11 +595,12 @@ def _curves_and_charts(book: Any, comp: Comparison, units: str, duty_sheets: lis
                              "values": rng(2),
                              "marker": {"type": "triangle", "size": 8, "fill": {"none": True},
                                         "border": {"color": "#000000", "width": 1.25}}, "line": {"none": True}})
-    for chart, title, quantity in ((eff, "Total efficiency against pressure", "total efficiency"),
-                                   (vol, "Volumetric efficiency against pressure", "volumetric efficiency")):
+    for chart, title, quantity in ((eff, "Total efficiency against pressure", "total"),
+                                   (vol, "Volumetric efficiency against pressure", "volumetric")):
         chart.set_title({"name": title, "name_font": {"size": 12}})
         chart.set_x_axis({"name": f"pressure [{pu}]", "min": 0})
-        chart.set_y_axis({"name": quantity, "min": 0, "max": 1, "num_format": "0%"})
+        bottom = max(0.0, math.floor(lowest[quantity] * 20 - 1e-9) / 20)  # a multiple of 5 %
+        chart.set_y_axis({"name": f"{quantity} efficiency", "min": bottom, "max": 1, "num_format": "0%"})
     flow.set_title({"name": "Delivered flow against pressure, with the required flow", "name_font": {"size": 12}})
     flow.set_x_axis({"name": f"pressure [{pu}]", "min": 0})
     flow.set_y_axis({"name": f"flow [{qu}]", "min": 0})
@@ -631,7 +640,7 @@ def _curves_and_charts(book: Any, comp: Comparison, units: str, duty_sheets: lis
             raised = float(from_si(ds.speed_min_high_pressure, SPEED, su))
             thr = float(from_si(ds.high_pressure_threshold, PRESSURE, pu))
             top = float(from_si(ds.pressure_peak, PRESSURE, pu))
-            outlines.append((f"min. {raised:.0f} {su} over {thr:.0f} {pu}", [lo, raised, raised],
+            outlines.append((f"min. {raised:.0f} {su}", [lo, raised, raised],
                              [thr, thr, top], "dash_dot"))
         lines = 1
         for j, (label, xs, ys, dash) in enumerate(outlines):
@@ -662,7 +671,9 @@ def _curves_and_charts(book: Any, comp: Comparison, units: str, duty_sheets: lis
         env.set_title({"name": name_of(f"Speed-pressure envelope: {ds.label}"), "name_font": {"size": 12}})
         env.set_x_axis({"name": f"speed [{su}]", "min": 0, "max": x_max})
         env.set_y_axis({"name": f"pressure [{pu}]", "min": 0, "max": y_max})
-        env.set_legend({"position": "bottom"})
+        # one plot area for every envelope chart, so the shared axes also have the same length on paper
+        env.set_legend({"position": "bottom", "layout": {"x": 0.05, "y": 0.75, "width": 0.9, "height": 0.24}})
+        env.set_plotarea({"layout": {"x": 0.14, "y": 0.14, "width": 0.8, "height": 0.5}})
         env.set_size({"width": _CHART_W, "height": _CHART_H})
         band = 2 + k // 2
         charts.insert_chart(band * _BAND_ROWS + 1, 0, env, second if k % 2 else {})
@@ -703,7 +714,7 @@ def _findings(book: Any, comp: Comparison, units: str, paper: str, base: str) ->
         values = [r[c] for r in rows]
         widths.append(width or column_width(head, values, SIGNED_PCT if head == "margin" else "#,##0.00", most=24))
     write_header(sheet, 0, [h for h, _w, _x in _FINDING_COLUMNS], widths, cell_format(book, "header", **small))
-    text = cell_format(book, "wrap", **small)
+    text = cell_format(book, "wrap", indent=1, **small)  # indented: never runs into a number on its left
     for i, (values, severity) in enumerate(zip(rows, severities, strict=True), start=1):
         lines = 1
         # measured and limit share a format: three significant digits of the larger
