@@ -409,16 +409,14 @@ def _summary(book: Any, comp: Comparison, units: str, duty_refs: list[dict[str, 
               ("warn", "warn: allowed, but look (short-term limit, extrapolation)"),
               ("fail", "fail: outside a rating"),
               ("info", "info: a figure without a verdict"))
-    legend_lines = 1
-    for c, (style, text) in enumerate(legend[:n] if n >= len(legend) else legend, start=1):
-        if c <= n:
-            sheet.write_string(2, c, text, cell_format(book, style, "wrap"))
-            legend_lines = max(legend_lines, text_lines(text, cand_w))
-    if n < len(legend):  # fewer candidates than legend entries: the rest below
-        for k, (style, text) in enumerate(legend[n:], start=3):
-            sheet.write_string(k, 1, text, cell_format(book, style, "wrap"))
-    sheet.set_row(2, LINE_HEIGHT * legend_lines)
-    head = 4 if n >= len(legend) else 3 + len(legend) - n + 1
+    # the entries across the candidates' columns, on as many lines as they need
+    legend_rows = -(-len(legend) // n)
+    for r in range(legend_rows):
+        entries = legend[r * n:(r + 1) * n]
+        for c, (style, text) in enumerate(entries, start=1):
+            sheet.write_string(2 + r, c, text, cell_format(book, style, "wrap"))
+        sheet.set_row(2 + r, LINE_HEIGHT * max(text_lines(text, cand_w) for _, text in entries))
+    head = 2 + legend_rows + 1
     sheet.write_string(head, 0, "candidate", f["header"])
     lines = 1
     for c, cand in enumerate(cands, start=1):
