@@ -51,6 +51,7 @@ from .writer import (
     PCT,
     SIGNED_PCT,
     STYLES,
+    as_stored,
     display_path,
     open_book,
     page_setup,
@@ -226,11 +227,14 @@ def _write_summary(sheet: Any, e: Evaluation, f: _Formats, source: str | None) -
     if e.derived is not None and e.nominal_displacement is not None:
         write_value(sheet, r, 0, "derived less nominal, relative", f.label)
         nom, der = xl_rowcol_to_cell(nominal_row, 1), xl_rowcol_to_cell(derived_row, 1)
-        write_formula(sheet, r, 1, f"=({der}-{nom})/{nom}", e.displacement_difference, f.pct)
+        # the values a spreadsheet computes from the cells as stored: a difference of two nearly equal
+        # displacements depends on the last digits kept
+        v_nom, v_der = (as_stored(_si_to(x, DISPLACEMENT)) for x in (e.nominal_displacement, e.derived.value))
+        write_formula(sheet, r, 1, f"=({der}-{nom})/{nom}", (v_der - v_nom) / v_nom, f.pct)
         if e.derived.uncertainty > 0:
             unc = xl_rowcol_to_cell(derived_row, 3)
             write_formula(sheet, r, 3, f"=ABS({der}-{nom})/{unc}",
-                          abs(e.derived.value - e.nominal_displacement) / e.derived.uncertainty, f.value[2])
+                          abs(v_der - v_nom) / as_stored(_si_to(e.derived.uncertainty, DISPLACEMENT)), f.value[2])
             write_value(sheet, r, 2, "× std. unc.")
         flag = bool(e.table_flags)
         write_value(sheet, r, 4, TABLE_FLAG_TEXT[e.table_flags[0]] if flag else

@@ -31,7 +31,7 @@ from .. import SAFETY_CAUTION_SHORT, __version__
 from ..files import atomic_path
 
 __all__ = [
-    "LINE_HEIGHT", "MARKERS", "PALETTE", "PAPER_SIZES", "PCT", "SIGNED_PCT", "STYLES", "cell_format",
+    "LINE_HEIGHT", "MARKERS", "PALETTE", "PAPER_SIZES", "PCT", "SIGNED_PCT", "STYLES", "as_stored", "cell_format",
     "column_width", "creation_time", "display_path", "header_footer", "header_footer_parts", "number_format",
     "open_book", "page_setup", "text_lines", "text_width", "write_formula", "write_header", "write_value",
 ]
@@ -219,6 +219,17 @@ def page_setup(sheet: Worksheet, machine: str, *, paper: str = "A4", landscape: 
         sheet.print_area(*area)
     if breaks:
         sheet.set_h_pagebreaks(list(breaks))
+
+
+def as_stored(x: float) -> float:
+    """A number as the workbook file stores it: XlsxWriter writes 16 significant digits.
+
+    A formula's stored value computed from the numbers as stored agrees with a spreadsheet's recomputation.
+
+    >>> as_stored(28.000000000000004), as_stored(0.1)
+    (28.0, 0.1)
+    """
+    return float(f"{float(x):.16G}")
 
 
 def display_path(path: str | os.PathLike[str], base: str | os.PathLike[str]) -> str:
