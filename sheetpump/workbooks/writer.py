@@ -54,7 +54,6 @@ STYLES: dict[str, dict[str, Any]] = {
     "n2": {"num_format": "#,##0.00"},
     "n3": {"num_format": "0.000"},
     "pct": {"num_format": "0.0%"},
-    "spct": {"num_format": "+0.0%;-0.0%;0.0%"},
 }
 
 #: Number formats of shares: plain (an efficiency) and signed (a margin, a difference).
