@@ -91,6 +91,7 @@ class Application:
     speed_margin: float = 0.0  # required headroom inside the speed range [-]
     cold_start_temperature: float | None = None  # lowest oil temperature at a start [K]
     evaluation_years: float = 10.0  # period for the cost over life
+    paper_size: str = "A4"  # paper the reports print on: "A4" or "Letter"
     defaulted: tuple[str, ...] = ()  # settings not given in the workbook, taken at their defaults
     file: str = ""
     sources: dict[str, Where] = field(default_factory=dict)

@@ -7,6 +7,7 @@ written atomically (:mod:`sheetpump.files`) and the datasheet a copy is made of 
 
 from __future__ import annotations
 
+import dataclasses
 import json
 import math
 import os
@@ -321,6 +322,26 @@ def _put(cell: Any, value: Any) -> None:
         cell.quotePrefix = True
 
 
+def _print_setup(ws: Any, name: str, paper: str, landscape: bool) -> None:
+    """Page setup of one sheet of the annotated copy: paper, orientation, one page wide, margins, and the
+    header and footer every sheetpump output prints (:func:`~sheetpump.workbooks.writer.header_footer_parts`)."""
+    from .workbooks.writer import PAPER_SIZES, header_footer_parts
+
+    ws.page_setup.paperSize = PAPER_SIZES.get(paper, PAPER_SIZES["A4"])
+    ws.page_setup.orientation = "landscape" if landscape else "portrait"
+    ws.sheet_properties.pageSetUpPr.fitToPage = True
+    ws.page_setup.fitToWidth = 1
+    ws.page_setup.fitToHeight = 0
+    ws.page_margins.left = ws.page_margins.right = 0.45
+    ws.page_margins.top = ws.page_margins.bottom = 0.7
+    ws.page_margins.header = ws.page_margins.footer = 0.3
+    head, foot = header_footer_parts(name)
+    for part, texts, size in ((ws.oddHeader, head, 9), (ws.oddFooter, foot, 8)):
+        for position, text in texts.items():
+            item = getattr(part, position)
+            item.text, item.size = text, size
+
+
 def annotate(result: CheckResult, target: str | os.PathLike[str], source: str | None = None) -> Path:
     """Write a copy of the datasheet workbook with the offending cells filled and a findings sheet.
 
@@ -340,8 +361,10 @@ def annotate(result: CheckResult, target: str | os.PathLike[str], source: str | 
     """
     import openpyxl
     from openpyxl.comments import Comment
-    from openpyxl.styles import Font, PatternFill
+    from openpyxl.styles import Alignment, Font, PatternFill
     from openpyxl.utils.exceptions import InvalidFileException
+
+    from .workbooks.writer import LINE_HEIGHT, SIGNED_PCT, display_path, number_format, text_lines
 
     source = source or result.datasheet.file
     if not source:
@@ -359,7 +382,8 @@ def annotate(result: CheckResult, target: str | os.PathLike[str], source: str | 
     except (OSError, InvalidFileException, KeyError, ValueError) as exc:
         raise InputError(f"cannot open the datasheet to annotate it ({exc})", Where(file=str(source))) \
             from None
-    marked: dict[tuple[str, str], str] = {}
+    # each marked cell's comment holds its findings (worst first), in place of the template's help
+    marked: dict[tuple[str, str], tuple[str, Any, list[str]]] = {}
     for f in _sorted(result.findings):
         w = f.where
         if f.severity not in FILLS or not w.sheet or not w.cell or w.sheet not in wb.sheetnames:
@@ -375,12 +399,12 @@ def annotate(result: CheckResult, target: str | os.PathLike[str], source: str | 
             isinstance(block[0], tuple) else (list(block) if isinstance(block, tuple) else [block])
         for c in cells:
             key = (w.sheet, c.coordinate)
-            if key in marked:  # the worse severity (sorted first) keeps its colour
-                continue
-            marked[key] = f.severity
-            c.fill = PatternFill(fill_type="solid", start_color=FILLS[f.severity], end_color=FILLS[f.severity])
-            if c.comment is None:
-                c.comment = Comment(f"sheetpump {f.severity}: {f.rule}\n{f.message}"[:1000], "sheetpump")
+            if key not in marked:  # the worse severity (sorted first) keeps its colour
+                marked[key] = (f.severity, c, [])
+                c.fill = PatternFill(fill_type="solid", start_color=FILLS[f.severity], end_color=FILLS[f.severity])
+            marked[key][2].append(f"sheetpump {f.severity}: {f.rule}\n{f.message}")
+    for _severity, c, texts in marked.values():
+        c.comment = Comment("\n\n".join(texts)[:2000], "sheetpump", width=360, height=160)
     name = FINDINGS_SHEET
     k = 2
     while name in wb.sheetnames:
@@ -389,25 +413,44 @@ def annotate(result: CheckResult, target: str | os.PathLike[str], source: str | 
     ws = wb.create_sheet(name)
     header = ("Rule", "Result", "Measured", "Limit", "Unit", "Margin", "Segment", "Outside", "Cell",
               "Application cell", "Message")
+    widths = (24, 8, 10, 10, 9, 9, 16, 8, 30, 30, 60)
+    top = Alignment(vertical="top", wrap_text=True)
     for j, h in enumerate(header, start=1):
         _put(ws.cell(row=1, column=j), h)
         ws.cell(row=1, column=j).font = Font(bold=True)
+        ws.cell(row=1, column=j).alignment = top
+    base = Path(target).resolve().parent
     for i, f in enumerate(_sorted(result.findings), start=2):
         measured = _shown(f.measured, f.kind, f.unit)
         limit = _shown(f.limit, f.kind, f.unit)
+        place = lambda w: str(dataclasses.replace(w, file=display_path(w.file, base)) if w.file else w)  # noqa: E731
         row = (f.rule, f.severity, measured, limit, _pretty(f.unit), _num(f.margin), f.segment, f.count,
-               str(f.where), str(f.app_where) if f.app_where is not None else "", f.message)
+               place(f.where), place(f.app_where) if f.app_where is not None else "", f.message)
+        numbers = number_format([v for v in (measured, limit) if isinstance(v, float)])
+        lines = 1
         for j, v in enumerate(row, start=1):
-            _put(ws.cell(row=i, column=j), v)
+            cell = ws.cell(row=i, column=j)
+            _put(cell, v)
+            cell.alignment = top
+            if isinstance(v, float) and j in (3, 4):
+                cell.number_format = numbers
+            if isinstance(v, str):
+                lines = max(lines, text_lines(v, widths[j - 1]))
+        ws.row_dimensions[i].height = LINE_HEIGHT * lines
         if f.severity in FILLS:
             ws.cell(row=i, column=2).fill = PatternFill(fill_type="solid", start_color=FILLS[f.severity],
                                                         end_color=FILLS[f.severity])
         if f.margin is not None:
-            ws.cell(row=i, column=6).number_format = "0.0%"
+            ws.cell(row=i, column=6).number_format = SIGNED_PCT
     last = len(result.findings) + 3
     _put(ws.cell(row=last, column=1), SAFETY_CAUTION)
-    for col, width in zip("ABCDEFGHIJK", (30, 8, 12, 12, 9, 9, 28, 8, 30, 30, 90), strict=True):
+    for col, width in zip("ABCDEFGHIJK", widths, strict=True):
         ws.column_dimensions[col].width = width
+    ws.print_title_rows = "1:1"
+    ws.freeze_panes = "A2"
+    paper = getattr(result.application, "paper_size", None) or "A4"
+    for sheet in wb.worksheets:
+        _print_setup(sheet, result.datasheet.label, paper, landscape=sheet is ws)
     with atomic_path(target) as tmp:
         wb.save(tmp)
     return Path(target)

@@ -30,7 +30,7 @@ from .. import SAFETY_CAUTION
 from .. import units as u
 from ..errors import InputError
 from ..units import Kind
-from .writer import STYLES, open_book, write_value
+from .writer import PAPER_SIZES, STYLES, open_book, write_value
 
 __all__ = [
     "APPLICATION_FIELDS",
@@ -81,6 +81,7 @@ FRACTION_UNITS = ("%", "fraction")
 ROTATIONS = ("clockwise", "counter-clockwise", "either")
 MOTOR_STANDARDS = ("IEC", "NEMA")
 YES_NO = ("yes", "no")
+PAPER_CHOICES = tuple(PAPER_SIZES)  # the paper sizes the writers know
 VG_GRADES = ("10", "15", "22", "32", "46", "68", "100", "150")
 
 
@@ -241,6 +242,7 @@ APPLICATION_FIELDS: tuple[Field, ...] = (
     _f("Use", "energy_price", COUNT, "Price of electrical energy per kWh. Empty: 0.", check="non_negative",
        label="per kWh", span=(0, 1000)),
     _f("Use", "currency", TEXT, "Currency of the prices. Empty: EUR."),
+    _f("Use", "paper_size", CHOICE, "Paper the reports print on. Empty: A4.", choices=PAPER_CHOICES),
     _f("Margins", "flow_margin", FRACTION, "Required surplus of delivered over required flow. Empty: 0.",
        check="non_negative"),
     _f("Margins", "pressure_margin", FRACTION, "Required headroom below each pressure rating. Empty: 0.",
