@@ -300,7 +300,9 @@ def test_rotation(pump, drive, want):
 
 def test_rotation_not_checked_when_not_stated():
     ds = metric_pump(rotation=None)
-    assert not [f for f in check(ds, app_for(duty(quiet(ds)))).findings if f.rule == "rotation"]
+    found = [f for f in check(ds, app_for(duty(quiet(ds)))).findings if f.rule == "rotation"]
+    assert [f.severity for f in found] == ["not checked"]
+    assert "states no direction of rotation" in found[0].message and found[0].where.field == "rotation"
 
 
 def test_imperial_display_round_trips_through_pint():

@@ -91,6 +91,7 @@ def _resample(candidate: Candidate) -> tuple[dict[str, np.ndarray], list[str], s
         "temperature": duty.temperature, "required": duty.flow, "delivered": fig.flow,
         "vol_eff": fig.volumetric_efficiency, "total_eff": fig.total_efficiency, "torque": fig.torque,
         "input_power": fig.input_power, "viscosity": fig.viscosity,
+        "surplus": fig.surplus_heat if fig.surplus_heat is not None else np.zeros(len(duty)),
     }
     n = len(duty)
     if n <= MAX_DUTY_ROWS:
@@ -130,6 +131,7 @@ def _duty_sheet(book: Any, name: str, candidate: Candidate, units: str) -> dict[
         (f"torque [{u[TORQUE]}]", None), (f"input power [{u[POWER]}]", None),
         (f"hydraulic power [{u[POWER]}]", "formula"), (f"power loss [{u[POWER]}]", "formula"),
         ("flow margin", "formula"), (f"energy [{_unit(units, ENERGY) or 'kWh'}]", "formula"),
+        (f"surplus flow heat [{u[POWER]}]", None), (f"heat into the oil [{u[POWER]}]", "formula"),
     ]
     if "pressure_max" in cols:
         headers.append((f"max pressure [{u[PRESSURE]}]", None))
@@ -144,6 +146,7 @@ def _duty_sheet(book: Any, name: str, candidate: Candidate, units: str) -> dict[
     show = {
         "pressure": (PRESSURE,), "speed": (SPEED,), "temperature": (TEMPERATURE,), "viscosity": (VISCOSITY,),
         "required": (FLOW,), "delivered": (FLOW,), "torque": (TORQUE,), "input_power": (POWER,),
+        "surplus": (POWER,),
     }
     shown = {k: np.asarray(from_si(v, show[k][0], u[show[k][0]]), float) if k in show else np.asarray(v, float)
              for k, v in cols.items() if k != "pressure_max"}
@@ -165,8 +168,13 @@ def _duty_sheet(book: Any, name: str, candidate: Candidate, units: str) -> dict[
             write_value(sheet, r, 14, "no flow required")
         energy = float(shown["input_power"][i]) * power_si_per_display * float(shown["duration"][i]) * kwh_per_j
         write_formula(sheet, r, 15, f"={pin}*{t}*{power_si_per_display * kwh_per_j!r}", energy, f["n3"])
+        # heat into the oil: the pump's loss plus the surplus flow at the pressure it crosses
+        surplus = float(shown["surplus"][i])
+        write_value(sheet, r, 16, surplus, f["n2"])
+        write_formula(sheet, r, 17, f"={xl_rowcol_to_cell(r, 13)}+{xl_rowcol_to_cell(r, 16)}",
+                      float(shown["input_power"][i]) - hyd_v + surplus, f["n2"])
         if "pressure_max" in cols:
-            write_value(sheet, r, 16, float(from_si(cols["pressure_max"][i], PRESSURE, u[PRESSURE])))
+            write_value(sheet, r, 18, float(from_si(cols["pressure_max"][i], PRESSURE, u[PRESSURE])))
     last = first + len(labels) - 1
     total_row = last + 2
     col = lambda c: f"{xl_rowcol_to_cell(first, c)}:{xl_rowcol_to_cell(last, c)}"  # noqa: E731
@@ -184,6 +192,10 @@ def _duty_sheet(book: Any, name: str, candidate: Candidate, units: str) -> dict[
          float(np.sum(loss * d) / d.sum())),
         ("energy", "shaft energy per cycle [kWh]", 15, f"=SUM({col(15)})",
          float(np.sum(pin * power_si_per_display * d) * kwh_per_j)),
+        ("mean_surplus", f"mean surplus flow heat [{u[POWER]}]", 16,
+         f"=SUMPRODUCT({col(16)},{col(1)})/SUM({col(1)})", float(np.sum(shown["surplus"] * d) / d.sum())),
+        ("mean_heat", f"mean heat into the oil [{u[POWER]}]", 17, f"=SUMPRODUCT({col(17)},{col(1)})/SUM({col(1)})",
+         float(np.sum((loss + shown["surplus"]) * d) / d.sum())),
     ]
     refs: dict[str, str] = {}
     if note:
@@ -193,7 +205,9 @@ def _duty_sheet(book: Any, name: str, candidate: Candidate, units: str) -> dict[
                  "rms_power": _show(fig.rms_power, POWER, units),
                  "peak_torque": _show(fig.peak_torque, TORQUE, units),
                  "mean_loss": _show(fig.mean_power_loss, POWER, units),
-                 "energy": fig.energy_per_cycle * kwh_per_j}
+                 "energy": fig.energy_per_cycle * kwh_per_j,
+                 "mean_surplus": _show(fig.mean_surplus_heat, POWER, units),
+                 "mean_heat": _show(fig.mean_heat, POWER, units)}
         sheet.write_string(total_row - 1, 0, "over every sample (not the bins above):", f["note"])
     for k, (key, text, c, formula, value) in enumerate(totals):
         r = total_row + k
@@ -231,7 +245,9 @@ def _summary(book: Any, comp: Comparison, units: str, duty_refs: list[dict[str, 
     for r, (style, text) in enumerate((("pass", "pass: inside the rating, with the margin asked"),
                                        ("warn", "warn: allowed, but look (short-term limit, extrapolation)"),
                                        ("fail", "fail: outside a rating"),
-                                       ("info", "info: a figure without a verdict")), start=2):
+                                       ("info", "info: a figure without a verdict"),
+                                       ("not checked", "not checked: the datasheet or application does not "
+                                        "state what the rule needs; fill the cell named on Findings")), start=2):
         sheet.write_string(r, 0, "legend" if r == 2 else "")
         sheet.write_string(r, 1, text, f[style])
     cands = comp.candidates
@@ -287,6 +303,9 @@ def _summary(book: Any, comp: Comparison, units: str, duty_refs: list[dict[str, 
         ("rms_power", f"RMS input power [{u(POWER)}]", POWER, "rms_power"),
         ("peak_torque", f"peak torque [{u(TORQUE)}]", TORQUE, "peak_torque"),
         ("mean_loss", f"pump power loss, mean [{u(POWER)}]", POWER, "mean_power_loss"),
+        ("mean_surplus", f"surplus flow over the relief valve or a throttle, mean [{u(POWER)}]", POWER,
+         "mean_surplus_heat"),
+        ("mean_heat", f"heat into the oil, mean [{u(POWER)}] (pump loss + surplus)", POWER, "mean_heat"),
     ):
         sheet.write_string(row, 0, label)
         for c, (cand, refs) in enumerate(zip(cands, duty_refs, strict=True), start=1):
@@ -296,16 +315,19 @@ def _summary(book: Any, comp: Comparison, units: str, duty_refs: list[dict[str, 
             else:  # a resampled series: the duty sheet's bins are not the whole truth
                 write_value(sheet, row, c, value, f["n2"])
         row += 1
-    line(f"surplus flow over the relief valve or a throttle, mean [{u(POWER)}]",
-         [_show(c.throttling_heat, POWER, units) for c in cands], "n2")
-    line(f"heat into the oil, mean [{u(POWER)}]",
-         [_show(c.heat_to_oil + c.throttling_heat, POWER, units) for c in cands], "n2")
+    line("surplus flow crosses", [c.result.drive.surplus_path for c in cands])
     line("motor chosen", [c.motor.label if c.motor else "none" for c in cands],
          [None if c.motor else "fail" for c in cands])
+    line(f"motor sized on: RMS load [{u(POWER)}]", [_show(c.motor_rms, POWER, units) for c in cands], "n2")
+    line("RMS load taken", [c.motor_rms_basis for c in cands])
+    line(f"motor sized on: peak load [{u(POWER)}]",
+         [_show(max(c.result.drive.peak_power, c.motor_rms), POWER, units) for c in cands], "n2")
+    line("criterion that binds the motor size", [c.motor.binding if c.motor else "" for c in cands])
     sheet.set_row(row, 30)
     line("motor load (of its rating)", [c.motor_note for c in cands], "wrap")
     line("motor full-load efficiency", [c.motor.efficiency if c.motor else None for c in cands], "pct")
-    line("electrical energy per cycle [kWh]", [c.electrical_energy_per_cycle / 3.6e6 for c in cands], "n3")
+    line("electrical energy per cycle [kWh] (at the motor's part-load efficiency)",
+         [c.electrical_energy_per_cycle / 3.6e6 for c in cands], "n3")
     line("electrical energy per year [kWh]", [c.electrical_energy_per_year / 3.6e6 for c in cands], "n0")
     line(f"energy cost per year [{app.currency}]", [c.energy_cost_per_year for c in cands], "n0")
     line(f"cost over {app.evaluation_years:g} years [{app.currency}]", [c.cost_over_period for c in cands], "n0")
@@ -454,7 +476,7 @@ def _assumptions(book: Any, comp: Comparison, inputs: Sequence[str | os.PathLike
     f = book.styles
     sheet = book.add_worksheet("Assumptions")
     app, oil = comp.application, comp.application.oil
-    overload = drive.IEC_OVERLOAD_FACTOR if app.motor_standard == "IEC" else drive.NEMA_OVERLOAD_FACTOR
+    settings = comp.settings
     rows: list[tuple[str, Any]] = [
         ("application", app.name),
         ("relief-valve setting [bar]", float(from_si(app.relief_setting, PRESSURE, "bar"))),
@@ -475,14 +497,24 @@ def _assumptions(book: Any, comp: Comparison, inputs: Sequence[str | os.PathLike
         ("oil density at 15 degC [kg/m^3]", oil.density_15),
         ("viscosity against temperature", "Walther relation, ASTM D341"),
         ("motor standard", app.motor_standard),
-        ("motor sizing rule", "smallest standard rating >= RMS input power and rating x overload factor >= peak"),
-        ("overload factor", f"{overload:g} x rating for short peaks: IEC 60034-1 occasional excess torque "
-         "(60 % for 15 s), from memory"),
+        ("motor sizing rule", "smallest standard rating with rating x service factor >= RMS input power (over "
+         "the cycle, or over the worst thermal window of a longer one) and rating x overload factor >= peak, "
+         "each size tried in turn; how long a peak lasts does not enter (heating follows the RMS, "
+         "IEC 60034-1 S6; its 60 % for 15 s is a stall test)"),
+        ("overload factor", f"{settings.overload_factor:g} x rating: the peak torque the motor carries without "
+         "stalling, IEC 60034-1 momentary excess torque (60 %), from memory"),
+        ("service factor", f"{settings.service_factor:g} (1: sized to the nameplate rating; NEMA's 1.15 kept "
+         "as a reserve, common practice)"),
+        ("motor thermal time [min]", settings.thermal_window / 60.0),
         ("motor series", "IEC 60072-1 rated outputs (kW)" if app.motor_standard == "IEC"
          else "NEMA MG 1 horsepower ratings"),
         ("motor efficiency table", "IEC 60034-30-1 IE3, 4-pole 50 Hz (full load)" if app.motor_standard == "IEC"
          else "NEMA MG 1 Table 12-12, NEMA Premium, 4-pole enclosed (full load)"),
-        ("electrical energy", "shaft energy / full-load motor efficiency (part-load efficiency not modelled)"),
+        ("electrical energy", "shaft energy + motor losses at the part load: a constant third of the "
+         "full-load losses plus two thirds times the load squared (efficiency at half load = full-load "
+         "efficiency, from memory)"),
+        ("heat into the oil", "pump power loss + surplus flow x the pressure it crosses (the relief setting, "
+         "or a throttle's stated pressure)"),
         ("settings not given (defaults used)", ", ".join(app.defaulted) or "none"),
         ("sheetpump version", __version__),
     ]
