@@ -228,9 +228,8 @@ def run(folder: str | os.PathLike[str] | None = None) -> DemoResult:
     inputs = write_inputs(out / "inputs")
     comparison = out / "comparison.xlsx"
     comp = build(str(inputs[0]), [str(p) for p in inputs[1:]], str(comparison))
-    results = [c.result for c in comp.candidates]
     report = out / "report.txt"
-    text = text_report(results, strict=False)
+    text = text_report(comp, strict=False)
     if SAFETY_CAUTION not in text:
         text += "\n" + SAFETY_CAUTION + "\n"
     atomic_write(report, text)

@@ -1,8 +1,11 @@
 """Reports of the rating checker: readable text, JSON, JUnit XML and an annotated copy of a datasheet.
 
-All of them take the :class:`~sheetpump.checks.CheckResult` of each pump and only format it; numbers are
-shown in the display units of the check's settings, and JSON carries the SI value beside each. Files are
-written atomically (:mod:`sheetpump.files`) and the datasheet a copy is made of is only ever read.
+Text and JSON take the :class:`~sheetpump.comparison.Comparison` (every pump's check, motor, energy,
+heat, cost and rank: the whole answer, the same numbers the comparison workbook shows); JUnit and the
+annotated copy take the :class:`~sheetpump.checks.CheckResult` of each pump. They only format; numbers are
+shown in the display units of the check's settings, and JSON carries the SI value beside each. Every rule
+appears for every pump, ``not checked`` ones with their reason and the cell to fill. Files are written
+atomically (:mod:`sheetpump.files`) and the datasheet a copy is made of is only ever read.
 """
 
 from __future__ import annotations
@@ -19,17 +22,19 @@ from typing import Any
 import numpy as np
 
 from . import SAFETY_CAUTION, __version__
-from .checks import DISPLAY_UNITS, FAIL, INFO, PASS, WARN, CheckResult, Finding
+from .checks import DISPLAY_UNITS, FAIL, INFO, NOT_CHECKED, PASS, WARN, CheckResult, Finding
+from .comparison import Candidate, Comparison
 from .errors import InputError, Where
 from .files import atomic_path, check_outputs, same_file
 from .units import FLOW, POWER, TORQUE, VISCOSITY, Kind, from_si
 
 __all__ = ["FILLS", "FINDINGS_SHEET", "annotate", "json_report", "junit_report", "text_report"]
 
-_SEVERITY_ORDER = {FAIL: 0, WARN: 1, INFO: 2, PASS: 3}
+_SEVERITY_ORDER = {FAIL: 0, WARN: 1, NOT_CHECKED: 2, INFO: 3, PASS: 4}
 
-#: Fill colours (RGB hex) of the annotated copy, our own: a soft red, amber and blue.
-FILLS = {FAIL: "F2B8B5", WARN: "FCE3A4", INFO: "CFE2F3"}
+#: Fill colours (RGB hex) of the annotated copy, our own: a soft red, amber, violet (a cell to fill in:
+#: the rule could not be checked) and blue.
+FILLS = {FAIL: "F2B8B5", WARN: "FCE3A4", NOT_CHECKED: "DCD0EE", INFO: "CFE2F3"}
 
 #: Name of the sheet the annotated copy lists the findings on.
 FINDINGS_SHEET = "Check findings"
@@ -94,46 +99,80 @@ def _label(severity: str, strict: bool) -> str:
     return "FAIL" if severity == WARN and strict else severity.upper()
 
 
+def _failed(f: Finding, strict: bool) -> bool:
+    """Whether the finding fails the pump: a failure, or under ``strict`` anything that counts as a warning."""
+    return f.severity == FAIL or (strict and f.effect == WARN)
+
+
 # --------------------------------------------------------------------------------------------------
 # Text
 
 
-def _drive_lines(r: CheckResult) -> list[str]:
+def _show(v: float | None, kind: Kind, units: dict[Kind, str]) -> str:
+    if v is None or not math.isfinite(v):
+        return "unknown"
+    return f"{from_si(v, kind, units[kind]):.4g} {_pretty(units[kind])}"
+
+
+def _money(v: float | None, currency: str) -> str:
+    return "unknown" if v is None or not math.isfinite(v) else f"{v:,.0f} {currency}"
+
+
+def _drive_lines(c: Candidate) -> list[str]:
+    r = c.result
     units = DISPLAY_UNITS.get(r.settings.units, DISPLAY_UNITS["metric"])
     d = r.drive
-
-    def show(v: float, kind: Kind) -> str:
-        if not math.isfinite(v):
-            return "unknown"
-        return f"{from_si(v, kind, units[kind]):.4g} {_pretty(units[kind])}"
-
-    return [
-        f"  Drive: peak torque {show(d.peak_torque, TORQUE)}, peak power {show(d.peak_power, POWER)}, "
-        f"RMS power {show(d.rms_power, POWER)}, mean power {show(d.mean_power, POWER)}",
-        f"         mean heat into the oil {show(d.mean_power_loss, POWER)}, shaft energy per cycle "
+    app = r.application
+    lines = [
+        f"  Drive: peak torque {_show(d.peak_torque, TORQUE, units)}, peak power {_show(d.peak_power, POWER, units)}, "
+        f"RMS power {_show(d.rms_power, POWER, units)}, mean power {_show(d.mean_power, POWER, units)}",
+        "         shaft energy per cycle "
         + ("unknown" if not math.isfinite(d.energy_per_cycle) else f"{d.energy_per_cycle / 3.6e6:.4g} kWh")
         + f" (efficiencies: {d.basis})",
+        f"  Heat into the oil, mean: {_show(d.mean_heat, POWER, units)} = pump loss "
+        f"{_show(d.mean_power_loss, POWER, units)} + surplus flow {_show(d.mean_surplus_heat, POWER, units)} "
+        f"({d.surplus_path})",
     ]
+    m = c.motor
+    if m is None:
+        lines.append(f"  Motor: none ({c.motor_note})")
+    else:
+        peak = max(d.peak_power, c.motor_rms)
+        lines.append(f"  Motor: {m.label} {m.standard}, sized on RMS {_show(c.motor_rms, POWER, units)} "
+                     f"{c.motor_rms_basis} and peak {_show(peak, POWER, units)}: {c.motor_note}; "
+                     f"full-load efficiency {m.efficiency:.1%}")
+    price = c.datasheet.price
+    lines.append(f"  Energy: {c.electrical_energy_per_cycle / 3.6e6:.4g} kWh per cycle, "
+                 f"{c.electrical_energy_per_year / 3.6e6:,.0f} kWh per year at the motor's part-load efficiency, "
+                 f"{_money(c.energy_cost_per_year, app.currency)} per year")
+    lines.append(f"  Cost: price {_money(price, app.currency)}, over {app.evaluation_years:g} years "
+                 f"{_money(c.cost_over_period, app.currency)}; "
+                 + (f"rank {c.rank}" if c.rank else "not ranked (fails a rule, or no cost)"))
+    return lines
 
 
-def text_report(results: Sequence[CheckResult], strict: bool = False) -> str:
-    """A readable report: per pump every rule's outcome, margin, worst segment and the cell to fix.
+def text_report(comparison: Comparison, strict: bool = False) -> str:
+    """A readable report, the whole answer: per pump every rule's outcome (``not checked`` ones with their
+    reason and the cell to fill), margin, worst segment and the cell to fix; the drive, the heat into the
+    oil in its parts, the motor (size, loads, which criterion binds), energy, cost and rank.
 
     Ends with a one-line summary per pump and :data:`sheetpump.SAFETY_CAUTION`.
     """
+    results = [c.result for c in comparison.candidates]
     lines: list[str] = []
     if results:
         app = results[0].application
         lines.append(f"sheetpump check: application {app.name!r}" + (f" ({app.file})" if app.file else "")
                      + f", {len(results)} pump(s)" + (", strict (warnings fail)" if strict else ""))
-    for r in results:
+    for cand in comparison.candidates:
+        r = cand.result
         worst = r.worst_margin
         lines.append("")
         lines.append(f"== {r.datasheet.label}" + (f"  ({r.datasheet.file})" if r.datasheet.file else "")
                      + f"  verdict: {r.verdict.upper()}"
                      + (f"  worst margin {worst:+.1%}" if worst is not None else ""))
         for f in _sorted(r.findings):
-            head = f"  {_label(f.severity, strict):<5} {f.rule:<31}"
+            head = f"  {_label(f.severity, strict):<11} {f.rule:<31}"
             parts = []
             if f.measured is not None or f.limit is not None:
                 parts.append(f"{_value_text(f.measured, f.kind, f.unit)} (limit "
@@ -143,7 +182,7 @@ def text_report(results: Sequence[CheckResult], strict: bool = False) -> str:
             if f.segment:
                 parts.append(f.segment)
             lines.append(head + "  ".join(parts))
-            if f.severity in (FAIL, WARN, INFO):
+            if f.severity in (FAIL, WARN, INFO, NOT_CHECKED):
                 lines.append(f"        {f.message}")
                 extra = []
                 if f.count > 1 or f.segments:
@@ -151,17 +190,17 @@ def text_report(results: Sequence[CheckResult], strict: bool = False) -> str:
                                  + (": " + ", ".join(f.segments) + (" …" if f.count > len(f.segments) else "")
                                     if f.segments else ""))
                 if str(f.where) and f.severity != INFO:
-                    extra.append(f"cell: {f.where}")
+                    extra.append(f"{'cell to fill' if f.severity == NOT_CHECKED else 'cell'}: {f.where}")
                 if f.app_where is not None and str(f.app_where):
                     extra.append(f"application: {f.app_where}")
                 if extra:
                     lines.append("        " + "; ".join(extra))
-        lines.extend(_drive_lines(r))
+        lines.extend(_drive_lines(cand))
     lines.append("")
     for r in results:
         c = r.counts()
         lines.append(f"{r.verdict.upper():<5} {r.datasheet.label}: {c[FAIL]} fail, {c[WARN]} warn, "
-                     f"{c[INFO]} info, {c[PASS]} pass")
+                     f"{c[NOT_CHECKED]} not checked, {c[INFO]} info, {c[PASS]} pass")
     lines.append("")
     lines.append(SAFETY_CAUTION)
     return "\n".join(lines) + "\n"
@@ -186,8 +225,10 @@ def _finding_json(f: Finding, strict: bool) -> dict[str, Any]:
     return {
         "rule": f.rule,
         "title": f.title,
+        "verdict": f.severity,
         "severity": f.severity,
-        "failed": f.severity == FAIL or (strict and f.severity == WARN),
+        "matters_for_the_duty": f.matters,
+        "failed": _failed(f, strict),
         "message": f.message,
         "measured": _quantity(f.measured, f),
         "limit": _quantity(f.limit, f),
@@ -211,6 +252,7 @@ _DRIVE_COLUMNS: tuple[tuple[str, str, Kind | None], ...] = (
     ("input_power", "input_power", POWER),
     ("hydraulic_power", "hydraulic_power", POWER),
     ("power_loss", "power_loss", POWER),
+    ("surplus_heat", "surplus_heat", POWER),
 )
 
 
@@ -219,10 +261,11 @@ def _drive_json(r: CheckResult, max_segments: int) -> dict[str, Any]:
     d = r.drive
     out: dict[str, Any] = {"basis": d.basis, "cycle": {}}
     for name, kind in (("peak_torque", TORQUE), ("peak_power", POWER), ("rms_power", POWER),
-                       ("mean_power", POWER), ("mean_power_loss", POWER)):
+                       ("mean_power", POWER), ("mean_power_loss", POWER), ("mean_surplus_heat", POWER),
+                       ("mean_heat", POWER)):
         v = getattr(d, name)
-        out["cycle"][name] = {"value": _num(float(from_si(v, kind, units[kind]))) if math.isfinite(v)
-                              else None, "unit": units[kind], "si": _num(v)}
+        out["cycle"][name] = _power(v, kind, units)
+    out["cycle"]["surplus_path"] = d.surplus_path
     out["cycle"]["energy_per_cycle"] = {"value": _num(d.energy_per_cycle / 3.6e6), "unit": "kWh",
                                         "si": _num(d.energy_per_cycle)}
     n = len(d.duration)
@@ -243,20 +286,55 @@ def _drive_json(r: CheckResult, max_segments: int) -> dict[str, Any]:
     return out
 
 
-def json_report(results: Sequence[CheckResult], strict: bool = False, max_segments: int = 10000) -> str:
-    """Machine-readable findings per pump and rule, plus the per-segment drive figures.
+def _power(v: float, kind: Kind, units: dict[Kind, str]) -> dict[str, Any]:
+    return {"value": _num(float(from_si(v, kind, units[kind]))) if math.isfinite(v) else None,
+            "unit": units[kind], "si": _num(v)}
+
+
+def _motor_json(c: Candidate) -> dict[str, Any]:
+    units = DISPLAY_UNITS.get(c.result.settings.units, DISPLAY_UNITS["metric"])
+    app = c.result.application
+    m = c.motor
+    out: dict[str, Any] = {"motor": None, "note": c.motor_note}
+    if m is not None:
+        out["motor"] = {
+            "label": m.label, "standard": m.standard, "rated_power": _power(m.rated_power, POWER, units),
+            "rms_load": _power(c.motor_rms, POWER, units), "rms_over": c.motor_rms_basis,
+            "peak_load": _power(max(c.result.drive.peak_power, c.motor_rms), POWER, units),
+            "rms_share_of_rating": _num(m.rms_load), "peak_share_of_rating": _num(m.peak_load),
+            "overload_factor": m.overload_factor, "service_factor": m.service_factor, "binding": m.binding,
+            "full_load_efficiency": _num(m.efficiency),
+        }
+    out["energy"] = {"per_cycle_kwh": _num(c.electrical_energy_per_cycle / 3.6e6),
+                     "per_year_kwh": _num(c.electrical_energy_per_year / 3.6e6),
+                     "basis": "the motor's part-load efficiency"}
+    out["cost"] = {"currency": app.currency, "price": c.datasheet.price,
+                   "energy_per_year": _num(c.energy_cost_per_year),
+                   "over_period": _num(c.cost_over_period) if c.cost_over_period is not None else None,
+                   "years": app.evaluation_years}
+    out["rank"] = c.rank
+    return out
+
+
+def json_report(comparison: Comparison, strict: bool = False, max_segments: int = 10000) -> str:
+    """Machine-readable findings per pump and rule (``"verdict"`` of each: pass, warn, fail, info or
+    not checked), the per-segment drive figures, the heat into the oil in its parts, the motor, energy,
+    cost and rank.
 
     A long measured series lists its drive figures only up to ``max_segments`` elements (the count
     of the rest is given as ``segments_omitted``).
     """
     pumps = []
-    for r in results:
+    results = [c.result for c in comparison.candidates]
+    for c in comparison.candidates:
+        r = c.result
         ds = r.datasheet
         pumps.append({
             "pump": ds.label, "supplier": ds.supplier, "model": ds.model, "file": ds.file or None,
             "verdict": r.verdict, "worst_margin": _num(r.worst_margin), "counts": r.counts(),
             "findings": [_finding_json(f, strict) for f in r.findings],
             "drive": _drive_json(r, max_segments),
+            **_motor_json(c),
         })
     app = results[0].application if results else None
     doc = {
@@ -279,33 +357,39 @@ def junit_report(results: Sequence[CheckResult], strict: bool = False) -> str:
     """JUnit XML: one test suite per pump, one test case per rule; failures as ``<failure>``.
 
     A warning is a failure under ``strict``, otherwise a passing case with the warning in
-    ``<system-out>``.
+    ``<system-out>``. A rule not checked is a skipped case with the reason and the cell to fill (a
+    failure under ``strict`` when it matters for the duty).
     """
     root = ET.Element("testsuites", name="sheetpump check")
-    total = total_fail = 0
+    total = total_fail = total_skipped = 0
     for r in results:
         suite = ET.SubElement(root, "testsuite", name=r.datasheet.label)
-        failed = 0
+        failed = skipped = 0
         for f in r.findings:
             case = ET.SubElement(suite, "testcase", name=f.rule,
                                  classname=f"sheetpump.check.{r.datasheet.label}")
             body = f.message + (f"\ncell: {f.where}" if str(f.where) else "") + (
                 f"\napplication: {f.app_where}" if f.app_where is not None and str(f.app_where) else "")
-            if f.severity == FAIL or (strict and f.severity == WARN):
+            if _failed(f, strict):
                 failed += 1
                 el = ET.SubElement(case, "failure", message=f.message[:200], type=f.severity)
                 el.text = body
+            elif f.severity == NOT_CHECKED:
+                skipped += 1
+                ET.SubElement(case, "skipped", message=f.message[:200]).text = body
             elif f.severity in (WARN, INFO):
                 ET.SubElement(case, "system-out").text = f"{f.severity}: {body}"
         suite.set("tests", str(len(r.findings)))
         suite.set("failures", str(failed))
         suite.set("errors", "0")
-        suite.set("skipped", "0")
+        suite.set("skipped", str(skipped))
         total += len(r.findings)
         total_fail += failed
+        total_skipped += skipped
     root.set("tests", str(total))
     root.set("failures", str(total_fail))
     root.set("errors", "0")
+    root.set("skipped", str(total_skipped))
     ET.indent(root)
     return '<?xml version="1.0" encoding="UTF-8"?>\n' + ET.tostring(root, encoding="unicode") + "\n"
 

@@ -97,6 +97,7 @@ def _resample(candidate: Candidate) -> tuple[dict[str, np.ndarray], list[str], s
         "temperature": duty.temperature, "required": duty.flow, "delivered": fig.flow,
         "vol_eff": fig.volumetric_efficiency, "total_eff": fig.total_efficiency, "torque": fig.torque,
         "input_power": fig.input_power, "viscosity": fig.viscosity,
+        "surplus": fig.surplus_heat if fig.surplus_heat is not None else np.zeros(len(duty)),
     }
     n = len(duty)
     if n <= MAX_DUTY_ROWS:
@@ -138,6 +139,9 @@ _DUTY_COLUMNS: tuple[tuple[str, str, Kind | None, str | None, bool], ...] = (
     ("loss", "power loss [{}]", POWER, None, True),
     ("flow_margin", "flow margin", None, "spct", True),
     ("energy", "energy [Wh]", None, None, True),
+    # heat into the oil: the pump's loss plus the surplus flow at the pressure it crosses
+    ("surplus", "surplus flow heat [{}]", POWER, None, False),
+    ("heat", "heat into the oil [{}]", POWER, None, True),
 )
 _DUTY_COL = {key: i for i, (key, *_rest) in enumerate(_DUTY_COLUMNS)}
 _DUTY_HEADER_ROW = 3
@@ -167,6 +171,7 @@ def _duty_sheet(book: Any, name: str, candidate: Candidate, units: str, paper: s
     with np.errstate(divide="ignore", invalid="ignore"):
         shown["flow_margin"] = np.where(shown["required"] > 0, shown["delivered"] / shown["required"] - 1.0, np.nan)
     shown["energy"] = shown["input_power"] * power_si_per_display * shown["duration"] * wh_per_j
+    shown["heat"] = shown["loss"] + shown["surplus"]
     headers, widths, formats = [], [], []
     for key, head, kind, num, _formula in _DUTY_COLUMNS:
         text = head.format(u[kind]) if kind is not None else head
@@ -208,6 +213,8 @@ def _duty_sheet(book: Any, name: str, candidate: Candidate, units: str, paper: s
             write_value(sheet, r, _DUTY_COL["flow_margin"], _NO_FLOW, cell_format(book, align="right"))
         write_formula(sheet, r, _DUTY_COL["energy"], f"={pin}*{t}*{power_si_per_display * wh_per_j!r}",
                       float(shown["energy"][i]), formats[_DUTY_COL["energy"]])
+        write_formula(sheet, r, _DUTY_COL["heat"], f"={cell(r, 'loss')}+{cell(r, 'surplus')}",
+                      float(shown["heat"][i]), formats[_DUTY_COL["heat"]])
         if "pressure_max" in cols:
             write_value(sheet, r, len(_DUTY_COLUMNS), float(shown["pressure_max"][i]), formats[-1])
     last = first + len(labels) - 1
@@ -229,6 +236,12 @@ def _duty_sheet(book: Any, name: str, candidate: Candidate, units: str, paper: s
          float(np.sum(shown["loss"] * d) / d.sum())),
         ("energy", "shaft energy per cycle [Wh]", "energy", f"=SUM({col('energy')})",
          float(np.sum(shown["energy"]))),
+        ("mean_surplus", f"mean surplus flow heat [{u[POWER]}]", "surplus",
+         f"=SUMPRODUCT({col('surplus')},{col('duration')})/SUM({col('duration')})",
+         float(np.sum(shown["surplus"] * d) / d.sum())),
+        ("mean_heat", f"mean heat into the oil [{u[POWER]}]", "heat",
+         f"=SUMPRODUCT({col('heat')},{col('duration')})/SUM({col('duration')})",
+         float(np.sum(shown["heat"] * d) / d.sum())),
     ]
     refs: dict[str, str] = {}
     if note:
@@ -238,7 +251,9 @@ def _duty_sheet(book: Any, name: str, candidate: Candidate, units: str, paper: s
                  "rms_power": _show(fig.rms_power, POWER, units),
                  "peak_torque": _show(fig.peak_torque, TORQUE, units),
                  "mean_loss": _show(fig.mean_power_loss, POWER, units),
-                 "energy": fig.energy_per_cycle * wh_per_j}
+                 "energy": fig.energy_per_cycle * wh_per_j,
+                 "mean_surplus": _show(fig.mean_surplus_heat, POWER, units),
+                 "mean_heat": _show(fig.mean_heat, POWER, units)}
         sheet.write_string(total_row - 1, 0, "over every sample (not the bins above):", f["note"])
     for k, (key, text, c_key, formula, value) in enumerate(totals):
         r = total_row + k
@@ -354,21 +369,26 @@ def _summary_rows(comp: Comparison, units: str, duty_refs: list[dict[str, str]],
         ("rms_power", f"RMS input power [{u(POWER)}]", POWER, "rms_power"),
         ("peak_torque", f"peak torque [{u(TORQUE)}]", TORQUE, "peak_torque"),
         ("mean_loss", f"pump power loss, mean [{u(POWER)}]", POWER, "mean_power_loss"),
+        ("mean_surplus", f"surplus flow over the relief valve or a throttle, mean [{u(POWER)}]", POWER,
+         "mean_surplus_heat"),
+        ("mean_heat", f"heat into the oil, mean [{u(POWER)}] (pump loss + surplus)", POWER, "mean_heat"),
     ):
         values = [_show(getattr(c.result.drive, attr), kind, units) for c in cands]
         # a resampled series has no link: the duty sheet's bins are not the whole truth
         formulas = [f"={refs[key]}" if key in refs else None for refs in duty_refs]
         rows.append(_Row(label, values, "num", formulas))
-    line(f"surplus flow over the relief valve or a throttle, mean [{u(POWER)}]",
-         [_show(c.throttling_heat, POWER, units) for c in cands], "num")
-    line(f"heat into the oil, mean [{u(POWER)}]",
-         [_show(c.heat_to_oil + c.throttling_heat, POWER, units) for c in cands], "num")
+    line("surplus flow crosses", [c.result.drive.surplus_path for c in cands], "wrap")
     line("motor chosen", [c.motor.label if c.motor else "none" for c in cands],
          [None if c.motor else "fail" for c in cands])
-    # (the motor's binding criterion, when the comparison gives it, is one more line() here)
+    line(f"motor sized on: RMS load [{u(POWER)}]", [_show(c.motor_rms, POWER, units) for c in cands], "num")
+    line("RMS load taken", [c.motor_rms_basis for c in cands], "wrap")
+    line(f"motor sized on: peak load [{u(POWER)}]",
+         [_show(max(c.result.drive.peak_power, c.motor_rms), POWER, units) for c in cands], "num")
+    line("criterion that binds the motor size", [c.motor.binding if c.motor else "" for c in cands], "wrap")
     line("motor load (of its rating)", [c.motor_note for c in cands], "wrap")
     line("motor full-load efficiency", [c.motor.efficiency if c.motor else None for c in cands], "pct")
-    line("electrical energy per cycle [Wh]", [c.electrical_energy_per_cycle / 3600.0 for c in cands], "num")
+    line("electrical energy per cycle [Wh] (at the motor's part-load efficiency)",
+         [c.electrical_energy_per_cycle / 3600.0 for c in cands], "num")
     line("electrical energy per year [kWh]", [c.electrical_energy_per_year / 3.6e6 for c in cands], "int")
     line(f"energy cost per year [{app.currency}]", [c.energy_cost_per_year for c in cands], "int")
     line(f"cost over {app.evaluation_years:g} years [{app.currency}]", [c.cost_over_period for c in cands], "int")
@@ -408,7 +428,9 @@ def _summary(book: Any, comp: Comparison, units: str, duty_refs: list[dict[str, 
     legend = (("pass", "pass: inside the rating, with the margin asked"),
               ("warn", "warn: allowed, but look (short-term limit, extrapolation)"),
               ("fail", "fail: outside a rating"),
-              ("info", "info: a figure without a verdict"))
+              ("info", "info: a figure without a verdict"),
+              ("not checked", "not checked: the datasheet or application does not state what the rule needs; "
+               "fill the cell named on Findings"))
     # the entries across the candidates' columns, on as many lines as they need
     legend_rows = -(-len(legend) // n)
     for r in range(legend_rows):
@@ -751,7 +773,7 @@ def _assumptions(book: Any, comp: Comparison, inputs: Sequence[str | os.PathLike
     f = book.styles
     sheet = book.add_worksheet("Assumptions")
     app, oil = comp.application, comp.application.oil
-    overload = drive.IEC_OVERLOAD_FACTOR if app.motor_standard == "IEC" else drive.NEMA_OVERLOAD_FACTOR
+    settings = comp.settings
     # label, value, number format (settings entered as a share show as a percentage)
     rows: list[tuple[str, Any, str | None]] = [
         ("application", app.name, None),
@@ -773,15 +795,24 @@ def _assumptions(book: Any, comp: Comparison, inputs: Sequence[str | os.PathLike
         ("oil density at 15 degC [kg/m^3]", oil.density_15, "#,##0.#"),
         ("viscosity against temperature", "Walther relation, ASTM D341", None),
         ("motor standard", app.motor_standard, None),
-        ("motor sizing rule", "smallest standard rating >= RMS input power and rating x overload factor >= peak",
-         None),
-        ("overload factor", f"{overload:g} x rating for short peaks: IEC 60034-1 occasional excess torque "
-         "(60 % for 15 s), from memory", None),
+        ("motor sizing rule", "smallest standard rating with rating x service factor >= RMS input power (over "
+         "the cycle, or over the worst thermal window of a longer one) and rating x overload factor >= peak, "
+         "each size tried in turn; how long a peak lasts does not enter (heating follows the RMS, "
+         "IEC 60034-1 S6; its 60 % for 15 s is a stall test)", None),
+        ("overload factor", f"{settings.overload_factor:g} x rating: the peak torque the motor carries without "
+         "stalling, IEC 60034-1 momentary excess torque (60 %), from memory", None),
+        ("service factor", f"{settings.service_factor:g} (1: sized to the nameplate rating; NEMA's 1.15 kept "
+         "as a reserve, common practice)", None),
+        ("motor thermal time [min]", settings.thermal_window / 60.0, "#,##0.#"),
         ("motor series", "IEC 60072-1 rated outputs (kW)" if app.motor_standard == "IEC"
          else "NEMA MG 1 horsepower ratings", None),
         ("motor efficiency table", "IEC 60034-30-1 IE3, 4-pole 50 Hz (full load)" if app.motor_standard == "IEC"
          else "NEMA MG 1 Table 12-12, NEMA Premium, 4-pole enclosed (full load)", None),
-        ("electrical energy", "shaft energy / full-load motor efficiency (part-load efficiency not modelled)", None),
+        ("electrical energy", "shaft energy + motor losses at the part load: a constant third of the "
+         "full-load losses plus two thirds times the load squared (efficiency at half load = full-load "
+         "efficiency, from memory)", None),
+        ("heat into the oil", "pump power loss + surplus flow x the pressure it crosses (see the Summary's "
+         "'surplus flow crosses')", None),
         ("settings not given (defaults used)", ", ".join(app.defaulted) or "none", None),
         ("sheetpump version", __version__, None),
     ]

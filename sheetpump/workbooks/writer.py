@@ -36,7 +36,7 @@ __all__ = [
     "open_book", "page_setup", "text_lines", "text_width", "write_formula", "write_header", "write_value",
 ]
 
-#: Our own colours: input cells, headers, and the three verdicts.
+#: Our own colours: input cells, headers, and the verdicts (with info and not checked).
 STYLES: dict[str, dict[str, Any]] = {
     "title": {"bold": True, "font_size": 14},
     "header": {"bold": True, "bg_color": "#DCE3EA", "bottom": 1, "text_wrap": True, "valign": "top"},
@@ -45,6 +45,7 @@ STYLES: dict[str, dict[str, Any]] = {
     "warn": {"bg_color": "#FBE7B5", "font_color": "#6B4A00"},
     "fail": {"bg_color": "#F6CFCB", "font_color": "#7A1B12", "bold": True},
     "info": {"bg_color": "#E4ECF7", "font_color": "#22406B"},
+    "not checked": {"bg_color": "#E6DDF3", "font_color": "#4A2C7A", "italic": True},
     "note": {"italic": True, "font_color": "#555555", "text_wrap": True, "valign": "top"},
     "caution": {"bold": True, "font_color": "#7A1B12", "text_wrap": True, "valign": "top"},
     "wrap": {"text_wrap": True, "valign": "top"},
