@@ -938,14 +938,22 @@ def _drive(ctx: _Context, est: performance.Estimate, nu: np.ndarray) -> DriveFig
         rms = float(drive.rms_power(p, t))
         mean = float(drive.mean_power(p, t))
         mean_loss = float(np.dot(lo, t) / np.sum(t))
-    # The flow a fixed pump delivers beyond what the machine takes goes to tank over the relief valve
-    # (at its setting) or a throttle (at its stated pressure), and never at less than the pump's outlet
-    # pressure: all of it becomes heat in the oil.
+    # The flow a fixed pump delivers beyond what the machine takes goes to tank, and all of it becomes heat
+    # in the oil. It leaves the pump at the pump's outlet pressure, which is the duty's pressure: the ratings
+    # and the input power are taken there too, so the heat can never exceed the power drawn. Where the
+    # surplus goes over the relief valve, the pump runs at the relief setting and the duty says so; where it
+    # runs lower, the surplus returns through an unloading or open-centre path at that pressure. A stated
+    # throttle or bypass pressure is taken where the duty's pressure is below it.
     app = ctx.app
-    crossing = app.surplus_pressure if app.surplus_pressure is not None else app.relief_setting
-    path = (f"over a throttle at {_fmt(ctx, PRESSURE, crossing)}" if app.surplus_pressure is not None
-            else f"over the relief valve at {_fmt(ctx, PRESSURE, crossing)}")
-    surplus = np.clip(np.nan_to_num(est.flow) - duty.flow, 0.0, None) * np.maximum(duty.pressure, crossing)
+    if app.surplus_pressure is not None:
+        crossing = np.maximum(duty.pressure, app.surplus_pressure)
+        path = (f"over a throttle at {_fmt(ctx, PRESSURE, app.surplus_pressure)} (at the pump's pressure where "
+                "the duty's is higher)")
+    else:
+        crossing = duty.pressure
+        path = (f"to tank at each segment's pump pressure; over the relief valve where the duty runs at its "
+                f"setting of {_fmt(ctx, PRESSURE, app.relief_setting)}")
+    surplus = np.clip(np.nan_to_num(est.flow) - duty.flow, 0.0, None) * crossing
     mean_surplus = float(np.dot(surplus, duty.duration) / ctx.cycle) if ctx.cycle > 0 else math.nan
     return DriveFigures(
         duty.duration, nu, est.volumetric_efficiency, est.total_efficiency, est.flow, est.torque, power,

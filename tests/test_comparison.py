@@ -220,20 +220,25 @@ def test_long_series_summary_keeps_the_checkers_peak_and_rms(tmp_path):
     assert not any(sheet for sheet, cells in _xml_formula_cells(path).items() if sheet == "Summary" and cells)
 
 
-def test_heat_into_the_oil_is_pump_loss_plus_the_surplus_at_the_relief_setting():
+def test_heat_into_the_oil_is_pump_loss_plus_the_surplus_at_the_pump_pressure():
     # 28 cm³/rev x 25 rev/s x 0.94 = 39.48 L/min delivered; the press takes 35, 20 and 10 L/min. The
-    # surplus goes to tank over the relief valve, at its setting of 220 bar (energy balance, common practice).
+    # surplus goes to tank at the pump's outlet pressure, all of it as heat (energy balance, common practice).
     app = _application()
     cand = compare([_pump("A-28", 28e-6, 0.94, 0.85, 500.0)], app).candidates[0]
     q = 28e-6 * 25.0 * 0.94
     need = np.array([35, 20, 10]) / 60000
     p, t = np.array([120e5, 200e5, 240e5]), np.array([20.0, 10.0, 5.0])
-    # never below the pump's outlet pressure: the hold at 240 bar is above the 220 bar setting
-    surplus = np.sum((q - need) * np.maximum(p, 220e5) * t) / t.sum()
+    surplus = np.sum((q - need) * p * t) / t.sum()
     assert cand.surplus_heat == pytest.approx(surplus, rel=1e-12)
     loss = np.sum((p * q / 0.85 - p * q) * t) / t.sum()
     assert cand.heat_to_oil == pytest.approx(loss + surplus, rel=1e-12)
-    assert "relief valve at 220 bar" in cand.result.drive.surplus_path
+    assert "pump pressure" in cand.result.drive.surplus_path
+    # Energy balance: heat into the oil = power drawn - useful power (p x required flow), never more than
+    # the power drawn (first law; common practice)
+    drawn = np.sum(p * q / 0.85 * t) / t.sum()
+    useful = np.sum(p * need * t) / t.sum()
+    assert cand.heat_to_oil == pytest.approx(drawn - useful, rel=1e-12)
+    assert cand.heat_to_oil < drawn
     # a throttle at a stated 150 bar: the surplus crosses there (and at the outlet pressure above it)
     throttled = compare([_pump("A-28", 28e-6, 0.94, 0.85, 500.0)],
                         _application(surplus_pressure=150e5)).candidates[0]
