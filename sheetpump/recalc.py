@@ -198,7 +198,7 @@ def _cell_function(calc: Calculation) -> Any:
             result = calc.cell(*values)
         except Exception as exc:  # cell() should never raise; if it does, say so in the cell's report
             return _failed(f"{calc.name} failed with {type(exc).__name__}: {exc}")
-        if isinstance(result, list):
+        if isinstance(result, (list, np.ndarray)):
             return np.asarray(result, dtype=object).view(Array)
         return result
 
