@@ -12,7 +12,10 @@ Three things the engine does quietly are made loud:
   reported with its sheet, cell and function name;
 * a function that fails while it runs is logged by the engine and its cell left out of the solution:
   every formula cell is checked for a result and a missing one is reported with the reason;
-* a circular reference is cut by the engine (never looped on) and reported with its cells.
+* a circular reference is cut by the engine (never looped on) and reported with its cells;
+* a formula in an ordinary cell whose result is a range would keep only its first element: it spills
+  instead, as a dynamic array does in Excel 365 (see :func:`recalculate`), or, when its range is not
+  empty, shows a ``#SPILL!`` text naming the cell in the way (:attr:`Recalculation.blocked`).
 
 Writing keeps the workbook as it is: the computed values are put into the ``<v>`` element beside each
 ``<f>`` of the sheet XML (and into the cells an array formula spills over), every other part of the file
@@ -37,6 +40,7 @@ import logging
 import math
 import os
 import re
+import tempfile
 import zipfile
 from collections.abc import Iterable, Iterator
 from dataclasses import dataclass, field
@@ -557,10 +561,15 @@ def recalculate(path: str | os.PathLike[str], *, engine: str = "auto") -> Recalc
         every formula is in its subset and with the ``formulas`` engine otherwise; ``"formulas"``
         always uses the engine (the reference the fast path is tested against).
 
+    A formula in an ordinary cell whose result is a range spills into the cells below and to the
+    right, which must be empty; formulas reading those cells see the spilled values (passes of the
+    engine until no spill changes). A spill whose range is not empty is listed in ``blocked``.
+
     Returns
     -------
     Recalculation
-        Computed and stored values of the formula cells, and the problems found (unsupported
+        Computed and stored values of the formula cells (and of the cells spilled into), the spills
+        and the spills blocked, and the problems found (unsupported
         functions, failed cells, circular references). Problems do not raise here; see
         :meth:`Recalculation.raise_problems`.
 
@@ -609,7 +618,7 @@ def recalculate(path: str | os.PathLike[str], *, engine: str = "auto") -> Recalc
         if not _settle_spills(sheets, index, shapes, spills, blocked):
             break
     else:
-        first = next(iter(spills or blocked))
+        first = next(iter({**spills, **blocked}), (sheets[0].name, "A1"))
         result.problems.append(Problem(*first, f"the spilled ranges did not settle after {_SPILL_PASSES} "
                                        "passes (spills that feed each other)"))
         return result
@@ -672,8 +681,6 @@ def _engine_pass(path: Path, spills: dict[Cell, str], blocked: dict[Cell, Proble
     whose spill is blocked as ``NA()`` (so formulas that use them show an error, not a stale value),
     in a temporary copy of the workbook with the same file name (the engine's node ids contain it).
     """
-    import tempfile
-
     import formulas
 
     shapes: dict[str, tuple[int, ...]] = {}
