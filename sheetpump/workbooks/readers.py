@@ -264,7 +264,8 @@ class _Fields:
             if key in self.cells:
                 continue
             target = book.defined(f"{prefix}.{key}")
-            if not target or target[0] != sheet.title or target[1] != value_letter or target[2] <= header:
+            if (not target or target[0] != sheet.title or target[1] != value_letter
+                    or not header < target[2] <= sheet.max_row):
                 continue
             value_coord = f"{value_letter}{target[2]}"
             key_cell = sheet.cell(row=target[2], column=key_col).value
