@@ -106,6 +106,12 @@ def test_a_point_above_the_performance_header_is_refused(tmp_path, capsys):
     assert "Performance!A4" in line
 
 
+def test_a_note_with_one_number_above_the_header_is_no_segment(tmp_path):
+    app = edited(APP, tmp_path / "app.xlsx", "Duty", {"A4": "revision 3"})
+    app = edited(app, tmp_path / "app2.xlsx", "Duty", {"B4": 2026})
+    assert len(read_application(app).duty.duration) == 7
+
+
 def test_the_demo_top_rows_are_no_segments():
     assert len(read_application(APP).duty.duration) == 7  # the demo's seven segments, none refused
 

@@ -496,15 +496,20 @@ def _read_table(book: _Book, sheet: Any, columns: Sequence[Column]) -> tuple[
 
 
 def _nothing_above(book: _Book, sheet: Any, header: int, width: int) -> None:
-    """Refuse a number above a table's header row: a row of the table there would be dropped unseen."""
+    """Refuse a row of numbers above a table's header row: it would be a row of the table dropped unseen.
+
+    Two numbers make a row (every table needs at least two columns of numbers); a note with one number
+    above the header is left alone.
+    """
     for r, row in enumerate(sheet.iter_rows(min_row=1, max_row=header - 1, max_col=max(width, 1),
                                             values_only=True), 1):
-        for i, value in enumerate(row):
-            if (isinstance(value, (int, float, _dt.date, _dt.time, _dt.timedelta))
-                    or (isinstance(value, str) and _NUMBER.match(value))):
-                raise InputError(f"row {r} holds a value above the header row (row {header})",
-                                 book.where(sheet, f"{column_letter(i)}{r}"),
-                                 "move the header row above the first row of the table")
+        numbers = [i for i, value in enumerate(row)
+                   if isinstance(value, (int, float, _dt.date, _dt.time, _dt.timedelta))
+                   or (isinstance(value, str) and _NUMBER.match(value))]
+        if len(numbers) >= 2:
+            raise InputError(f"row {r} holds values above the header row (row {header})",
+                             book.where(sheet, f"{column_letter(numbers[0])}{r}"),
+                             "move the header row above the first row of the table")
 
 
 def _span(letters: dict[str, str]) -> tuple[str, str]:
