@@ -12,7 +12,10 @@ A formula's cached value is read; a formula without one (a file written by a scr
 :mod:`sheetpump.recalc` when available, and refused otherwise: it is never read as empty.
 
 Fields are found by the words in the ``field`` column (rows may be moved or sorted), falling back to the
-template's defined names (``pump.<field>``, ``machine.<field>``) for a field whose row lost its word.
+template's defined names (``pump.<field>``, ``machine.<field>``) for a field whose row lost its word. A
+defined name never overrules the field column: one pointing at another field's row (left behind by a
+script that deleted a row) or broken by a deleted row is ignored, and a field whose row is gone reads as
+empty (refused, naming the field, where the field is required).
 """
 
 from __future__ import annotations
@@ -57,9 +60,14 @@ from .templates import (
 __all__ = ["read_application", "read_datasheet"]
 
 _MAX_HEADER_SCAN = 60  # rows searched for a header row
-_MAX_ROWS = 20_000  # rows read below a header: a field sheet or a table of segments is far smaller
+_MAX_ROWS = 20_000  # rows read below the header of a field sheet: one row per field is far smaller
+# Rows below the header of a table (segments, performance points). Every row is read, none is dropped;
+# the bound is only against hostile sizes. A long measured log belongs in a series file (duty_series).
+MAX_TABLE_ROWS = 100_000
 _EXCEL_ERRORS = ("#NULL!", "#DIV/0!", "#VALUE!", "#REF!", "#NAME?", "#NUM!", "#N/A", "#GETTING_DATA",
                  "#SPILL!", "#CALC!")
+_CELL = re.compile(r"^\$?([A-Za-z]{1,3})\$?([1-9]\d{0,6})$")  # one cell: B11, $B$11
+_NUMBER = re.compile(r"^\s*([+-]?(?:\d+\.?\d*|\.\d+)(?:[eE][+-]?\d+)?)\s*(.*?)\s*$")
 _ISO4406 = re.compile(r"^(?:(\d{1,2}|-)\s*/\s*)?(\d{1,2})\s*/\s*(\d{1,2})$")
 _ROTATION_WORDS = {
     "clockwise": "clockwise", "cw": "clockwise", "right": "clockwise", "right-hand": "clockwise",
@@ -101,9 +109,15 @@ class _Book:
 
     def merged(self, sheet: Any, coord: str) -> bool:
         ranges = self._merged.get(sheet.title)
-        if ranges is None:
-            ranges = self._merged[sheet.title] = list(sheet.merged_cells.ranges)
-        return any(coord in r for r in ranges)
+        if ranges is None:  # (first row, last row, first column, last column): compared as numbers
+            ranges = self._merged[sheet.title] = [(r.min_row, r.max_row, r.min_col, r.max_col)
+                                                  for r in sheet.merged_cells.ranges]
+        if not ranges:
+            return False
+        from openpyxl.utils.cell import coordinate_to_tuple
+
+        row, col = coordinate_to_tuple(coord.replace("$", ""))
+        return any(r0 <= row <= r1 and c0 <= col <= c1 for r0, r1, c0, c1 in ranges)
 
     def value(self, sheet: Any, coord: str, field: str | None = None, *, value_cell: bool = True) -> Any:
         """The value of a cell: cached value of a formula, evaluated where missing, never a silent blank."""
@@ -157,23 +171,27 @@ class _Book:
                          "calculating it)", self.where(sheet, coord, field),
                          "open and save the workbook in a spreadsheet program, or enter the value")
 
-    def defined(self, name: str) -> tuple[str, str] | None:
-        """``(sheet, cell)`` a workbook-level defined name points to, if it is one cell."""
+    def defined(self, name: str) -> tuple[str, str, int] | None:
+        """``(sheet, column letters, row)`` of the one cell a workbook-level defined name points to.
+
+        ``None`` for anything else: no such name, a range, or a name a spreadsheet program broke when
+        it deleted the row it pointed to (``#REF!``, ``'Pump'!#REF!``), which is no error of the user's.
+        """
         names = self.values.defined_names
         entry = names.get(name) if hasattr(names, "get") else None
         if entry is None:
             return None
         try:
             destinations = list(entry.destinations)
-        except (AttributeError, TypeError, ValueError):
+        except Exception:  # openpyxl's tokenizer fails on some broken references: a broken name
             return None
         if len(destinations) != 1:
             return None
         title, coord = destinations[0]
-        coord = coord.replace("$", "")
-        if ":" in coord:
+        match = _CELL.match(str(coord))
+        if not match:
             return None
-        return title, coord
+        return title, match.group(1).upper(), int(match.group(2))
 
 
 def _header_row(book: _Book, sheet: Any, test: Callable[[list[Any]], bool], what: str) -> tuple[int, list[Any]]:
@@ -208,7 +226,11 @@ class _Fields:
         self.cells: dict[str, tuple[str, str]] = {}
         self.notes: dict[str, str] = {}
         seen: dict[str, str] = {}
-        last = min(sheet.max_row, header + _MAX_ROWS)
+        if sheet.max_row - header > _MAX_ROWS:  # far more than the fields: refused, never cut unseen
+            raise InputError(f"the sheet reaches row {sheet.max_row}: more than {_MAX_ROWS:,} rows below "
+                             "its header are not read", Where(book.file, sheet.title),
+                             "delete what lies below the fields")
+        last = sheet.max_row
         for r, row in enumerate(sheet.iter_rows(min_row=header + 1, max_row=last,
                                                 max_col=max(key_col, value_col, unit_col), values_only=True),
                                 header + 1):
@@ -232,14 +254,26 @@ class _Fields:
             seen[key] = key_coord
             self.cells[key] = (value_coord, unit_coord)
         self.unit_col = unit_col
+        # A field whose row lost its word in the field column is found by its defined name, but only
+        # where that name still points at such a row: a name left pointing at a row that now holds
+        # another field (a row deleted by a script), a section title or a note is ignored, and so is a
+        # name a spreadsheet program broke when it deleted the field's row. Column A decides.
         prefix = NAME_PREFIX[sheet_name]
+        value_letter = column_letter(value_col - 1)
+        taken = {value_coord for value_coord, _ in self.cells.values()}
         for key in self.fields:
             if key in self.cells:
                 continue
             target = book.defined(f"{prefix}.{key}")
-            if target and target[0] == sheet.title:
-                row_number = int(re.sub(r"^[A-Z]+", "", target[1]))
-                self.cells[key] = (target[1], f"{column_letter(unit_col - 1)}{row_number}")
+            if (not target or target[0] != sheet.title or target[1] != value_letter
+                    or not header < target[2] <= sheet.max_row):
+                continue
+            value_coord = f"{value_letter}{target[2]}"
+            key_cell = sheet.cell(row=target[2], column=key_col).value
+            if value_coord in taken or (key_cell is not None and str(key_cell).strip()):
+                continue
+            taken.add(value_coord)
+            self.cells[key] = (value_coord, f"{column_letter(unit_col - 1)}{target[2]}")
 
     def where(self, key: str) -> Where:
         if key in self.cells:
@@ -261,8 +295,10 @@ class _Fields:
         where = self.where(key)
         if value is None:
             if field.required:
+                what = field.help.rstrip('.').lower()
                 raise InputError("required value is missing", where,
-                                 f"enter the {field.help.rstrip('.').lower()}")
+                                 f"enter the {what}" if key in self.cells else
+                                 f"the sheet has no row {key!r}: add it (field column) with the {what}")
             return None
         unit_where = Where(where.file, where.sheet, self.cells[key][1], key)
         si = convert(field, value, unit, where, unit_where)
@@ -345,6 +381,7 @@ def convert(field: Field, value: Any, unit: Any, where: Where, unit_where: Where
 
 _NO_UNIT = ("", "-", "1")
 _PERCENT = ("%", "percent", "pct")
+_CURRENCY = re.compile(r"[A-Za-z]{1,5}|[A-Za-z]{0,3}[$€£¥₹₩₽₺]")  # ISO 4217 code, a sign, or both (US$)
 
 
 def _unitless(field: Field, unit_text: str, unit_where: Where) -> None:
@@ -354,9 +391,10 @@ def _unitless(field: Field, unit_text: str, unit_where: Where) -> None:
         return
     if field.label == "currency":
         measures = physical_unit(text)
-        if measures is None:
-            return  # a currency code or sign: EUR, USD, €
-        raise InputError(f"unit {text!r} is {measures}; a price takes a currency", unit_where,
+        if measures is None and _CURRENCY.fullmatch(text):
+            return  # a currency code or sign: EUR, USD, €, US$
+        what = f"is {measures}" if measures else "is not a currency"
+        raise InputError(f"unit {text!r} {what}; a price takes a currency", unit_where,
                          "write the currency (e.g. EUR) or leave the unit cell empty")
     if field.label == "dB(A)" and text.replace(" ", "").lower() in ("db", "dba", "db(a)"):
         return
@@ -402,6 +440,9 @@ def _kind_name(field: Field) -> str:
 def _split(value: Any, unit: Any, field: Field, where: Where, unit_where: Where) -> tuple[float, str]:
     """A number and its unit from a value cell and a unit cell; a unit in the value text must agree."""
     column_unit = _unit_text(unit)
+    if isinstance(value, bool):  # TRUE / FALSE is no quantity (Python would read it as 1 / 0)
+        raise InputError(f"{value!r} is a true/false value, not a {_kind_name(field)}", where,
+                         "enter a number")
     if isinstance(value, (int, float)):
         number = float(value)
         text_unit = ""
@@ -481,9 +522,15 @@ def _read_table(book: _Book, sheet: Any, columns: Sequence[Column]) -> tuple[
         cells.pop()
     found = match_columns(cells, columns, file=book.file, sheet=sheet.title, header_row=header, strict=True)
     letters = {key: column_letter(i) for key, (i, _, _) in found.items()}
+    _nothing_above(book, sheet, header, len(cells))
+    if sheet.max_row - header > MAX_TABLE_ROWS:
+        raise InputError(f"the sheet reaches row {sheet.max_row}: more than {MAX_TABLE_ROWS:,} rows below "
+                         "its header are not read", Where(book.file, sheet.title),
+                         "give a long measured log as a series file (duty_series on the Machine sheet), "
+                         "or delete what lies below the table")
     by_key = {c.key: c for c in columns}
     out: list[tuple[int, dict[str, Any]]] = []
-    last = min(sheet.max_row, header + _MAX_ROWS)
+    last = sheet.max_row
     for r in range(header + 1, last + 1):
         row: dict[str, Any] = {}
         for key, (_i, factor, offset) in found.items():
@@ -521,6 +568,23 @@ def _in_span(si: float, kind: Kind, number: float, unit_text: str, where: Where)
         check_span(si, kind, f"{number:g} {unit_text}".strip())
     except InputError as exc:
         raise exc.at(**vars(where)) from None
+
+
+def _nothing_above(book: _Book, sheet: Any, header: int, width: int) -> None:
+    """Refuse a row of numbers above a table's header row: it would be a row of the table dropped unseen.
+
+    Two numbers make a row (every table needs at least two columns of numbers); a note with one number
+    above the header is left alone.
+    """
+    for r, row in enumerate(sheet.iter_rows(min_row=1, max_row=header - 1, max_col=max(width, 1),
+                                            values_only=True), 1):
+        numbers = [i for i, value in enumerate(row)
+                   if isinstance(value, (int, float, _dt.date, _dt.time, _dt.timedelta))
+                   or (isinstance(value, str) and _NUMBER.match(value))]
+        if len(numbers) >= 2:
+            raise InputError(f"row {r} holds values above the header row (row {header})",
+                             book.where(sheet, f"{column_letter(numbers[0])}{r}"),
+                             "move the header row above the first row of the table")
 
 
 def _span(letters: dict[str, str]) -> tuple[str, str]:
