@@ -41,7 +41,9 @@ from . import performance
 from .datasheet import Datasheet
 from .duty import Application, Duty
 from .errors import InputError, Where
-from .physics import drive, fluid
+from . import suction
+from .physics import drive, fluid, start
+from .physics.suction import LAMINAR_RE, SuctionTerms
 from .units import (
     ABS_PRESSURE,
     DURATION,
@@ -52,6 +54,7 @@ from .units import (
     SPEED,
     TEMPERATURE,
     TORQUE,
+    VELOCITY,
     VISCOSITY,
     Kind,
     from_si,
@@ -100,6 +103,8 @@ RULES: dict[str, str] = {
     "flow.delivered": "delivered flow after volumetric losses at least the required flow",
     "inlet.min": "inlet pressure (absolute) at or above the minimum",
     "inlet.max": "inlet pressure (absolute) at or below the maximum",
+    "inlet.velocity": "suction line velocity within common practice (0.5 to 1.2 m/s)",
+    "inlet.cold-start": "inlet pressure at the cold start, computed from the suction line, at or above the minimum",
     "viscosity.min": "oil viscosity at or above the minimum (short-term minimum: warning)",
     "viscosity.max": "oil viscosity at or below the maximum (up to the cold-start maximum: warning)",
     "viscosity.cold-start": "oil viscosity at the cold-start temperature at or below the cold-start maximum",
@@ -107,6 +112,7 @@ RULES: dict[str, str] = {
     "temperature.max": "oil temperature at or below the pump's maximum",
     "cleanliness": "system cleanliness (ISO 4406) no worse than the pump needs",
     "torque.max": "shaft torque at or below the shaft's limit",
+    "torque.cold-start": "the pump's torque at the cold start at or below the motor's starting torque",
     "rotation": "direction of rotation matches the drive",
     "performance.basis": "what the efficiencies rest on",
 }
@@ -117,12 +123,14 @@ class CheckSettings:
     """How to check and report.
 
     ``units`` picks the display units (``"metric"`` or ``"imperial"``); ``strict`` makes warnings fail;
-    ``listed`` caps the number of offending segments a finding names.
+    ``listed`` caps the number of offending segments a finding names. ``suction_velocity`` is the range
+    of suction line velocities [m/s] the ``inlet.velocity`` rule accepts (common practice 0.5–1.2 m/s).
     """
 
     units: str = "metric"
     strict: bool = False
     listed: int = 5
+    suction_velocity: tuple[float, float] = (0.5, 1.2)  # common practice for suction lines [m/s]
 
 
 @dataclass(frozen=True)
@@ -188,6 +196,7 @@ class CheckResult:
     findings: list[Finding]
     drive: DriveFigures
     settings: CheckSettings = field(default_factory=CheckSettings)
+    suction: SuctionTerms | None = None  # the inlet pressure computed from the suction line, per segment
 
     @property
     def worst_margin(self) -> float | None:
@@ -528,16 +537,165 @@ def _flow(ctx: _Context, est: performance.Estimate) -> Finding:
                     where=ctx.ds.where("volumetric_efficiency"))
 
 
-def _inlet(ctx: _Context) -> list[Finding]:
+def _inlet(ctx: _Context, line: SuctionTerms | None = None) -> list[Finding]:
     ds, duty = ctx.ds, ctx.duty
     out = []
+    inlet = duty.inlet_pressure if line is None else np.asarray(line.inlet, float)
     if ds.inlet_pressure_min is not None:
-        out.append(_bound(ctx, "inlet.min", duty.inlet_pressure, ds.inlet_pressure_min, False, ABS_PRESSURE,
-                          ds.where("inlet_pressure_min")))
+        out.append(_computed(ctx, _bound(ctx, "inlet.min", inlet, ds.inlet_pressure_min, False, ABS_PRESSURE,
+                                         ds.where("inlet_pressure_min")), line, int(np.argmin(inlet))))
     if ds.inlet_pressure_max is not None:
-        out.append(_bound(ctx, "inlet.max", duty.inlet_pressure, ds.inlet_pressure_max, True, ABS_PRESSURE,
-                          ds.where("inlet_pressure_max")))
-    return out
+        out.append(_computed(ctx, _bound(ctx, "inlet.max", inlet, ds.inlet_pressure_max, True, ABS_PRESSURE,
+                                         ds.where("inlet_pressure_max")), line, int(np.argmax(inlet))))
+    return out + _suction_velocity(ctx, line)
+
+
+def _breakdown(ctx: _Context, terms: SuctionTerms, i: int | None = None) -> tuple[str, Where]:
+    """The inlet pressure's terms in words (at element ``i``), the dominant one, and the line cell to fix."""
+    def at(x: object) -> float:
+        return float(np.asarray(x).reshape(-1)[i]) if i is not None and np.ndim(x) else float(np.asarray(x))
+
+    parts = [f"reservoir {_fmt(ctx, ABS_PRESSURE, at(terms.reservoir))}"]
+    parts += [f"{'+' if at(getattr(terms, n)) < 0 else '−'} {suction.TERM_WORDS[n][0].removeprefix('the ')} "
+              f"{_fmt(ctx, PRESSURE, abs(at(getattr(terms, n))))}"
+              for n in SuctionTerms.TERMS if at(getattr(terms, n)) != 0]
+    top = suction.dominant(terms, i)
+    word, key = suction.TERM_WORDS[top]
+    re_ = at(terms.reynolds)
+    regime = "laminar" if re_ <= LAMINAR_RE else "transitional" if re_ < 4000 else "turbulent"
+    text = (f"computed from the suction line ({_fmt(ctx, VELOCITY, at(terms.velocity))}, Re {re_:.0f}, "
+            f"{regime}): {' '.join(parts)}; {word} dominates")
+    return text, ctx.app.where(key)
+
+
+def _computed(ctx: _Context, f: Finding, line: SuctionTerms | None, i: int) -> Finding:
+    """An inlet finding on the computed pressure: says how it was computed and names the line cell to fix."""
+    if line is None or f.severity == INFO:
+        return f
+    text, where = _breakdown(ctx, line, i)
+    return _replace(f, message=f"{f.message}; {text}", app_where=where)
+
+
+def _suction_velocity(ctx: _Context, line: SuctionTerms | None) -> list[Finding]:
+    """Suction line velocity against common practice: a warning above the range, a note below it."""
+    app = ctx.app
+    if line is None:
+        return [Finding("inlet.velocity", INFO, "not applicable: no suction line given (the stated inlet "
+                        "pressure is used)", kind=VELOCITY, unit=ctx.unit(VELOCITY),
+                        where=app.where("suction_diameter"))]
+    low, high = ctx.settings.suction_velocity
+    v = np.broadcast_to(np.asarray(line.velocity, float), ctx.duty.duration.shape)
+    running = ctx.duty.speed > 0
+    f = _bound(ctx, "inlet.velocity", v, high, True, VELOCITY, app.where("suction_diameter"), active=running,
+               what="the pump never runs", severity=WARN,
+               rating_note=f" (common practice {low:g}–{high:g} m/s for suction lines)")
+    f = _replace(f, app_where=app.where("suction_diameter"))
+    if f.severity == PASS and isinstance(f.measured, float) and f.measured < low:
+        f = _replace(f, severity=INFO, message=f.message + ": below the usual range, the line is larger "
+                     "than it needs to be")
+    return [f]
+
+
+def _cold_inputs(ctx: _Context) -> tuple[float, float, float, int] | None:
+    """At the cold start: temperature [K], viscosity [m²/s], speed [rev/s] and index of the first running
+    segment; None without a cold-start temperature or a running segment."""
+    app, duty = ctx.app, ctx.duty
+    running = np.flatnonzero(duty.speed > 0)
+    if app.cold_start_temperature is None or not running.size:
+        return None
+    i = int(running[0])
+    oil = app.oil
+    t = app.cold_start_temperature
+    nu = float(fluid.viscosity_at(t, oil.nu1, oil.t1, oil.nu2, oil.t2))
+    return t, nu, float(duty.speed[i]), i
+
+
+def _cold_inlet(ctx: _Context) -> Finding:
+    """The inlet pressure at the cold start: the pump's flow at the first running segment's speed, drawn
+    through the suction line at the cold oil's viscosity."""
+    ds, app = ctx.ds, ctx.app
+    rule = "inlet.cold-start"
+    cold = _cold_inputs(ctx)
+    missing = ("no suction line given" if app.suction is None else
+               "no cold-start temperature given" if cold is None else
+               "the datasheet states no minimum inlet pressure" if ds.inlet_pressure_min is None else "")
+    if missing:
+        where = (ds.where("inlet_pressure_min") if app.suction is not None and cold is not None else
+                 app.where("suction_diameter" if app.suction is None else "cold_start_temperature"))
+        return Finding(rule, INFO, f"not checked: {missing}", kind=ABS_PRESSURE, unit=ctx.unit(ABS_PRESSURE),
+                       where=where, app_where=app.where("cold_start_temperature"))
+    assert cold is not None and app.suction is not None and ds.inlet_pressure_min is not None
+    t, nu, n, _ = cold
+    flow = ds.displacement * n  # the pump draws its displacement every turn, whatever it delivers
+    terms = suction.inlet(app.suction, flow, nu, app.oil.density_15)
+    p = float(terms.inlet)
+    lim = ds.inlet_pressure_min
+    ok = p >= lim
+    text, where = _breakdown(ctx, terms)
+    return Finding(rule, PASS if ok else FAIL,
+                   f"{_fmt(ctx, ABS_PRESSURE, p)} at the cold start ({_fmt(ctx, TEMPERATURE, t)}, "
+                   f"{_fmt(ctx, VISCOSITY, nu)}, {_fmt(ctx, FLOW, flow)} drawn at {_fmt(ctx, SPEED, n)}) "
+                   f"{'at or above' if ok else 'below'} the minimum {_fmt(ctx, ABS_PRESSURE, lim)}; {text}",
+                   p, lim, _margin(p, lim, False), ABS_PRESSURE, ctx.unit(ABS_PRESSURE), "cold start",
+                   0 if ok else 1, None, (), ds.where("inlet_pressure_min"), where)
+
+
+def _cold_torque(ctx: _Context, fig: DriveFigures) -> Finding:
+    """The pump's torque at the cold start against the motor's starting torque.
+
+    The pump's torque: the stated breakaway torque, or the performance table's loss model (Wilson's
+    viscous term C_v·D·μ·ω at the cold viscosity) at the first running segment's pressure and speed. The
+    motor: the smallest standard motor for the duty's RMS and peak power; its starting torque the
+    application's multiple of rated torque, or the locked-rotor torque of the standard's design class.
+    """
+    ds, app, duty = ctx.ds, ctx.app, ctx.duty
+    rule = "torque.cold-start"
+    cold = _cold_inputs(ctx)
+    if cold is None:
+        return Finding(rule, INFO, "not checked: no cold-start temperature given", kind=TORQUE,
+                       unit=ctx.unit(TORQUE), where=ds.where("starting_torque"),
+                       app_where=app.where("cold_start_temperature"))
+    t, nu, n, i = cold
+    if ds.starting_torque is not None:
+        need, how, where = ds.starting_torque, "stated breakaway torque", ds.where("starting_torque")
+    else:
+        rho = app.oil.density_15
+        est = performance.estimate(ds, duty.pressure[i:i + 1], np.array([n]), np.array([nu]), rho, rho)
+        if est.basis != "table":
+            return Finding(rule, INFO, "not checked: the datasheet states no breakaway torque and no "
+                           "performance table whose viscous loss gives the torque at the cold viscosity",
+                           kind=TORQUE, unit=ctx.unit(TORQUE), where=ds.where("starting_torque"),
+                           app_where=app.where("cold_start_temperature"))
+        need = float(est.torque[0])
+        how = (f"loss model of the performance table at {_fmt(ctx, VISCOSITY, nu)} and "
+               f"{_fmt(ctx, PRESSURE, float(duty.pressure[i]))} ({ctx.label(i)})"
+               + (", extrapolated beyond the table" if bool(est.extrapolated[0]) else ""))
+        where = ds.where("performance")
+    if not (math.isfinite(fig.rms_power) and math.isfinite(fig.peak_power)):
+        return Finding(rule, INFO, "not checked: no motor can be sized without the pump's drive power",
+                       need, None, None, TORQUE, ctx.unit(TORQUE), where=where)
+    try:
+        motor = drive.select_motor(fig.rms_power, max(fig.peak_power, fig.rms_power), app.motor_standard)
+    except ValueError as exc:
+        return Finding(rule, INFO, f"not checked: no standard motor ({exc})", need, None, None, TORQUE,
+                       ctx.unit(TORQUE), where=where)
+    stated = app.motor_starting_torque is not None
+    ratio = app.motor_starting_torque if stated else start.locked_rotor_ratio(motor.rated_power, motor.standard)
+    assert ratio is not None
+    rated = start.rated_torque(motor.rated_power, n)
+    have = ratio * rated
+    ok = need <= have
+    source = ("as stated" if stated else
+              "locked-rotor torque of " + ("IEC 60034-12 design N" if motor.standard == "IEC" else
+                                           "NEMA MG 1 design B") + ", from memory")
+    text = (f"the pump needs {_fmt(ctx, TORQUE, need)} to start at {_fmt(ctx, TEMPERATURE, t)} ({how}); the "
+            f"{motor.label} motor gives {ratio:.2g} × {_fmt(ctx, TORQUE, rated)} = {_fmt(ctx, TORQUE, have)} "
+            f"({source})")
+    if not ok:
+        text += ": it may not bring the pump up to speed cold"
+    return Finding(rule, PASS if ok else FAIL, text, need, have, _margin(need, have, True), TORQUE,
+                   ctx.unit(TORQUE), "cold start", 0 if ok else 1, None, (), where,
+                   app.where("motor_starting_torque" if stated else "cold_start_temperature"))
 
 
 def _viscosity(ctx: _Context, nu: np.ndarray) -> list[Finding]:
@@ -819,11 +977,18 @@ def check(datasheet: Datasheet, application: Application,
     findings += _speed(ctx)
     findings += _pressure(ctx)
     findings.append(_flow(ctx, est))
-    findings += _inlet(ctx)
+    line = None
+    if application.suction is not None:
+        # the pump draws its displacement every turn; the internal leakage returns inside the pump
+        line = suction.inlet(application.suction, datasheet.displacement * duty.speed, nu, oil.density_15)
+    findings += _inlet(ctx, line)
+    findings.append(_cold_inlet(ctx))
     findings += _viscosity(ctx, nu)
     findings += _temperature(ctx)
     findings += _cleanliness(ctx)
     findings += _torque(ctx, est)
     findings += _rotation(ctx)
     findings.append(_basis(ctx, est))
-    return CheckResult(datasheet, application, findings, _drive(ctx, est, nu), settings)
+    figures = _drive(ctx, est, nu)
+    findings.append(_cold_torque(ctx, figures))
+    return CheckResult(datasheet, application, findings, figures, settings, line)

@@ -127,6 +127,12 @@ KINDS: dict[str, Kind] = {
     )
 }
 
+# Kinds of the suction line (added apart from the table above so it stays as it was).
+LENGTH = Kind("length", "m", "m", "1.5 m")
+DIAMETER = Kind("inner diameter", "mm", "m", "25 mm")
+VELOCITY = Kind("velocity", "m/s", "m/s", "0.8 m/s")
+KINDS.update({k.name: k for k in (LENGTH, DIAMETER, VELOCITY)})
+
 _NUMBER_UNIT = re.compile(r"^\s*([+-]?(?:\d+\.?\d*|\.\d+)(?:[eE][+-]?\d+)?)\s*(.*?)\s*$")
 _SPELLINGS = (
     ("³", "**3"), ("²", "**2"), ("·", "*"), ("⋅", "*"), ("×", "*"), ("µ", "u"), ("μ", "u"),
