@@ -34,6 +34,7 @@ from ..comparison import Candidate, Comparison
 from ..files import sha256
 from ..physics import drive, fluid
 from ..units import (
+    ABS_PRESSURE,
     DISPLACEMENT,
     ENERGY,
     FLOW,
@@ -272,6 +273,8 @@ def _summary(book: Any, comp: Comparison, units: str, duty_refs: list[dict[str, 
     line("verdict", [c.result.verdict for c in cands], [c.result.verdict for c in cands])
     line("worst margin", [_fmt_margin(c.result.worst_margin) for c in cands])
     line("delivered-flow margin", [_fmt_margin(c.flow_margin) for c in cands])
+    for label, values, style in _suction_rows(cands, units):
+        line(label, values, style)
     rules = [r for r in RULES if any(f.rule == r for c in cands for f in c.result.findings)]
     for rule in rules:
         texts, styles = [], []
@@ -315,6 +318,52 @@ def _summary(book: Any, comp: Comparison, units: str, duty_refs: list[dict[str, 
     sheet.set_column(0, 0, 75)
     sheet.set_column(1, max(len(cands), 2), 36)
     sheet.freeze_panes(8, 1)
+
+
+def _suction_rows(cands: Sequence[Candidate], units: str) -> list[tuple[str, list[Any], str]]:
+    """Summary rows of the suction side: the computed inlet pressures and the cold start (issue 18)."""
+    pu, tu = _unit(units, ABS_PRESSURE), _unit(units, TORQUE)
+
+    def measured(c: Candidate, rule: str, kind: Kind, limit: bool = False) -> float | None:
+        f = next((f for f in c.result.findings if f.rule == rule), None)
+        value = None if f is None else (f.limit if limit else f.measured)
+        return _show(value, kind, units) if isinstance(value, float) else None
+
+    rows: list[tuple[str, list[Any], str]] = []
+    if any(c.result.suction is not None for c in cands):
+        rows.append((f"inlet pressure computed from the suction line, lowest of the duty [{pu}]",
+                     [_show(float(np.min(c.result.suction.inlet)), ABS_PRESSURE, units)
+                      if c.result.suction is not None else None for c in cands], "n3"))
+        rows.append((f"inlet pressure at the cold start [{pu}]",
+                     [measured(c, "inlet.cold-start", ABS_PRESSURE) for c in cands], "n3"))
+    if any(measured(c, "torque.cold-start", TORQUE) is not None for c in cands):
+        rows.append((f"torque to start cold / motor's starting torque [{tu}]",
+                     [f"{need:.1f} / {have:.1f}" if need is not None and have is not None else None
+                      for c in cands
+                      for need, have in [(measured(c, "torque.cold-start", TORQUE),
+                                          measured(c, "torque.cold-start", TORQUE, limit=True))]], ""))
+    return rows
+
+
+def _suction_assumptions(app: Any) -> list[tuple[str, Any]]:
+    """Assumptions rows of the suction line, when one is given."""
+    line = app.suction
+    if line is None:
+        return [("inlet pressure", "as stated in the application (no suction line given)")]
+    strainer = "none"
+    if line.strainer is not None:
+        dp, q, nu = line.strainer
+        strainer = (f"{dp / 1e5:g} bar at {q * 60000:g} L/min and {nu * 1e6:g} mm^2/s, scaled as a "
+                    f"{line.strainer_law} element")
+    return [
+        ("suction line", f"inner diameter {line.diameter * 1e3:g} mm, length {line.length:g} m, lift "
+                         f"{line.lift:g} m, reservoir {line.reservoir_pressure / 1e5:.4g} bara"),
+        ("suction fittings", f"{line.fittings or 'none'} (K = {line.k_re:g}/Re + {line.k_inf:.3g})"),
+        ("suction strainer", strainer),
+        ("inlet pressure", "reservoir - rho g lift - Darcy-Weisbach friction (64/Re laminar, Colebrook by "
+                           "Clamond's method turbulent, linear between Re 2000 and 4000) - fittings (3-K method, "
+                           "fluids.fittings) - strainer - velocity head, at the pump's geometric flow"),
+    ]
 
 
 def _curves_and_charts(book: Any, comp: Comparison, units: str, duty_sheets: list[Any]) -> None:
@@ -474,6 +523,7 @@ def _assumptions(book: Any, comp: Comparison, inputs: Sequence[str | os.PathLike
         ("oil viscosity index", oil.viscosity_index),
         ("oil density at 15 degC [kg/m^3]", oil.density_15),
         ("viscosity against temperature", "Walther relation, ASTM D341"),
+        *_suction_assumptions(app),
         ("motor standard", app.motor_standard),
         ("motor sizing rule", "smallest standard rating >= RMS input power and rating x overload factor >= peak"),
         ("overload factor", f"{overload:g} x rating for short peaks: IEC 60034-1 occasional excess torque "
