@@ -90,8 +90,9 @@ def _fittings(text: str, diameter: float, where: Where) -> tuple[float, float]:
         count, name = (int(match.group(1)), match.group(2)) if match else (1, item)
         try:
             f = physics.fitting(name.strip(), diameter)
-        except PhysicsError as exc:
-            raise InputError(str(exc).removeprefix("fitting ").capitalize(), where,
+        except PhysicsError:
+            raise InputError(f"{name.strip()!r} is not a fitting sheetpump knows; known: "
+                             f"{', '.join(physics.FITTINGS)}", where,
                              "write trade names separated by commas, e.g. 'entrance, 2 x elbow 90', "
                              "or the sum of the loss coefficients K as a number") from None
         k_re += count * f.k_re
