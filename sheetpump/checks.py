@@ -37,11 +37,10 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
-from . import performance
+from . import performance, suction
 from .datasheet import Datasheet
 from .duty import Application, Duty
 from .errors import InputError, Where
-from . import suction
 from .physics import drive, fluid, start
 from .physics.suction import LAMINAR_RE, SuctionTerms
 from .units import (

@@ -21,8 +21,8 @@ from sheetpump.datasheet import Datasheet
 from sheetpump.duty import Application, Duty, Oil
 from sheetpump.errors import InputError
 from sheetpump.physics import start
-from sheetpump.physics.drive import HP
 from sheetpump.physics import suction as s
+from sheetpump.physics.drive import HP
 from sheetpump.suction import SuctionLine, inlet
 from sheetpump.workbooks.readers import read_application
 from sheetpump.workbooks.templates import DUTY_COLUMNS, write_template
@@ -94,7 +94,7 @@ def test_sharp_entrance():
 
 
 def test_unknown_fitting_lists_the_known_ones():
-    with pytest.raises(ValueError, match="elbow 90.*ball valve"):
+    with pytest.raises(ValueError, match=r"elbow 90.*ball valve"):
         s.fitting("swan neck", 0.025)
 
 

@@ -43,10 +43,10 @@ from .pump import PhysicsError, non_negative, positive
 
 __all__ = [
     "FITTINGS",
-    "G",
     "LAMINAR_RE",
     "TURBULENT_RE",
     "Fitting",
+    "G",
     "SuctionTerms",
     "darcy_drop",
     "fitting",
