@@ -552,7 +552,7 @@ def _inlet(ctx: _Context, line: SuctionTerms | None = None) -> list[Finding]:
 def _breakdown(ctx: _Context, terms: SuctionTerms, i: int | None = None) -> tuple[str, Where]:
     """The inlet pressure's terms in words (at element ``i``), the dominant one, and the line cell to fix."""
     def at(x: object) -> float:
-        return float(np.asarray(x).reshape(-1)[i]) if i is not None and np.ndim(x) else float(np.asarray(x))
+        return suction.value_at(x, i)
 
     parts = [f"reservoir {_fmt(ctx, ABS_PRESSURE, at(terms.reservoir))}"]
     parts += [f"{'+' if at(getattr(terms, n)) < 0 else '−'} {suction.TERM_WORDS[n][0].removeprefix('the ')} "

@@ -26,7 +26,7 @@ from .errors import InputError, Where
 from .physics import suction as physics
 from .physics.pump import PhysicsError
 
-__all__ = ["LINE_FIELDS", "TERM_WORDS", "SuctionLine", "dominant", "inlet", "line_from_fields"]
+__all__ = ["LINE_FIELDS", "TERM_WORDS", "SuctionLine", "dominant", "inlet", "line_from_fields", "value_at"]
 
 #: Machine-sheet keys of the suction line (their defined names are ``machine.<key>``).
 LINE_FIELDS = ("suction_lift", "reservoir_pressure", "suction_length", "suction_diameter", "suction_fittings",
@@ -65,12 +65,14 @@ def inlet(line: SuctionLine, flow: np.ndarray | float, viscosity: np.ndarray | f
                                  line.strainer_law)
 
 
+def value_at(x: object, i: int | None = None) -> float:
+    """Element ``i`` of an array term, or the term itself when it is one number."""
+    return float(np.asarray(x).reshape(-1)[i]) if i is not None and np.ndim(x) else float(np.asarray(x))
+
+
 def dominant(terms: physics.SuctionTerms, i: int | None = None) -> str:
     """The term that lowers the inlet pressure most (at element ``i`` of array terms)."""
-    def at(x: object) -> float:
-        return float(np.asarray(x).reshape(-1)[i]) if i is not None and np.ndim(x) else float(np.asarray(x))
-
-    return max(physics.SuctionTerms.TERMS, key=lambda name: at(getattr(terms, name)))
+    return max(physics.SuctionTerms.TERMS, key=lambda name: value_at(getattr(terms, name), i))
 
 
 _COUNT = re.compile(r"^\s*(\d+)\s*(?:x|×|\*)\s*(.+)$", re.IGNORECASE)
