@@ -182,8 +182,15 @@ def _app(tmp_path, **changes):
                           [c.header for c in DUTY_COLUMNS])
 
 
+def test_standing_pump_sees_the_static_pressure():
+    # no flow: only the reservoir and the column of oil act (by hand: 1.01325 bar - 870 x 9.80665 x 0.3 Pa)
+    t = inlet(SuctionLine(0.032, 1.2, 0.3, k_re=1100.0, k_inf=1.3), np.array([0.0, 1e-20]), 300e-6, RHO)
+    assert np.all(t.inlet == pytest.approx(101325 - RHO * 9.80665 * 0.3, rel=1e-12))
+
+
 def test_demo_line_is_read(tmp_path):
-    app = read_application(_app(tmp_path, inlet_pressure=None))  # the line replaces the stated pressure
+    app = read_application(_app(tmp_path, inlet_pressure=None, motor_starting_torque=(0.5, "x rated")))
+    assert app.motor_starting_torque == 0.5
     line = app.suction
     assert (line.diameter, line.length, line.lift) == pytest.approx((0.032, 1.2, 0.3))
     elbow = lib.Darby["Elbow, 90°, threaded, standard, (r/D = 1)"][0]

@@ -298,7 +298,7 @@ def darcy_drop(flow: ArrayLike, diameter: ArrayLike, length: ArrayLike, viscosit
     positive(rho, "density")
     non_negative(q, "flow")
     v = q * (4.0 / math.pi) / (d * d)
-    re = np.maximum(v * d / nu, 1e-300)  # no flow: any factor, the drop is 0
+    re = np.maximum(v * d / nu, 1e-12)  # no flow: any factor, the drop is 0
     f = np.asarray(friction_factor(re, np.asarray(roughness, float) / d))
     return _out(f * (length_ / d) * 0.5 * rho * v * v)
 
@@ -428,7 +428,7 @@ def fittings_drop(k_re: ArrayLike, k_inf: ArrayLike, reynolds: ArrayLike, veloci
     """
     re = np.asarray(reynolds, float)
     v = np.asarray(velocity, float)
-    k = np.asarray(k_re, float) / np.maximum(re, 1e-300) + np.asarray(k_inf, float)
+    k = np.asarray(k_re, float) / np.maximum(re, 1e-12) + np.asarray(k_inf, float)
     return _out(k * 0.5 * np.asarray(density, float) * v * v)
 
 
@@ -614,7 +614,7 @@ def suction_terms(flow: ArrayLike, viscosity: ArrayLike, density: ArrayLike, dia
     positive(rho, "density")
     v = q * (4.0 / math.pi) / (diameter * diameter)
     re = np.asarray(reynolds_number(v, diameter, nu))
-    re_safe = np.maximum(re, 1e-300)
+    re_safe = np.maximum(re, 1e-12)
     f = np.asarray(friction_factor(re_safe, roughness / diameter))
     head = 0.5 * rho * v * v
     friction = f * (length / diameter) * head
