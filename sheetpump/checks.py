@@ -40,11 +40,12 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
-from . import performance
+from . import performance, suction
 from .datasheet import Datasheet
 from .duty import Application, Duty
 from .errors import InputError, Where
-from .physics import drive, fluid
+from .physics import drive, fluid, start
+from .physics.suction import LAMINAR_RE, SuctionTerms
 from .units import (
     ABS_PRESSURE,
     DURATION,
@@ -55,6 +56,7 @@ from .units import (
     SPEED,
     TEMPERATURE,
     TORQUE,
+    VELOCITY,
     VISCOSITY,
     Kind,
     from_si,
@@ -113,6 +115,8 @@ RULES: dict[str, str] = {
     "flow.delivered": "delivered flow after volumetric losses at least the required flow",
     "inlet.min": "inlet pressure (absolute) at or above the minimum",
     "inlet.max": "inlet pressure (absolute) at or below the maximum",
+    "inlet.velocity": "suction line velocity within common practice (0.5 to 1.2 m/s)",
+    "inlet.cold-start": "inlet pressure at the cold start, computed from the suction line, at or above the minimum",
     "viscosity.min": "oil viscosity at or above the minimum (short-term minimum: warning)",
     "viscosity.max": "oil viscosity at or below the maximum (up to the cold-start maximum: warning)",
     "viscosity.cold-start": "oil viscosity at the cold-start temperature at or below the cold-start maximum",
@@ -121,6 +125,7 @@ RULES: dict[str, str] = {
     "cleanliness": "system cleanliness (ISO 4406) no worse than the pump needs",
     "torque.max": "shaft torque at or below the shaft's limit",
     "torque.relief": "shaft torque at the relief setting plus overshoot (a stall) at or below the shaft's limit",
+    "torque.cold-start": "the pump's torque at the cold start at or below the motor's starting torque",
     "rotation": "direction of rotation matches the drive",
     "performance.basis": "what the efficiencies rest on",
 }
@@ -141,6 +146,8 @@ NOT_CHECKED_WHEN: dict[str, str] = {
     "torque.max": "no shaft torque limit, or no efficiency to compute the torque from",
     "torque.relief": "no shaft torque limit, or no efficiency to compute the torque from",
     "rotation": "no rotation on the datasheet or in the application",
+    "inlet.cold-start": "a suction line without a cold-start temperature or a minimum inlet pressure",
+    "torque.cold-start": "no cold-start temperature, no breakaway torque nor performance table, or no motor",
 }
 
 
@@ -154,6 +161,8 @@ class CheckSettings:
     default 1.6), ``service_factor`` (RMS ≤ SF × rating, default 1: size to the nameplate) and
     ``thermal_window`` [s] (the motor's thermal time over which a long series' RMS is taken, default
     10 min); see :mod:`sheetpump.physics.drive`.
+    ``suction_velocity`` is the range of suction line velocities [m/s] the ``inlet.velocity`` rule
+    accepts (common practice 0.5–1.2 m/s).
     """
 
     units: str = "metric"
@@ -162,6 +171,7 @@ class CheckSettings:
     overload_factor: float = drive.IEC_OVERLOAD_FACTOR
     service_factor: float = 1.0
     thermal_window: float = drive.THERMAL_WINDOW
+    suction_velocity: tuple[float, float] = (0.5, 1.2)  # common practice for suction lines [m/s]
 
 
 @dataclass(frozen=True)
@@ -247,6 +257,7 @@ class CheckResult:
     findings: list[Finding]
     drive: DriveFigures
     settings: CheckSettings = field(default_factory=CheckSettings)
+    suction: SuctionTerms | None = None  # the inlet pressure computed from the suction line, per segment
 
     @property
     def worst_margin(self) -> float | None:
@@ -655,22 +666,189 @@ def _flow(ctx: _Context, est: performance.Estimate) -> Finding:
                     where=ctx.ds.where("volumetric_efficiency"))
 
 
-def _inlet(ctx: _Context) -> list[Finding]:
+def _inlet(ctx: _Context, line: SuctionTerms | None = None) -> list[Finding]:
     ds, duty = ctx.ds, ctx.duty
     out = []
+    inlet = duty.inlet_pressure if line is None else np.asarray(line.inlet, float)
     if ds.inlet_pressure_min is not None:
-        out.append(_bound(ctx, "inlet.min", duty.inlet_pressure, ds.inlet_pressure_min, False, ABS_PRESSURE,
-                          ds.where("inlet_pressure_min")))
+        out.append(_computed(ctx, _bound(ctx, "inlet.min", inlet, ds.inlet_pressure_min, False, ABS_PRESSURE,
+                                         ds.where("inlet_pressure_min")), line, int(np.argmin(inlet))))
     else:
         out.append(_not_checked(ctx, "inlet.min", "the datasheet states no minimum inlet pressure",
                                 ds.where("inlet_pressure_min"), kind=ABS_PRESSURE))
     if ds.inlet_pressure_max is not None:
-        out.append(_bound(ctx, "inlet.max", duty.inlet_pressure, ds.inlet_pressure_max, True, ABS_PRESSURE,
-                          ds.where("inlet_pressure_max")))
+        out.append(_computed(ctx, _bound(ctx, "inlet.max", inlet, ds.inlet_pressure_max, True, ABS_PRESSURE,
+                                         ds.where("inlet_pressure_max")), line, int(np.argmax(inlet))))
     else:
         out.append(_not_checked(ctx, "inlet.max", "the datasheet states no maximum inlet pressure",
                                 ds.where("inlet_pressure_max"), kind=ABS_PRESSURE))
-    return out
+    return out + _suction_velocity(ctx, line)
+
+
+def _breakdown(ctx: _Context, terms: SuctionTerms, i: int | None = None) -> tuple[str, Where]:
+    """The inlet pressure's terms in words (at element ``i``), the dominant one, and the line cell to fix."""
+    def at(x: object) -> float:
+        return suction.value_at(x, i)
+
+    parts = [f"reservoir {_fmt(ctx, ABS_PRESSURE, at(terms.reservoir))}"]
+    parts += [f"{'+' if at(getattr(terms, n)) < 0 else '−'} {suction.TERM_WORDS[n][0].removeprefix('the ')} "
+              f"{_fmt(ctx, PRESSURE, abs(at(getattr(terms, n))))}"
+              for n in SuctionTerms.TERMS if at(getattr(terms, n)) != 0]
+    top = suction.dominant(terms, i)
+    word, key = suction.TERM_WORDS[top]
+    re_ = at(terms.reynolds)
+    regime = "laminar" if re_ <= LAMINAR_RE else "transitional" if re_ < 4000 else "turbulent"
+    text = (f"computed from the suction line ({_fmt(ctx, VELOCITY, at(terms.velocity))}, Re {re_:.0f}, "
+            f"{regime}): {' '.join(parts)}; {word} dominates")
+    return text, ctx.app.where(key)
+
+
+def _computed(ctx: _Context, f: Finding, line: SuctionTerms | None, i: int) -> Finding:
+    """An inlet finding on the computed pressure: says how it was computed and names the line cell to fix."""
+    if line is None or f.severity == INFO:
+        return f
+    text, where = _breakdown(ctx, line, i)
+    return _replace(f, message=f"{f.message}; {text}", app_where=where)
+
+
+def _suction_velocity(ctx: _Context, line: SuctionTerms | None) -> list[Finding]:
+    """Suction line velocity against common practice: a warning above the range, a note below it."""
+    app = ctx.app
+    if line is None:
+        return [Finding("inlet.velocity", INFO, "not applicable: no suction line given (the stated inlet "
+                        "pressure is used)", kind=VELOCITY, unit=ctx.unit(VELOCITY),
+                        where=app.where("suction_diameter"))]
+    low, high = ctx.settings.suction_velocity
+    v = np.broadcast_to(np.asarray(line.velocity, float), ctx.duty.duration.shape)
+    running = ctx.duty.speed > 0
+    f = _bound(ctx, "inlet.velocity", v, high, True, VELOCITY, app.where("suction_diameter"), active=running,
+               what="the pump never runs", severity=WARN,
+               rating_note=f" (common practice {low:g}–{high:g} m/s for suction lines)")
+    f = _replace(f, app_where=app.where("suction_diameter"))
+    if f.severity == PASS and isinstance(f.measured, float) and f.measured < low:
+        f = _replace(f, severity=INFO, message=f.message + ": below the usual range, the line is larger "
+                     "than it needs to be")
+    return [f]
+
+
+def size_motor(fig: DriveFigures, app: Application,
+            settings: CheckSettings) -> tuple[drive.MotorChoice, str, float, str]:
+    """The motor: the smallest standard size carrying the RMS load (over the cycle, or over the worst
+    thermal window of a long one) and the peak; with the text of its loads, the RMS it was sized on
+    and over what."""
+    use = fig.duration > 0
+    power = np.maximum(fig.input_power[use], 0.0)  # a fitted model may dip below zero near standstill
+    window = settings.thermal_window
+    rms = float(drive.worst_window_rms(power, fig.duration[use], window, app.duty.wraps))
+    basis = f"over the worst {window / 60:g} min" if app.duty.cycle_time > window else "over the cycle"
+    peak = max(fig.peak_power, rms)
+    motor = drive.select_motor(rms, peak, app.motor_standard, settings.overload_factor, settings.service_factor)
+    sf = f" × service factor {motor.service_factor:g}" if motor.service_factor != 1 else ""
+    binds = ("below the smallest size" if motor.binding == "smallest size" else
+             f"{motor.binding} bind{'s' if motor.binding != 'RMS and peak' else ''}")
+    note = (f"RMS {motor.rms_load:.0%} of the rating{sf} ({basis}), peak {motor.peak_load:.0%} "
+            f"(≤ {motor.overload_factor:.0%}); {binds}")
+    return motor, note, rms, basis
+
+
+def _cold_inputs(ctx: _Context) -> tuple[float, float, float, int] | None:
+    """At the cold start: temperature [K], viscosity [m²/s], speed [rev/s] and index of the first running
+    segment; None without a cold-start temperature or a running segment."""
+    app, duty = ctx.app, ctx.duty
+    running = np.flatnonzero(duty.speed > 0)
+    if app.cold_start_temperature is None or not running.size:
+        return None
+    i = int(running[0])
+    oil = app.oil
+    t = app.cold_start_temperature
+    nu = float(fluid.viscosity_at(t, oil.nu1, oil.t1, oil.nu2, oil.t2))
+    return t, nu, float(duty.speed[i]), i
+
+
+def _cold_inlet(ctx: _Context) -> Finding:
+    """The inlet pressure at the cold start: the pump's flow at the first running segment's speed, drawn
+    through the suction line at the cold oil's viscosity."""
+    ds, app = ctx.ds, ctx.app
+    rule = "inlet.cold-start"
+    cold = _cold_inputs(ctx)
+    if app.suction is None:  # the stated inlet pressure holds as the user gave it: nothing to compute
+        return _not_applicable(rule, "no suction line given (the inlet rules judge the stated inlet pressure)",
+                               app.where("suction_diameter"))
+    missing = ("no cold-start temperature given" if cold is None else
+               "the datasheet states no minimum inlet pressure" if ds.inlet_pressure_min is None else "")
+    if missing:
+        where = (ds.where("inlet_pressure_min") if app.suction is not None and cold is not None else
+                 app.where("suction_diameter" if app.suction is None else "cold_start_temperature"))
+        return _not_checked(ctx, rule, missing, where, app.where("cold_start_temperature"), kind=ABS_PRESSURE)
+    assert cold is not None and app.suction is not None and ds.inlet_pressure_min is not None
+    t, nu, n, _ = cold
+    flow = ds.displacement * n  # the pump draws its displacement every turn, whatever it delivers
+    terms = suction.inlet(app.suction, flow, nu, app.oil.density_15)
+    p = float(terms.inlet)
+    lim = ds.inlet_pressure_min
+    ok = p >= lim
+    text, where = _breakdown(ctx, terms)
+    return Finding(rule, PASS if ok else FAIL,
+                   f"{_fmt(ctx, ABS_PRESSURE, p)} at the cold start ({_fmt(ctx, TEMPERATURE, t)}, "
+                   f"{_fmt(ctx, VISCOSITY, nu)}, {_fmt(ctx, FLOW, flow)} drawn at {_fmt(ctx, SPEED, n)}) "
+                   f"{'at or above' if ok else 'below'} the minimum {_fmt(ctx, ABS_PRESSURE, lim)}; {text}",
+                   p, lim, _margin(p, lim, False), ABS_PRESSURE, ctx.unit(ABS_PRESSURE), "cold start",
+                   0 if ok else 1, None, (), ds.where("inlet_pressure_min"), where)
+
+
+def _cold_torque(ctx: _Context, fig: DriveFigures) -> Finding:
+    """The pump's torque at the cold start against the motor's starting torque.
+
+    The pump's torque: the stated breakaway torque, or the performance table's loss model (Wilson's
+    viscous term C_v·D·μ·ω at the cold viscosity) at the first running segment's pressure and speed. The
+    motor: the smallest standard motor for the duty's RMS and peak power; its starting torque the
+    application's multiple of rated torque, or the locked-rotor torque of the standard's design class.
+    """
+    ds, app, duty = ctx.ds, ctx.app, ctx.duty
+    rule = "torque.cold-start"
+    cold = _cold_inputs(ctx)
+    if cold is None:
+        return _not_checked(ctx, rule, "no cold-start temperature given", ds.where("starting_torque"),
+                            app.where("cold_start_temperature"), kind=TORQUE)
+    t, nu, n, i = cold
+    if ds.starting_torque is not None:
+        need, how, where = ds.starting_torque, "stated breakaway torque", ds.where("starting_torque")
+    else:
+        rho = app.oil.density_15
+        est = performance.estimate(ds, duty.pressure[i:i + 1], np.array([n]), np.array([nu]), rho, rho)
+        if est.basis != "table":
+            return _not_checked(ctx, rule, "the datasheet states no breakaway torque and no performance table "
+                                "whose viscous loss gives the torque at the cold viscosity",
+                                ds.where("starting_torque"), app.where("cold_start_temperature"), kind=TORQUE)
+        need = float(est.torque[0])
+        how = (f"loss model of the performance table at {_fmt(ctx, VISCOSITY, nu)} and "
+               f"{_fmt(ctx, PRESSURE, float(duty.pressure[i]))} ({ctx.label(i)})"
+               + (", extrapolated beyond the table" if bool(est.extrapolated[0]) else ""))
+        where = ds.where("performance")
+    if not (math.isfinite(fig.rms_power) and math.isfinite(fig.peak_power)):
+        return _not_checked(ctx, rule, "no motor can be sized without the pump's drive power", where,
+                            kind=TORQUE, measured=need)
+    try:
+        motor = size_motor(fig, app, ctx.settings)[0]  # the motor the comparison shows
+    except ValueError as exc:
+        return _not_checked(ctx, rule, f"no standard motor ({exc})", where, kind=TORQUE, measured=need)
+    stated = app.motor_starting_torque is not None
+    ratio = app.motor_starting_torque if stated else start.locked_rotor_ratio(motor.rated_power, motor.standard)
+    assert ratio is not None
+    rated = start.rated_torque(motor.rated_power, n)
+    have = ratio * rated
+    ok = need <= have
+    source = ("as stated" if stated else
+              "locked-rotor torque of " + ("IEC 60034-12 design N" if motor.standard == "IEC" else
+                                           "NEMA MG 1 design B") + ", from memory")
+    text = (f"the pump needs {_fmt(ctx, TORQUE, need)} to start at {_fmt(ctx, TEMPERATURE, t)} ({how}); the "
+            f"{motor.label} motor gives {ratio:.2g} × {_fmt(ctx, TORQUE, rated)} = {_fmt(ctx, TORQUE, have)} "
+            f"({source})")
+    if not ok:
+        text += ": it may not bring the pump up to speed cold"
+    return Finding(rule, PASS if ok else FAIL, text, need, have, _margin(need, have, True), TORQUE,
+                   ctx.unit(TORQUE), "cold start", 0 if ok else 1, None, (), where,
+                   app.where("motor_starting_torque" if stated else "cold_start_temperature"))
 
 
 def _viscosity(ctx: _Context, nu: np.ndarray) -> list[Finding]:
@@ -1031,11 +1209,18 @@ def check(datasheet: Datasheet, application: Application,
     findings += _speed(ctx)
     findings += _pressure(ctx)
     findings.append(_flow(ctx, est))
-    findings += _inlet(ctx)
+    line = None
+    if application.suction is not None:
+        # the pump draws its displacement every turn; the internal leakage returns inside the pump
+        line = suction.inlet(application.suction, datasheet.displacement * duty.speed, nu, oil.density_15)
+    findings += _inlet(ctx, line)
+    findings.append(_cold_inlet(ctx))
     findings += _viscosity(ctx, nu)
     findings += _temperature(ctx)
     findings += _cleanliness(ctx)
     findings += _torque(ctx, est, nu)
     findings += _rotation(ctx)
     findings.append(_basis(ctx, est))
-    return CheckResult(datasheet, application, findings, _drive(ctx, est, nu), settings)
+    figures = _drive(ctx, est, nu)
+    findings.append(_cold_torque(ctx, figures))
+    return CheckResult(datasheet, application, findings, figures, settings, line)

@@ -30,7 +30,7 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
-from .checks import FAIL, CheckResult, CheckSettings, DriveFigures, check
+from .checks import FAIL, CheckResult, CheckSettings, check, size_motor
 from .datasheet import Datasheet
 from .duty import Application
 from .errors import InputError, Where
@@ -109,26 +109,6 @@ class Comparison:
         return "pass"
 
 
-def _select(fig: DriveFigures, app: Application,
-            settings: CheckSettings) -> tuple[drive.MotorChoice, str, float, str]:
-    """The motor: the smallest standard size carrying the RMS load (over the cycle, or over the worst
-    thermal window of a long one) and the peak; with the text of its loads, the RMS it was sized on
-    and over what."""
-    use = fig.duration > 0
-    power = np.maximum(fig.input_power[use], 0.0)  # a fitted model may dip below zero near standstill
-    window = settings.thermal_window
-    rms = float(drive.worst_window_rms(power, fig.duration[use], window, app.duty.wraps))
-    basis = f"over the worst {window / 60:g} min" if app.duty.cycle_time > window else "over the cycle"
-    peak = max(fig.peak_power, rms)
-    motor = drive.select_motor(rms, peak, app.motor_standard, settings.overload_factor, settings.service_factor)
-    sf = f" × service factor {motor.service_factor:g}" if motor.service_factor != 1 else ""
-    binds = ("below the smallest size" if motor.binding == "smallest size" else
-             f"{motor.binding} bind{'s' if motor.binding != 'RMS and peak' else ''}")
-    note = (f"RMS {motor.rms_load:.0%} of the rating{sf} ({basis}), peak {motor.peak_load:.0%} "
-            f"(≤ {motor.overload_factor:.0%}); {binds}")
-    return motor, note, rms, basis
-
-
 def _candidate(result: CheckResult, app: Application, settings: CheckSettings) -> Candidate:
     fig = result.drive
     notes: list[str] = []
@@ -136,7 +116,7 @@ def _candidate(result: CheckResult, app: Application, settings: CheckSettings) -
         notes.append("no total efficiency stated: torque and power assume no mechanical loss (too low)")
     motor_rms, rms_basis = math.nan, "over the cycle"
     try:
-        motor, motor_note, motor_rms, rms_basis = _select(fig, app, settings)
+        motor, motor_note, motor_rms, rms_basis = size_motor(fig, app, settings)
     except PhysicsError as exc:
         motor = None
         motor_note = f"no standard motor: {exc}"

@@ -72,6 +72,7 @@ class Datasheet:
     price: float | None = None  # in the application's currency
     mass: float | None = None  # [kg]
     noise: float | None = None  # sound pressure level [dB(A)]
+    starting_torque: float | None = None  # torque to start the pump cold (breakaway) [N*m]
     performance: PerformanceTable | None = None
     file: str = ""
     sources: dict[str, Where] = field(default_factory=dict)

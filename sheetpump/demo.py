@@ -57,6 +57,10 @@ MACHINE: dict[str, tuple[Any, ...]] = {
     "flow_margin": (5, "%"),
     "pressure_margin": (0, "%"),
     "speed_margin": (0, "%"),
+    "suction_lift": (0.3, "m"),  # the pump sits on the tank lid, its inlet 0.3 m above the lowest oil level
+    "suction_length": (1.2, "m"),
+    "suction_diameter": (32, "mm"),
+    "suction_fittings": ("entrance, elbow 90, ball valve",),
 }
 
 # name, duration [s], pressure [bar], flow [L/min], speed [rpm] (empty: drive speed),
@@ -112,7 +116,7 @@ PUMPS: tuple[_Pump, ...] = (
          "displacement": (1.75, "in^3/rev"), "speed_min": (600, "rpm"), "speed_max": (3400, "rpm"),
          "speed_rated": (1800, "rpm"), "pressure_continuous": (3200, "psi"), "pressure_intermittent": (3700, "psi"),
          "intermittent_max_duration": (10, "s"), "intermittent_max_share": (10, "%"),
-         "pressure_peak": (4000, "psi"), "inlet_pressure_min": (11.6, "psia"), "inlet_pressure_max": (44, "psia"),
+         "pressure_peak": (4000, "psi"), "inlet_pressure_min": (12.5, "psia"), "inlet_pressure_max": (44, "psia"),
          "viscosity_min": (10, "cSt"), "viscosity_max": (400, "cSt"), "viscosity_min_short": (7, "cSt"),
          "viscosity_max_cold_start": (1600, "cSt"), "temperature_min": (-4, "degF"),
          "temperature_max": (180, "degF"), "cleanliness": ("18/16/13",), "rotation": ("clockwise",),

@@ -12,6 +12,7 @@ from dataclasses import dataclass, field
 import numpy as np
 
 from .errors import Where
+from .suction import SuctionLine
 
 __all__ = ["Application", "Duty", "Oil"]
 
@@ -94,6 +95,8 @@ class Application:
     cold_start_temperature: float | None = None  # lowest oil temperature at a start [K]
     evaluation_years: float = 10.0  # period for the cost over life
     paper_size: str = "A4"  # paper the reports print on: "A4" or "Letter"
+    suction: SuctionLine | None = None  # the suction line; None: the duty's stated inlet pressures
+    motor_starting_torque: float | None = None  # motor's starting torque / rated torque [-]; None: standard's
     defaulted: tuple[str, ...] = ()  # settings not given in the workbook, taken at their defaults
     file: str = ""
     sources: dict[str, Where] = field(default_factory=dict)

@@ -147,6 +147,12 @@ KINDS: dict[str, Kind] = {
     )
 }
 
+# Kinds of the suction line (a lift may be negative: the span bounds its size).
+LENGTH = Kind("length", "m", "m", "1.5 m", span=(1e-4, 1e4))
+DIAMETER = Kind("inner diameter", "mm", "m", "25 mm", span=(0.1, 1e4))
+VELOCITY = Kind("velocity", "m/s", "m/s", "0.8 m/s", span=(1e-6, 1e3))
+KINDS.update({k.name: k for k in (LENGTH, DIAMETER, VELOCITY)})
+
 _NUMBER_UNIT = re.compile(r"^\s*([+-]?(?:\d+\.?\d*|\.\d+)(?:[eE][+-]?\d+)?)\s*(.*?)\s*$")
 _SPELLINGS = (
     ("³", "**3"), ("²", "**2"), ("·", "*"), ("⋅", "*"), ("×", "*"), ("µ", "u"), ("μ", "u"),

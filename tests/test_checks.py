@@ -647,11 +647,11 @@ def test_every_rule_appears_for_every_pump_even_with_blank_ratings():
     nc = {f.rule: f for f in r.findings if f.severity == NOT_CHECKED}
     # (and the cold start: this application states no cold-start temperature)
     assert set(nc) == {"torque.max", "torque.relief", "inlet.min", "inlet.max", "temperature.min",
-                       "temperature.max", "cleanliness", "rotation", "viscosity.cold-start"}
+                       "temperature.max", "cleanliness", "rotation", "viscosity.cold-start", "torque.cold-start"}
     assert "states no shaft torque limit" in nc["torque.max"].message
     assert nc["torque.max"].where.field == "torque_max"  # the cell to fill
     assert nc["viscosity.cold-start"].app_where.field == "cold_start_temperature"
-    assert r.counts()[NOT_CHECKED] == 9
+    assert r.counts()[NOT_CHECKED] == 10
 
 
 def test_a_rule_not_checked_that_matters_makes_the_verdict_at_best_warn():

@@ -43,6 +43,45 @@ def test_demo_verdicts_follow_from_hand_arithmetic(result):
     assert v["Sandlow Pumpen SL-32"] in ("pass", "warn")
 
 
+def test_demo_cold_start_starves_the_inch_pound_pump(result):
+    """At 5 °C the VG 46 oil is thick; the suction line's friction takes the inlet below 12.5 psia."""
+    import json
+
+    from sheetpump.checks import check
+    from sheetpump.workbooks.readers import read_application, read_datasheet
+
+    app = read_application(result.inputs[0])
+    by_label = {read_datasheet(p).label: p for p in result.inputs[1:]}
+    found = {}
+    for label, path in by_label.items():
+        found[label] = {f.rule: f for f in check(read_datasheet(path), app).findings}
+    qf = found["Quillfeather Fluid Power QF-175"]["inlet.cold-start"]
+    # by hand: 1.75 in³ = 28.68 cm³ x 1470 rpm = 42.2 L/min in 32 mm: 0.874 m/s; VG 46 (VI 100) at 5 °C
+    # about 387 mm²/s: Re = 0.874 x 0.032 / 387e-6 = 72, laminar; Hagen–Poiseuille over 1.2 m:
+    # 32 μ L v / d² = 32 x (387e-6 x 870) x 1.2 x 0.874 / 0.032² = 0.110 bar; lift 870 x 9.81 x 0.3 = 0.026 bar
+    assert qf.severity == "fail" and "line friction dominates" in qf.message
+    friction = 32 * (386.5e-6 * 870) * 1.2 * 0.8736 / 0.032**2
+    assert friction == pytest.approx(0.110e5, rel=0.01)
+    # fittings by Darby's 3-K method with the fluids library's coefficients, plus Rennels' sharp entrance 0.57
+    from fluids.fittings import Darby3K
+
+    re, head = 0.8736 * 0.032 / 386.5e-6, 0.5 * 870 * 0.8736**2
+    k = 0.57 + sum(Darby3K(Re=re, name=n, Di=0.032) for n in (
+        "Elbow, 90°, threaded, standard, (r/D = 1)", "Valve, Ball valve, standard, β = 1"))
+    assert qf.measured == pytest.approx(101325 - 870 * 9.80665 * 0.3 - friction - k * head - head, rel=0.002)
+    assert qf.limit == pytest.approx(12.5 * 6894.757, rel=1e-6)  # 12.5 psia
+    assert qf.app_where.field == "suction_diameter"
+    # the others start: their minimum is 0.8 bara (0.7 for the SL-32)
+    for label in ("Marrow & Tepp Hydraulics MT-G28", "Orrin Gearworks OG-22", "Sandlow Pumpen SL-32"):
+        assert found[label]["inlet.cold-start"].severity == "pass"
+        assert found[label]["torque.cold-start"].severity == "pass"
+    book = openpyxl.load_workbook(result.comparison, data_only=True)
+    labels = [row[0] for row in book["Summary"].iter_rows(values_only=True) if row[0]]
+    assert any(str(x).startswith("inlet pressure at the cold start") for x in labels)
+    assert any(str(x).startswith("torque to start cold") for x in labels)
+    assert json.dumps(labels)  # plain texts
+
+
 def test_demo_writes_comparison_and_report(result):
     assert result.comparison.exists() and result.report.exists()
     assert SAFETY_CAUTION in result.report.read_text(encoding="utf-8")

@@ -37,6 +37,7 @@ from ..errors import Where
 from ..files import sha256
 from ..physics import drive, fluid, pump
 from ..units import (
+    ABS_PRESSURE,
     DISPLACEMENT,
     ENERGY,
     FLOW,
@@ -354,6 +355,8 @@ def _summary_rows(comp: Comparison, units: str, duty_refs: list[dict[str, str]],
     line("verdict", [c.result.verdict for c in cands], [c.result.verdict for c in cands])
     line("worst margin", [c.result.worst_margin for c in cands], "spct")
     line("delivered-flow margin", [c.flow_margin for c in cands], "spct")
+    for label, values, style in _suction_rows(cands, units):
+        line(label, values, style)
     rules = [r for r in RULES if any(f.rule == r for c in cands for f in c.result.findings)]
     for rule in rules:
         texts, styles = [], []
@@ -513,6 +516,52 @@ def _points_style(k: int, size: int = 6) -> dict[str, Any]:
     colour = PALETTE[k % len(PALETTE)]
     return {"marker": {"type": MARKERS[k % len(MARKERS)], "size": size, "fill": {"color": colour},
                        "border": {"color": colour}}, "line": {"none": True}}
+
+
+def _suction_rows(cands: Sequence[Candidate], units: str) -> list[tuple[str, list[Any], str]]:
+    """Summary rows of the suction side: the computed inlet pressures and the cold start (issue 18)."""
+    pu, tu = _unit(units, ABS_PRESSURE), _unit(units, TORQUE)
+
+    def measured(c: Candidate, rule: str, kind: Kind, limit: bool = False) -> float | None:
+        f = next((f for f in c.result.findings if f.rule == rule), None)
+        value = None if f is None else (f.limit if limit else f.measured)
+        return _show(value, kind, units) if isinstance(value, float) else None
+
+    rows: list[tuple[str, list[Any], str]] = []
+    if any(c.result.suction is not None for c in cands):
+        rows.append((f"inlet pressure computed from the suction line, lowest of the duty [{pu}]",
+                     [_show(float(np.min(c.result.suction.inlet)), ABS_PRESSURE, units)
+                      if c.result.suction is not None else None for c in cands], "num"))
+        rows.append((f"inlet pressure at the cold start [{pu}]",
+                     [measured(c, "inlet.cold-start", ABS_PRESSURE) for c in cands], "num"))
+    if any(measured(c, "torque.cold-start", TORQUE) is not None for c in cands):
+        rows.append((f"torque to start cold / motor's starting torque [{tu}]",
+                     [f"{need:.1f} / {have:.1f}" if need is not None and have is not None else None
+                      for c in cands
+                      for need, have in [(measured(c, "torque.cold-start", TORQUE),
+                                          measured(c, "torque.cold-start", TORQUE, limit=True))]], "text"))
+    return rows
+
+
+def _suction_assumptions(app: Any) -> list[tuple[str, Any, str | None]]:
+    """Assumptions rows of the suction line, when one is given."""
+    line = app.suction
+    if line is None:
+        return [("inlet pressure", "as stated in the application (no suction line given)", None)]
+    strainer = "none"
+    if line.strainer is not None:
+        dp, q, nu = line.strainer
+        strainer = (f"{dp / 1e5:g} bar at {q * 60000:g} L/min and {nu * 1e6:g} mm^2/s, scaled as a "
+                    f"{line.strainer_law} element")
+    return [
+        ("suction line", f"inner diameter {line.diameter * 1e3:g} mm, length {line.length:g} m, lift "
+                         f"{line.lift:g} m, reservoir {line.reservoir_pressure / 1e5:.4g} bara", None),
+        ("suction fittings", f"{line.fittings or 'none'} (K = {line.k_re:g}/Re + {line.k_inf:.3g})", None),
+        ("suction strainer", strainer, None),
+        ("inlet pressure", "reservoir - rho g lift - Darcy-Weisbach friction (64/Re laminar, Colebrook by "
+                           "Clamond's method turbulent, linear between Re 2000 and 4000) - fittings (3-K method, "
+                           "fluids.fittings) - strainer - velocity head, at the pump's geometric flow", None),
+    ]
 
 
 def _curves_and_charts(book: Any, comp: Comparison, units: str, duty_sheets: list[Any], paper: str) -> None:
@@ -794,6 +843,7 @@ def _assumptions(book: Any, comp: Comparison, inputs: Sequence[str | os.PathLike
         ("oil viscosity index", oil.viscosity_index, "0.#"),
         ("oil density at 15 degC [kg/m^3]", oil.density_15, "#,##0.#"),
         ("viscosity against temperature", "Walther relation, ASTM D341", None),
+        *_suction_assumptions(app),
         ("motor standard", app.motor_standard, None),
         ("motor sizing rule", "smallest standard rating with rating x service factor >= RMS input power (over "
          "the cycle, or over the worst thermal window of a longer one) and rating x overload factor >= peak, "

@@ -34,6 +34,7 @@ import numpy as np
 from ..datasheet import Datasheet, PerformanceTable
 from ..duty import Application, Duty, Oil
 from ..errors import InputError, Where
+from ..suction import line_from_fields
 from ..units import Kind, check_span, physical_unit, split_number, unit_factor
 from .safe import open_workbook
 from .series import column_letter, match_columns, parse_header, read_series
@@ -750,7 +751,11 @@ def read_application(path: str | os.PathLike[str]) -> Application:
     if drive is not None:
         low = high = drive
     oil = _oil(got, w)
-    defaults = {"speed": drive, "temperature": got["oil_temperature"], "inlet_pressure": got["inlet_pressure"]}
+    suction = line_from_fields(got, w)
+    inlet_default = got["inlet_pressure"]
+    if suction is not None and inlet_default is None:
+        inlet_default = suction.reservoir_pressure  # a placeholder: the checker computes the inlet pressure
+    defaults = {"speed": drive, "temperature": got["oil_temperature"], "inlet_pressure": inlet_default}
     wraps = got["duty_repeats"] != "no"
     duty_sheet = book.sheet(DUTY_SHEET, required=got["duty_series"] is None)
     if got["duty_series"] is not None:
@@ -771,7 +776,7 @@ def read_application(path: str | os.PathLike[str]) -> Application:
     else:
         duty = _segments(book, duty_sheet, defaults, wraps)
     kw = {fields.fields[k].name: v for k, v in got.items() if v is not None and fields.fields[k].name in _APP_ATTRS}
-    kw.update(speed_min=low, speed_max=high)
+    kw.update(speed_min=low, speed_max=high, suction=suction, motor_starting_torque=got["motor_starting_torque"])
     sources = fields.sources(got)
     if drive is not None:
         sources["speed_min"] = sources["speed_max"] = w("drive_speed")

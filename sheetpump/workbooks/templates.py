@@ -76,12 +76,15 @@ UNITS: dict[Kind, tuple[str, ...]] = {
     u.DENSITY: ("kg/m^3", "g/cm^3", "lb/ft^3"),
     u.DURATION: ("s", "min", "h", "ms"),
     u.MASS: ("kg", "lb"),
+    u.LENGTH: ("m", "mm", "ft", "in"),
+    u.DIAMETER: ("mm", "in", "m"),
 }
 FRACTION_UNITS = ("%", "fraction")
 ROTATIONS = ("clockwise", "counter-clockwise", "either")
 MOTOR_STANDARDS = ("IEC", "NEMA")
 YES_NO = ("yes", "no")
 PAPER_CHOICES = tuple(PAPER_SIZES)  # the paper sizes the writers know
+STRAINER_LAWS = ("laminar", "turbulent")
 VG_GRADES = ("10", "15", "22", "32", "46", "68", "100", "150")
 
 
@@ -194,6 +197,8 @@ DATASHEET_FIELDS: tuple[Field, ...] = (
        "Speed the Performance sheet was measured at (unless it has a speed column)."),
     _f("Performance table", "performance_viscosity", u.VISCOSITY,
        "Viscosity the Performance sheet was measured at (unless it has a viscosity column)."),
+    _f("Starting", "starting_torque", u.TORQUE, "Torque to start the pump cold (breakaway), where stated. "
+       "Empty: from the performance table's viscous loss at the cold-start viscosity."),
 )
 
 #: The "Machine" sheet of an application workbook. Keys differ from attributes where a plain word reads
@@ -252,6 +257,26 @@ APPLICATION_FIELDS: tuple[Field, ...] = (
        check="non_negative"),
     _f("Margins", "speed_margin", FRACTION, "Required headroom inside the speed range. Empty: 0.",
        check="non_negative"),
+    # The suction line: with it the inlet pressure is computed for each segment and the cold start.
+    _f("Suction line", "suction_lift", u.LENGTH, "Height of the pump's inlet above the oil level; negative "
+       "when the pump sits below it (flooded). With the line's diameter and length: the inlet pressure is "
+       "computed. Empty line: the stated inlet pressure is used.", check=""),
+    _f("Suction line", "reservoir_pressure", u.ABS_PRESSURE, "Absolute pressure on the oil in the reservoir. "
+       "Empty: 1.013 bara (atmospheric)."),
+    _f("Suction line", "suction_length", u.LENGTH, "Length of the suction line."),
+    _f("Suction line", "suction_diameter", u.DIAMETER, "Inner diameter of the suction line."),
+    _f("Suction line", "suction_fittings", TEXT, "Fittings by trade name, separated by commas (entrance, "
+       "elbow 90, elbow 90 long, elbow 45, bend 180, tee run, tee branch, ball valve, gate valve, check valve; "
+       "'2 x elbow 90' for two), or the sum of their loss coefficients K as a number."),
+    _f("Suction line", "strainer_dp", u.PRESSURE, "Pressure drop of the suction strainer at the flow and "
+       "viscosity below (scaled with flow and viscosity as a laminar element)."),
+    _f("Suction line", "strainer_flow", u.FLOW, "Flow the strainer's pressure drop is stated at."),
+    _f("Suction line", "strainer_viscosity", u.VISCOSITY, "Viscosity the strainer's pressure drop is stated at."),
+    _f("Suction line", "strainer_law", CHOICE, "How the strainer's drop scales: laminar (with flow and "
+       "viscosity) or turbulent (with flow squared). Empty: laminar.", choices=STRAINER_LAWS),
+    _f("Suction line", "motor_starting_torque", COUNT, "Motor's starting torque as a multiple of its rated "
+       "torque (e.g. 0.6 for a star-delta start). Empty: the locked-rotor torque of the motor standard's "
+       "design (IEC design N, NEMA design B).", label="x rated", span=(0.05, 20)),
 )
 
 #: Columns of the "Performance" sheet.

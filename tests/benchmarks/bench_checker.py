@@ -27,6 +27,7 @@ from sheetpump.checks import check
 from sheetpump.datasheet import Datasheet
 from sheetpump.duty import Application, Duty, Oil
 from sheetpump.physics import fluid
+from sheetpump.suction import SuctionLine
 
 from .common import compare, median_time, row
 
@@ -60,8 +61,28 @@ DATASHEET = Datasheet(
 OIL = Oil(46e-6, 313.15, 6.8e-6, 373.15)  # an ISO VG 46 mineral oil (invented)
 
 
-def _application(duty: Duty) -> Application:
-    return Application("invented press", duty, OIL, relief_setting=260e5)
+#: An invented suction line: 0.3 m lift, 1.2 m of 32 mm, K1 = 1100 and K∞ = 1.3 (entrance, elbow, ball valve).
+LINE = SuctionLine(0.032, 1.2, 0.3, 101325.0, 1100.0, 1.3, "entrance, elbow 90, ball valve")
+
+
+def _application(duty: Duty, line: SuctionLine | None = None) -> Application:
+    return Application("invented press", duty, OIL, relief_setting=260e5, suction=line,
+                       cold_start_temperature=278.15 if line is not None else None)
+
+
+def numpy_line(duty: Duty, ds: Datasheet = DATASHEET, line: SuctionLine = LINE) -> dict[str, Any]:
+    """The suction line's inlet pressure by hand in numpy (the flow stays laminar: 64/Re), and its rules."""
+    out = numpy_rules(duty, ds)
+    nu = fluid.viscosity_at(duty.temperature, OIL.nu1, OIL.t1, OIL.nu2, OIL.t2)
+    q = ds.displacement * duty.speed
+    v = q / (math.pi * line.diameter**2 / 4)
+    re = v * line.diameter / nu
+    head = 0.5 * OIL.density_15 * v * v
+    inlet = (line.reservoir_pressure - OIL.density_15 * 9.80665 * line.lift
+             - (64 / re * line.length / line.diameter + line.k_re / re + line.k_inf + 1) * head)
+    out["inlet"] = int(np.count_nonzero((inlet < ds.inlet_pressure_min) | (inlet > ds.inlet_pressure_max)))
+    out["velocity"] = int(np.count_nonzero(v > 1.2)), float(inlet.min()), float(re.max())
+    return out
 
 
 def numpy_rules(duty: Duty, ds: Datasheet = DATASHEET) -> dict[str, Any]:
@@ -161,6 +182,16 @@ def run() -> list[dict[str, Any]]:
 
     ours, theirs = compare(lambda: check(DATASHEET, app), lambda: numpy_rules(duty), repeat=7)
     rows = [row("check() on a 1e6-sample duty log", ours, theirs, "one numpy pass, same rules", at_most=10)]
+
+    app_line = _application(duty, LINE)
+    with_line = check(DATASHEET, app_line)
+    ref_line = numpy_line(duty)
+    assert ref_line["velocity"][2] < 2000  # laminar throughout: the hand formula holds
+    lowest = next(f for f in with_line.findings if f.rule == "inlet.min").measured
+    assert math.isclose(lowest, ref_line["velocity"][1], rel_tol=1e-9)
+    ours_line, theirs_line = compare(lambda: check(DATASHEET, app_line), lambda: numpy_line(duty), repeat=7)
+    rows.append(row("check() with a suction line, 1e6 samples", ours_line, theirs_line,
+                    "one numpy pass, same rules and line", at_most=10))
 
     m = N // 10
     lists = [a[:m].tolist() for a in (duty.pressure, duty.speed, duty.flow, duty.temperature,

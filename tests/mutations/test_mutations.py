@@ -43,6 +43,9 @@ FEEDS = {
     "drive_speed_max": {"speed_min"}, "oil_temperature": {"duty"}, "inlet_pressure": {"duty"},
     "duty_series": {"duty"}, "duty_series_sheet": {"duty"}, "duty_series_max_step": {"duty"},
     "duty_repeats": {"duty"}, "performance_speed": {"performance"}, "performance_viscosity": {"performance"},
+    **{key: {"suction"} for key in ("suction_lift", "reservoir_pressure", "suction_length", "suction_diameter",
+                                    "suction_fittings", "strainer_dp", "strainer_flow", "strainer_viscosity",
+                                    "strainer_law")},
 }
 
 #: Cases expected to fail until a fix lands (ids); empty: every mutation is handled.
