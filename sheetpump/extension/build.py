@@ -1,0 +1,232 @@
+"""The LibreOffice extension (``.oxt``), built from the declarations.
+
+An ``.oxt`` is a zip holding:
+
+- ``description.xml``: the extension's identifier and version (sheetpump's version);
+- ``META-INF/manifest.xml``: what each file is;
+- ``sheetpump.rdb``: the type library with the interface whose methods are the cell functions
+  (:mod:`sheetpump.extension.typelib`); every argument is a UNO ``any``, which Calc treats as optional
+  and through which it passes numbers, texts and whole ranges;
+- ``Addins.xcu``: Calc's add-in configuration: per function its display name, description, category and
+  *compatibility name*, and per argument its name and help (the texts of the xlwings face);
+- ``sheetpump.components``: registers the component (passively: nothing of it runs at install time);
+- ``sheetpump_calc.py``: the Python component. It records where this sheetpump and its packages live
+  (LibreOffice may run another Python than the one sheetpump is installed in), imports sheetpump on
+  the first call, and hands each call to :func:`sheetpump.extension.runtime.call`.
+
+The compatibility name is what makes one workbook work in Excel and in Calc: Calc stores an add-in
+function in an .xlsx under its compatibility name for the locale en-US and, reading an .xlsx, maps a
+function name equal to a compatibility name back to the add-in. Each function's compatibility name is
+its own name (``SP_GEOMETRIC_FLOW``), which is also what xlwings registers in Excel.
+"""
+
+from __future__ import annotations
+
+import os
+import site
+import sys
+import zipfile
+from pathlib import Path
+from xml.sax.saxutils import escape
+
+from .. import SAFETY_CAUTION, __version__
+from ..calc import Calculation
+from ..catalogue import CATALOGUE
+from ..files import atomic_path
+from .typelib import interface_library
+
+__all__ = ["IDENTIFIER", "IMPLEMENTATION", "INTERFACE", "build", "contents", "recorded_paths"]
+
+#: The extension's identifier (unopkg lists it), the component's service name and its interface.
+IDENTIFIER = "org.sheetpump.calc"
+IMPLEMENTATION = "org.sheetpump.calc.CellFunctions"
+INTERFACE = "org.sheetpump.calc.XCellFunctions"
+#: Calc's own category for add-in functions: Calc knows a fixed list of categories and puts any other
+#: name here too (so the category "sheetpump" of the xlwings face cannot be had in Calc 7.4).
+CALC_CATEGORY = "Add-In"
+CATEGORY = "sheetpump"
+
+_COMPONENT = "sheetpump_calc.py"
+_COMPONENTS = "sheetpump.components"
+_TYPES = "sheetpump.rdb"
+_ADDINS = "Addins.xcu"
+_DATE = (2024, 1, 1, 0, 0, 0)  # fixed: the same sheetpump gives the same bytes
+
+
+def parameters(calc: Calculation) -> list[str]:
+    """The component method's parameter names: the declared arguments, then ``unit``."""
+    return [name for name, _ in calc.argument_help()]
+
+
+def recorded_paths() -> list[str]:
+    """Where this sheetpump and its packages are: the folder holding ``sheetpump``, then site folders."""
+    here = str(Path(__file__).resolve().parents[2])
+    sites = [p for p in (*site.getsitepackages(), site.getusersitepackages()) if os.path.isdir(p)]
+    return [here, *(p for p in sites if p != here)]
+
+
+def _localized(name: str, text: str) -> str:
+    return f'<prop oor:name="{name}"><value xml:lang="en-US">{escape(text)}</value></prop>'
+
+
+def addins_xcu() -> str:
+    """Calc's add-in configuration for every declared function."""
+    out = ['<?xml version="1.0" encoding="UTF-8"?>',
+           '<oor:component-data xmlns:oor="http://openoffice.org/2001/registry" '
+           'xmlns:xs="http://www.w3.org/2001/XMLSchema" oor:name="CalcAddIns" oor:package="org.openoffice.Office">',
+           '<node oor:name="AddInInfo">',
+           f'<node oor:name="{IMPLEMENTATION}" oor:op="replace">',
+           '<node oor:name="AddInFunctions">']
+    for calc in CATALOGUE.values():
+        out.append(f'<node oor:name="{calc.name}" oor:op="replace">')
+        out.append(_localized("DisplayName", calc.name))
+        out.append(_localized("Description", f"{calc.help} [{calc.result.name}"
+                              + (f", default {calc.result.default}]" if calc.result.default else "]")))
+        out.append(f'<prop oor:name="Category"><value>{CALC_CATEGORY}</value></prop>')
+        # (CategoryDisplayName, in the schema but ignored by Calc, is left out.)
+        out.append(_localized("CompatibilityName", calc.name))
+        out.append('<node oor:name="Parameters">')
+        for name, text in calc.argument_help():
+            out.append(f'<node oor:name="{name}" oor:op="replace">{_localized("DisplayName", name)}'
+                       f'{_localized("Description", text)}</node>')
+        out.append("</node></node>")
+    out.append("</node></node></node></oor:component-data>")
+    return "\n".join(out) + "\n"
+
+
+def description_xml() -> str:
+    return ('<?xml version="1.0" encoding="UTF-8"?>\n'
+            '<description xmlns="http://openoffice.org/extensions/description/2006" '
+            'xmlns:xlink="http://www.w3.org/1999/xlink">\n'
+            f'  <identifier value="{IDENTIFIER}"/>\n'
+            f'  <version value="{__version__}"/>\n'
+            '  <display-name><name lang="en">sheetpump cell functions</name></display-name>\n'
+            '</description>\n')
+
+
+def components_xml() -> str:
+    """The component's registration (passive: LibreOffice reads it, nothing runs at install time)."""
+    return ('<?xml version="1.0" encoding="UTF-8"?>\n'
+            '<components xmlns="http://openoffice.org/2010/uno-components">\n'
+            f' <component loader="com.sun.star.loader.Python" uri="{_COMPONENT}">\n'
+            f'  <implementation name="{IMPLEMENTATION}"><service name="{IMPLEMENTATION}"/></implementation>\n'
+            ' </component>\n</components>\n')
+
+
+def manifest_xml() -> str:
+    entries = [("application/vnd.sun.star.uno-typelibrary;type=RDB", _TYPES),
+               ("application/vnd.sun.star.configuration-data", _ADDINS),
+               ("application/vnd.sun.star.uno-components", _COMPONENTS)]
+    lines = "".join(f' <manifest:file-entry manifest:media-type="{t}" manifest:full-path="{p}"/>\n'
+                    for t, p in entries)
+    return ('<?xml version="1.0" encoding="UTF-8"?>\n'
+            '<manifest:manifest xmlns:manifest="http://openoffice.org/2001/manifest">\n'
+            f"{lines}</manifest:manifest>\n")
+
+
+_COMPONENT_HEAD = '''\
+"""sheetpump's cell functions in LibreOffice Calc: the extension's component.
+
+Written by `sheetpump extension` (sheetpump {version}, Python {python}); rebuild rather than edit.
+{caution}
+"""
+
+import site
+import sys
+
+import uno
+import unohelper
+from com.sun.star.lang import XServiceInfo
+from org.sheetpump.calc import XCellFunctions
+
+PATHS = {paths!r}
+BUILT_WITH = "sheetpump {version} in Python {python} ({executable})"
+IMPLEMENTATION = {implementation!r}
+_state = {{}}
+
+
+def _load():
+    for path in reversed(PATHS):
+        if path not in sys.path:
+            site.addsitedir(path)  # also runs the folder's .pth files (an editable install)
+    for path in reversed(PATHS[:1]):
+        if path in sys.path:
+            sys.path.remove(path)
+        sys.path.insert(0, path)
+    try:
+        from sheetpump.extension.runtime import call
+    except Exception as exc:  # gone, moved, or built for another Python
+        text = str(exc).splitlines()[0][:160] if str(exc) else type(exc).__name__
+        _state["problem"] = ("#SP! sheetpump could not be loaded from " + PATHS[0] + " (" + text
+                             + "); built with " + BUILT_WITH
+                             + ": run 'sheetpump extension --install' again from the Python where it is installed")
+        return None
+    _state["call"] = call
+    return call
+
+
+def _call(name, values):
+    call = _state.get("call") or _load()
+    if call is None:
+        return _state["problem"]
+    out = call(name, values)
+    if type(out) is tuple:
+        return uno.Any("[][]any", out)
+    return out
+
+
+class CellFunctions(unohelper.Base, XCellFunctions, XServiceInfo):
+    def __init__(self, ctx=None):
+        self.ctx = ctx
+
+    def getImplementationName(self):
+        return IMPLEMENTATION
+
+    def supportsService(self, name):
+        return name == IMPLEMENTATION
+
+    def getSupportedServiceNames(self):
+        return (IMPLEMENTATION,)
+'''
+
+
+def component_py() -> str:
+    """The Python component: one method per declared function, each handing its arguments on."""
+    text = _COMPONENT_HEAD.format(
+        version=__version__, python=".".join(map(str, sys.version_info[:3])), executable=sys.executable,
+        paths=recorded_paths(), implementation=IMPLEMENTATION, caution=SAFETY_CAUTION)
+    methods = []
+    for calc in CATALOGUE.values():
+        names = ", ".join(parameters(calc))
+        methods.append(f"\n    def {calc.name}(self, {names}):\n"
+                       f"        return _call({calc.name!r}, ({names},))\n")
+    tail = ("\n\ng_ImplementationHelper = unohelper.ImplementationHelper()\n"
+            "g_ImplementationHelper.addImplementation(CellFunctions, IMPLEMENTATION, (IMPLEMENTATION,))\n")
+    return text + "".join(methods) + tail
+
+
+def type_library() -> bytes:
+    """The ``.rdb`` holding the interface of the cell functions."""
+    return interface_library(INTERFACE, [(calc.name, parameters(calc)) for calc in CATALOGUE.values()])
+
+
+def contents() -> dict[str, bytes]:
+    """Every file of the extension by its path inside the ``.oxt``."""
+    return {
+        "META-INF/manifest.xml": manifest_xml().encode(),
+        "description.xml": description_xml().encode(),
+        _TYPES: type_library(),
+        _ADDINS: addins_xcu().encode(),
+        _COMPONENTS: components_xml().encode(),
+        _COMPONENT: component_py().encode(),
+    }
+
+
+def build(target: str | os.PathLike[str]) -> Path:
+    """Write the extension to ``target`` (atomically) and return its path."""
+    with atomic_path(target) as tmp:
+        with zipfile.ZipFile(tmp, "w", zipfile.ZIP_DEFLATED) as oxt:
+            for name, data in contents().items():
+                oxt.writestr(zipfile.ZipInfo(name, _DATE), data, zipfile.ZIP_DEFLATED)
+    return Path(target)
+
