@@ -16,7 +16,9 @@ A job: ``{"pipe": NAME, "steps": [...]}``; each step one of
 - ``{"set": [SHEET, CELL, VALUE]}`` writes a number or text into a cell;
 - ``{"array": [SHEET, RANGE, FORMULA]}`` enters an array formula over a range;
 - ``{"formula": [SHEET, CELL, FORMULA]}`` enters a formula (English function names, ``;`` or ``,``);
-- ``{"save": PATH}`` saves as .xlsx (Calc's "Calc Office Open XML" filter);
+- ``{"reenter": [NAME, ...]}`` enters every formula naming one of these functions again through the API,
+  names in upper case, and reports how many (see :func:`_reenter`);
+- ``{"save": PATH}`` saves a copy as .xlsx (Calc's "Calc Office Open XML" filter);
 - ``{"functions": [NAME, ...]}`` gives the Function Wizard's description of each function (its
   category id and argument names and help), from ``com.sun.star.sheet.FunctionDescriptions``.
 
@@ -27,6 +29,7 @@ from __future__ import annotations
 
 import json
 import os
+import re
 import subprocess
 import sys
 import time
@@ -44,14 +47,18 @@ def uno_python() -> str:
 
 def run_job(soffice: str, profile: Path, steps: list[dict[str, Any]], timeout: float = 600.0) -> list[Any]:
     """Start a headless soffice on ``profile``, run ``steps`` through this file, stop soffice."""
+    from sheetpump.extension.office import office_environment  # here: main() runs without sheetpump
+
     pipe = f"sheetpump-{uuid.uuid4().hex}"
+    env = office_environment()
     office = subprocess.Popen(
         [soffice, f"-env:UserInstallation={profile.resolve().as_uri()}", "--headless", "--invisible",
          "--norestore", "--nolockcheck", "--nodefault", f"--accept=pipe,name={pipe};urp;"],
-        stdin=subprocess.DEVNULL, stdout=subprocess.DEVNULL, stderr=subprocess.DEVNULL, start_new_session=True)
+        stdin=subprocess.DEVNULL, stdout=subprocess.DEVNULL, stderr=subprocess.DEVNULL, start_new_session=True,
+        env=env)
     try:
         done = subprocess.run([uno_python(), __file__], input=json.dumps({"pipe": pipe, "steps": steps}),
-                              capture_output=True, text=True, timeout=timeout, check=False)
+                              capture_output=True, text=True, timeout=timeout, check=False, env=env)
         if done.returncode != 0:
             raise RuntimeError(f"the UNO script failed:\n{done.stderr}\n{done.stdout}")
         return json.loads(done.stdout)
@@ -90,6 +97,31 @@ def _value(cell: Any) -> Any:
     return cell.getValue()
 
 
+_NAME = re.compile(r"(?<![\w.])([A-Za-z_][\w.]*)(?=\()")
+
+
+def _reenter(doc: Any, names: set[str]) -> int:
+    """Enter again, through the API, every formula that calls one of ``names``: the count.
+
+    LibreOffice 7.4 reads an .xlsx formula naming an add-in function by its compatibility name as an
+    unknown name (#NAME?, shown in lower case); the API's formula language maps compatibility names, so
+    the same formula set through the API calls the add-in. Later LibreOffice versions map the name when
+    reading the file, and then there is nothing to do here.
+    """
+    count = 0
+    for sheet in doc.Sheets:
+        cells = sheet.queryContentCells(16).Cells.createEnumeration()  # 16: CellFlags.FORMULA
+        while cells.hasMoreElements():
+            cell = cells.nextElement()
+            formula = cell.getFormula()
+            mended = _NAME.sub(lambda m: m.group(1).upper() if m.group(1).upper() in names else m.group(1),
+                               formula)
+            if mended != formula:
+                cell.setFormula(mended)
+                count += 1
+    return count
+
+
 def main() -> None:
     import uno  # type: ignore[import-not-found]
     from com.sun.star.beans import PropertyValue  # type: ignore[import-not-found]
@@ -112,6 +144,8 @@ def main() -> None:
             if "open" in step:
                 url = uno.systemPathToFileUrl(str(Path(step["open"]).resolve()))
                 doc = desktop.loadComponentFromURL(url, "_blank", 0, props(Hidden=True))
+                if doc is None:
+                    raise RuntimeError(f"LibreOffice could not open {step['open']}")
                 results.append(None)
             elif "calculate" in step:
                 start = time.perf_counter()
@@ -139,6 +173,8 @@ def main() -> None:
                 sheet, ref, formula = step["formula"]
                 doc.Sheets.getByName(sheet).getCellRangeByName(ref).setFormula(formula)
                 results.append(None)
+            elif "reenter" in step:
+                results.append(_reenter(doc, set(step["reenter"])))
             elif "save" in step:
                 url = uno.systemPathToFileUrl(str(Path(step["save"]).resolve()))
                 doc.storeToURL(url, props(FilterName="Calc Office Open XML"))

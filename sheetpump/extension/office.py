@@ -17,7 +17,7 @@ from pathlib import Path
 
 from ..errors import InputError
 
-__all__ = ["SOFFICE_ENV", "Office", "find_office", "python_mismatch"]
+__all__ = ["SOFFICE_ENV", "Office", "find_office", "office_environment", "python_mismatch"]
 
 #: Optional path of the soffice executable, when it is not on PATH (the tests use the same variable).
 SOFFICE_ENV = "SHEETPUMP_SOFFICE"
@@ -32,6 +32,25 @@ _BRIDGE_PACKAGE = "python3-uno"
 _TIMEOUT = 300.0
 
 
+def office_environment() -> dict[str, str]:
+    """The environment to start LibreOffice with: this one without an active virtual environment.
+
+    LibreOffice's embedded Python finds its home through ``python3`` on PATH; an activated virtual
+    environment's ``bin`` first on PATH makes it take that environment's (other) Python installation for
+    its own, and loading Python components then fails at random (seen with LibreOffice 7.4 as
+    ``std::bad_alloc`` from its Python loader). The extension finds sheetpump through the paths recorded
+    at build time, so it needs nothing of the virtual environment.
+    """
+    env = {k: v for k, v in os.environ.items() if k not in ("VIRTUAL_ENV", "PYTHONHOME", "PYTHONPATH")}
+    venv_bins = {os.path.join(sys.prefix, "bin"), os.path.join(sys.prefix, "Scripts")} if sys.prefix != sys.base_prefix else set()
+    if os.environ.get("VIRTUAL_ENV"):
+        venv_bins |= {os.path.join(os.environ["VIRTUAL_ENV"], "bin"), os.path.join(os.environ["VIRTUAL_ENV"], "Scripts")}
+    paths = [p for p in env.get("PATH", "").split(os.pathsep) if p and os.path.normpath(p) not in
+             {os.path.normpath(b) for b in venv_bins}]
+    env["PATH"] = os.pathsep.join(paths)
+    return env
+
+
 @dataclass(frozen=True)
 class Office:
     """An installed LibreOffice: its program folder, ``unopkg`` and the Python its bridge runs."""
@@ -44,7 +63,7 @@ class Office:
     def _run(self, command: list[str], what: str) -> subprocess.CompletedProcess[str]:
         try:
             done = subprocess.run(command, capture_output=True, text=True, timeout=_TIMEOUT,
-                                  stdin=subprocess.DEVNULL, check=False)
+                                  stdin=subprocess.DEVNULL, check=False, env=office_environment())
         except (OSError, subprocess.TimeoutExpired) as exc:
             raise InputError(f"LibreOffice could not {what} the extension: {exc}") from None
         if done.returncode != 0:
@@ -79,7 +98,7 @@ class Office:
             [str(self.soffice), *env, "--headless", "--invisible", "--norestore", "--nolockcheck",
              "--nodefault", f"--accept=pipe,name={pipe};urp;"],
             stdin=subprocess.DEVNULL, stdout=subprocess.DEVNULL, stderr=subprocess.DEVNULL,
-            start_new_session=True)
+            start_new_session=True, env=office_environment())
         try:
             script = Path(__file__).with_name("manager.py")
             args = [pipe, action, identifier] + ([oxt.resolve().as_uri()] if oxt is not None else [])
