@@ -4,8 +4,6 @@
 :mod:`.runtime` is what its component calls, :mod:`.office` finds LibreOffice and its ``unopkg``, and
 :mod:`.manager` installs through LibreOffice's extension manager where ``unopkg`` refuses (root).
 
-Status: work in progress. Building, installing (``unopkg``, or the extension manager for root) and the
-type library (read back by LibreOffice's own type manager) work; creating the Python component inside
-LibreOffice 7.4 still fails (``std::bad_alloc`` from the Python loader, then a crash with the full
-interface), so Calc does not compute the functions yet. See the branch's report.
+LibreOffice is started without an activated virtual environment (:func:`.office.office_environment`):
+its embedded Python would take that environment's Python for its own and fail to load components.
 """

@@ -170,9 +170,10 @@ def _call(name, values):
     if call is None:
         return _state["problem"]
     out = call(name, values)
-    if type(out) is tuple:
-        return uno.Any("[][]any", out)
-    return out
+    # Every method returns sequence<sequence<any>> (rows): a range result as it is, one value as 1 x 1,
+    # which Calc shows in a single cell. (pyuno turns a returned tuple into that declared type; a
+    # result declared "any" could not carry a range, and uno.Any is refused as a return value.)
+    return out if type(out) is tuple else ((out,),)
 
 
 class CellFunctions(unohelper.Base, XCellFunctions, XServiceInfo):
@@ -206,8 +207,9 @@ def component_py() -> str:
 
 
 def type_library() -> bytes:
-    """The ``.rdb`` holding the interface of the cell functions."""
-    return interface_library(INTERFACE, [(calc.name, parameters(calc)) for calc in CATALOGUE.values()])
+    """The ``.rdb`` holding the interface of the cell functions: ``any`` arguments, rows of ``any`` results."""
+    return interface_library(INTERFACE, [(calc.name, parameters(calc)) for calc in CATALOGUE.values()],
+                             result="[][]any")
 
 
 def contents() -> dict[str, bytes]:
