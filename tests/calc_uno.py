@@ -9,16 +9,14 @@ the steps of a job read as JSON from standard input and prints the results as JS
 
 A job: ``{"pipe": NAME, "steps": [...]}``; each step one of
 
-- ``{"open": PATH}`` loads a workbook (hidden), ``{"calculate": true}`` recomputes every formula
+- ``{"open": PATH}`` loads a workbook (hidden; closing the one open before), ``{"calculate": true}`` recomputes every formula
   (``calculateAll``) and reports the seconds it took in ``"seconds"``;
 - ``{"read": [[SHEET, CELL], ...]}`` gives each cell's value (a number, a text, or an error text such as
   ``"Err:504"``) and formula;
 - ``{"set": [SHEET, CELL, VALUE]}`` writes a number or text into a cell;
 - ``{"array": [SHEET, RANGE, FORMULA]}`` enters an array formula over a range;
 - ``{"formula": [SHEET, CELL, FORMULA]}`` enters a formula (English function names, ``;`` or ``,``);
-- ``{"reenter": [NAME, ...]}`` enters every formula naming one of these functions again through the API,
-  names in upper case, and reports how many (see :func:`_reenter`);
-- ``{"save": PATH}`` saves a copy as .xlsx (Calc's "Calc Office Open XML" filter);
+- ``{"save": PATH}`` saves as .xlsx (File > Save As with Calc's "Calc Office Open XML" filter);
 - ``{"functions": [NAME, ...]}`` gives the Function Wizard's description of each function (its
   category id and argument names and help), from ``com.sun.star.sheet.FunctionDescriptions``.
 
@@ -29,7 +27,6 @@ from __future__ import annotations
 
 import json
 import os
-import re
 import subprocess
 import sys
 import time
@@ -97,31 +94,6 @@ def _value(cell: Any) -> Any:
     return cell.getValue()
 
 
-_NAME = re.compile(r"(?<![\w.])([A-Za-z_][\w.]*)(?=\()")
-
-
-def _reenter(doc: Any, names: set[str]) -> int:
-    """Enter again, through the API, every formula that calls one of ``names``: the count.
-
-    LibreOffice 7.4 reads an .xlsx formula naming an add-in function by its compatibility name as an
-    unknown name (#NAME?, shown in lower case); the API's formula language maps compatibility names, so
-    the same formula set through the API calls the add-in. Later LibreOffice versions map the name when
-    reading the file, and then there is nothing to do here.
-    """
-    count = 0
-    for sheet in doc.Sheets:
-        cells = sheet.queryContentCells(16).Cells.createEnumeration()  # 16: CellFlags.FORMULA
-        while cells.hasMoreElements():
-            cell = cells.nextElement()
-            formula = cell.getFormula()
-            mended = _NAME.sub(lambda m: m.group(1).upper() if m.group(1).upper() in names else m.group(1),
-                               formula)
-            if mended != formula:
-                cell.setFormula(mended)
-                count += 1
-    return count
-
-
 def main() -> None:
     import uno  # type: ignore[import-not-found]
     from com.sun.star.beans import PropertyValue  # type: ignore[import-not-found]
@@ -143,6 +115,8 @@ def main() -> None:
         for step in job["steps"]:
             if "open" in step:
                 url = uno.systemPathToFileUrl(str(Path(step["open"]).resolve()))
+                if doc is not None:
+                    doc.close(True)
                 doc = desktop.loadComponentFromURL(url, "_blank", 0, props(Hidden=True))
                 if doc is None:
                     raise RuntimeError(f"LibreOffice could not open {step['open']}")
@@ -173,11 +147,9 @@ def main() -> None:
                 sheet, ref, formula = step["formula"]
                 doc.Sheets.getByName(sheet).getCellRangeByName(ref).setFormula(formula)
                 results.append(None)
-            elif "reenter" in step:
-                results.append(_reenter(doc, set(step["reenter"])))
             elif "save" in step:
                 url = uno.systemPathToFileUrl(str(Path(step["save"]).resolve()))
-                doc.storeToURL(url, props(FilterName="Calc Office Open XML"))
+                doc.storeAsURL(url, props(FilterName="Calc Office Open XML"))
                 results.append(None)
             elif "functions" in step:
                 descriptions = ctx.ServiceManager.createInstanceWithContext(

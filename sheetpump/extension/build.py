@@ -41,12 +41,18 @@ __all__ = ["IDENTIFIER", "IMPLEMENTATION", "INTERFACE", "build", "contents", "re
 IDENTIFIER = "org.sheetpump.calc"
 IMPLEMENTATION = "org.sheetpump.calc.CellFunctions"
 INTERFACE = "org.sheetpump.calc.XCellFunctions"
+#: The job that mends SP_ names in .xlsx formulas on opening and saving (see the component).
+NAMES_JOB = "org.sheetpump.calc.Names"
+#: The document events it runs on: opening, and after Save and Save As (not after "save a copy", whose
+#: target LibreOffice does not tell a job).
+_JOB_EVENTS = ("OnLoadFinished", "OnSaveDone", "OnSaveAsDone")
 #: Calc's own category for add-in functions: Calc knows a fixed list of categories and puts any other
 #: name here too (so the category "sheetpump" of the xlwings face cannot be had in Calc 7.4).
 CALC_CATEGORY = "Add-In"
 CATEGORY = "sheetpump"
 
 _COMPONENT = "sheetpump_calc.py"
+_JOBS = "Jobs.xcu"
 _COMPONENTS = "sheetpump.components"
 _TYPES = "sheetpump.rdb"
 _ADDINS = "Addins.xcu"
@@ -94,6 +100,18 @@ def addins_xcu() -> str:
     return "\n".join(out) + "\n"
 
 
+def jobs_xcu() -> str:
+    """LibreOffice's job configuration: run the names job on opening and after saving a document."""
+    events = "".join(f'<node oor:name="{e}" oor:op="fuse"><node oor:name="JobList">'
+                     f'<node oor:name="sheetpump" oor:op="replace"/></node></node>' for e in _JOB_EVENTS)
+    return ('<?xml version="1.0" encoding="UTF-8"?>\n'
+            '<oor:component-data xmlns:oor="http://openoffice.org/2001/registry" '
+            'xmlns:xs="http://www.w3.org/2001/XMLSchema" oor:name="Jobs" oor:package="org.openoffice.Office">\n'
+            '<node oor:name="Jobs"><node oor:name="sheetpump" oor:op="replace">'
+            f'<prop oor:name="Service"><value>{NAMES_JOB}</value></prop></node></node>\n'
+            f'<node oor:name="Events">{events}</node>\n</oor:component-data>\n')
+
+
 def description_xml() -> str:
     return ('<?xml version="1.0" encoding="UTF-8"?>\n'
             '<description xmlns="http://openoffice.org/extensions/description/2006" '
@@ -110,12 +128,14 @@ def components_xml() -> str:
             '<components xmlns="http://openoffice.org/2010/uno-components">\n'
             f' <component loader="com.sun.star.loader.Python" uri="{_COMPONENT}">\n'
             f'  <implementation name="{IMPLEMENTATION}"><service name="{IMPLEMENTATION}"/></implementation>\n'
+            f'  <implementation name="{NAMES_JOB}"><service name="{NAMES_JOB}"/></implementation>\n'
             ' </component>\n</components>\n')
 
 
 def manifest_xml() -> str:
     entries = [("application/vnd.sun.star.uno-typelibrary;type=RDB", _TYPES),
                ("application/vnd.sun.star.configuration-data", _ADDINS),
+               ("application/vnd.sun.star.configuration-data", _JOBS),
                ("application/vnd.sun.star.uno-components", _COMPONENTS)]
     lines = "".join(f' <manifest:file-entry manifest:media-type="{t}" manifest:full-path="{p}"/>\n'
                     for t, p in entries)
@@ -131,17 +151,23 @@ Written by `sheetpump extension` (sheetpump {version}, Python {python}); rebuild
 {caution}
 """
 
+import os
+import re
 import site
 import sys
+import zipfile
 
 import uno
 import unohelper
 from com.sun.star.lang import XServiceInfo
+from com.sun.star.task import XJob
 from org.sheetpump.calc import XCellFunctions
 
 PATHS = {paths!r}
 BUILT_WITH = "sheetpump {version} in Python {python} ({executable})"
 IMPLEMENTATION = {implementation!r}
+NAMES_JOB = {names_job!r}
+NAMES = frozenset({names!r})
 _state = {{}}
 
 
@@ -191,19 +217,107 @@ class CellFunctions(unohelper.Base, XCellFunctions, XServiceInfo):
 '''
 
 
+_COMPONENT_TAIL = """
+
+# LibreOffice before 7.5 does not map an add-in's compatibility name in .xlsx formulas (only in formulas
+# typed or set through its API): reading, an SP_ name becomes an unknown name (#NAME?); writing, the
+# function is stored under its programmatic name ORG.SHEETPUMP.CALC.CELLFUNCTIONS.SP_... This job, run by
+# LibreOffice on opening and after saving a spreadsheet, mends both: it enters such formulas again
+# through the API, and takes the prefix out of the saved .xlsx.
+_NAME = re.compile(r"(?<![\\w.])([A-Za-z_][\\w.]*)(?=\\()")
+_PREFIX = (IMPLEMENTATION + ".").upper().encode("ascii")
+_FORMULA_CELLS = 16  # com.sun.star.sheet.CellFlags.FORMULA
+
+
+def _named(formula):
+    return _NAME.sub(lambda m: m.group(1).upper() if m.group(1).upper() in NAMES else m.group(1), formula)
+
+
+def _enter_again(model):
+    for sheet in model.Sheets:
+        arrays = set()
+        cells = sheet.queryContentCells(_FORMULA_CELLS).Cells.createEnumeration()
+        while cells.hasMoreElements():
+            cell = cells.nextElement()
+            formula = cell.getFormula()
+            mended = _named(formula)
+            if mended == formula:
+                continue
+            cursor = sheet.createCursorByRange(cell)
+            cursor.collapseToCurrentArray()
+            where = cursor.RangeAddress
+            if where.StartColumn == where.EndColumn and where.StartRow == where.EndRow:
+                cell.setFormula(mended)  # not part of an array formula
+                continue
+            key = (where.StartColumn, where.StartRow, where.EndColumn, where.EndRow)
+            if key not in arrays:
+                arrays.add(key)
+                cursor.setArrayFormula(_named(cursor.getArrayFormula()))
+
+
+def _rename_in_file(url):
+    path = uno.fileUrlToSystemPath(url)
+    if not path.lower().endswith((".xlsx", ".xlsm")) or not os.path.isfile(path):
+        return
+    with zipfile.ZipFile(path) as book:
+        parts = [(info, book.read(info)) for info in book.infolist()]
+    if not any(_PREFIX in data for _, data in parts):
+        return
+    temporary = path + ".sheetpump-tmp"
+    with zipfile.ZipFile(temporary, "w", zipfile.ZIP_DEFLATED) as book:
+        for info, data in parts:
+            if info.filename.startswith("xl/") and info.filename.endswith(".xml"):
+                data = data.replace(_PREFIX, b"")
+            book.writestr(info, data)
+    os.replace(temporary, path)
+
+
+class Names(unohelper.Base, XJob, XServiceInfo):
+    def __init__(self, ctx=None):
+        self.ctx = ctx
+
+    def getImplementationName(self):
+        return NAMES_JOB
+
+    def supportsService(self, name):
+        return name == NAMES_JOB
+
+    def getSupportedServiceNames(self):
+        return (NAMES_JOB,)
+
+    def execute(self, arguments):
+        try:
+            environment = {a.Name: a.Value for a in dict((a.Name, a.Value) for a in arguments)["Environment"]}
+            model, event = environment.get("Model"), environment.get("EventName")
+            if model is None or not model.supportsService("com.sun.star.sheet.SpreadsheetDocument"):
+                return None
+            if event == "OnLoadFinished":
+                _enter_again(model)
+            elif model.getURL():
+                _rename_in_file(model.getURL())
+        except Exception as exc:  # never disturb opening or saving a document
+            print("sheetpump extension:", exc, file=sys.stderr)
+        return None
+
+
+g_ImplementationHelper = unohelper.ImplementationHelper()
+g_ImplementationHelper.addImplementation(CellFunctions, IMPLEMENTATION, (IMPLEMENTATION,))
+g_ImplementationHelper.addImplementation(Names, NAMES_JOB, (NAMES_JOB,))
+"""
+
+
 def component_py() -> str:
     """The Python component: one method per declared function, each handing its arguments on."""
     text = _COMPONENT_HEAD.format(
         version=__version__, python=".".join(map(str, sys.version_info[:3])), executable=sys.executable,
-        paths=recorded_paths(), implementation=IMPLEMENTATION, caution=SAFETY_CAUTION)
+        paths=recorded_paths(), implementation=IMPLEMENTATION, caution=SAFETY_CAUTION, names_job=NAMES_JOB,
+        names=sorted(CATALOGUE))
     methods = []
     for calc in CATALOGUE.values():
         names = ", ".join(parameters(calc))
         methods.append(f"\n    def {calc.name}(self, {names}):\n"
                        f"        return _call({calc.name!r}, ({names},))\n")
-    tail = ("\n\ng_ImplementationHelper = unohelper.ImplementationHelper()\n"
-            "g_ImplementationHelper.addImplementation(CellFunctions, IMPLEMENTATION, (IMPLEMENTATION,))\n")
-    return text + "".join(methods) + tail
+    return text + "".join(methods) + _COMPONENT_TAIL
 
 
 def type_library() -> bytes:
@@ -219,6 +333,7 @@ def contents() -> dict[str, bytes]:
         "description.xml": description_xml().encode(),
         _TYPES: type_library(),
         _ADDINS: addins_xcu().encode(),
+        _JOBS: jobs_xcu().encode(),
         _COMPONENTS: components_xml().encode(),
         _COMPONENT: component_py().encode(),
     }
