@@ -13,7 +13,11 @@ A job: ``{"pipe": NAME, "steps": [...]}``; each step one of
   (``calculateAll``) and reports the seconds it took in ``"seconds"``;
 - ``{"read": [[SHEET, CELL], ...]}`` gives each cell's value (a number, a text, or an error text such as
   ``"Err:504"``) and formula;
+- ``{"new": true}`` starts a new, empty spreadsheet (hidden; closing the one open before), whose one
+  sheet is named "Sheet1";
 - ``{"set": [SHEET, CELL, VALUE]}`` writes a number or text into a cell;
+- ``{"fill": [SHEET, RANGE, ROWS]}`` writes rows of numbers or formulas (texts starting with ``=``) into a
+  range in one call (``setFormulaArray``);
 - ``{"array": [SHEET, RANGE, FORMULA]}`` enters an array formula over a range;
 - ``{"formula": [SHEET, CELL, FORMULA]}`` enters a formula (English function names, ``;`` or ``,``);
 - ``{"save": PATH}`` saves as .xlsx (File > Save As with Calc's "Calc Office Open XML" filter);
@@ -120,6 +124,17 @@ def main() -> None:
                 doc = desktop.loadComponentFromURL(url, "_blank", 0, props(Hidden=True))
                 if doc is None:
                     raise RuntimeError(f"LibreOffice could not open {step['open']}")
+                results.append(None)
+            elif "new" in step:
+                if doc is not None:
+                    doc.close(True)
+                doc = desktop.loadComponentFromURL("private:factory/scalc", "_blank", 0, props(Hidden=True))
+                results.append(None)
+            elif "fill" in step:
+                sheet, ref, rows = step["fill"]
+                cells = doc.Sheets.getByName(sheet).getCellRangeByName(ref)
+                cells.setFormulaArray(tuple(tuple(v if isinstance(v, str) else repr(v) for v in row)
+                                            for row in rows))
                 results.append(None)
             elif "calculate" in step:
                 start = time.perf_counter()

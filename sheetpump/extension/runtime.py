@@ -18,6 +18,8 @@ from __future__ import annotations
 
 from typing import Any
 
+import numpy as np
+
 from ..calc import ERROR_PREFIX
 from ..catalogue import CATALOGUE
 
@@ -28,7 +30,9 @@ def _value(value: Any) -> Any:
     if type(value) is tuple:  # a range: a tuple of rows
         if len(value) == 1 and len(value[0]) == 1:
             return value[0][0]
-        return [list(row) for row in value]
+        if all(type(v) is float for row in value for v in row):
+            return np.array(value, dtype=float)  # numbers only (the usual range): converted at once
+        return [list(row) for row in value]  # texts or empty cells: each element is looked at
     return value
 
 
