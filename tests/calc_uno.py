@@ -9,8 +9,8 @@ the steps of a job read as JSON from standard input and prints the results as JS
 
 A job: ``{"pipe": NAME, "steps": [...]}``; each step one of
 
-- ``{"open": PATH}`` loads a workbook (hidden; closing the one open before), ``{"calculate": true}`` recomputes every formula
-  (``calculateAll``) and reports the seconds it took in ``"seconds"``;
+- ``{"open": PATH}`` loads a workbook (hidden; closing the one open before), ``{"calculate": true}``
+  recomputes every formula (``calculateAll``) and reports the seconds it took in ``"seconds"``;
 - ``{"read": [[SHEET, CELL], ...]}`` gives each cell's value (a number, a text, or an error text such as
   ``"Err:504"``) and formula;
 - ``{"new": true}`` starts a new, empty spreadsheet (hidden; closing the one open before), whose one

@@ -110,7 +110,7 @@ def test_install_message(calc: dict[str, Any]) -> None:
 def test_every_function_computes_live_as_declared(calc: dict[str, Any]) -> None:
     rows = calc["rows"]
     assert set(rows) == set(CATALOGUE)  # every function of the catalogue is in the workbook
-    for (name, ref), got in zip(rows.items(), calc["computed"][:len(rows)]):
+    for (name, ref), got in zip(rows.items(), calc["computed"][:len(rows)], strict=True):
         decl = CATALOGUE[name]
         want = decl(*decl.example)
         assert got["formula"].startswith(f"={IMPLEMENTATION.upper()}.{name}("), (ref, got)
@@ -120,7 +120,7 @@ def test_every_function_computes_live_as_declared(calc: dict[str, Any]) -> None:
 
 def test_unit_text_omitted_optional_bad_argument(calc: dict[str, Any]) -> None:
     n = len(calc["rows"])
-    for (ref, (_, name, args)), got in zip(SCALARS.items(), calc["computed"][n:n + len(SCALARS)]):
+    for (ref, (_, name, args)), got in zip(SCALARS.items(), calc["computed"][n:n + len(SCALARS)], strict=True):
         want = CATALOGUE[name](*args)
         if isinstance(want, str):  # the bad argument: the very text the xlwings face gives
             assert want.startswith("#SP! ")
@@ -174,6 +174,7 @@ def test_xlsx_keeps_the_names_both_ways(calc: dict[str, Any]) -> None:
         assert _saved_formula(calc["saved"], ref).startswith("SP_"), ref
     with zipfile.ZipFile(calc["saved"]) as book:
         assert not any(IMPLEMENTATION.upper().encode() in book.read(n) for n in book.namelist())
-    for (name, ref), before, after in zip(calc["rows"].items(), calc["computed"], calc["reopened"]):
+    for (name, ref), before, after in zip(calc["rows"].items(), calc["computed"][:len(calc["rows"])], calc["reopened"],
+                                      strict=True):
         if name != "SP_GEOMETRIC_FLOW":  # its input was changed before saving
             assert after["value"] == pytest.approx(before["value"], rel=REL, abs=0), ref

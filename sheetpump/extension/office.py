@@ -42,11 +42,11 @@ def office_environment() -> dict[str, str]:
     at build time, so it needs nothing of the virtual environment.
     """
     env = {k: v for k, v in os.environ.items() if k not in ("VIRTUAL_ENV", "PYTHONHOME", "PYTHONPATH")}
-    venv_bins = {os.path.join(sys.prefix, "bin"), os.path.join(sys.prefix, "Scripts")} if sys.prefix != sys.base_prefix else set()
+    venvs = [sys.prefix] if sys.prefix != sys.base_prefix else []
     if os.environ.get("VIRTUAL_ENV"):
-        venv_bins |= {os.path.join(os.environ["VIRTUAL_ENV"], "bin"), os.path.join(os.environ["VIRTUAL_ENV"], "Scripts")}
-    paths = [p for p in env.get("PATH", "").split(os.pathsep) if p and os.path.normpath(p) not in
-             {os.path.normpath(b) for b in venv_bins}]
+        venvs.append(os.environ["VIRTUAL_ENV"])
+    bins = {os.path.normpath(os.path.join(v, b)) for v in venvs for b in ("bin", "Scripts")}
+    paths = [p for p in env.get("PATH", "").split(os.pathsep) if p and os.path.normpath(p) not in bins]
     env["PATH"] = os.pathsep.join(paths)
     return env
 

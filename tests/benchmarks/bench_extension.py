@@ -74,7 +74,7 @@ def run(repeats: int = REPEATS) -> list[dict[str, Any]]:
         first, last = out[-1]
         want = [10.0 * 800.0 / 1000, _inputs()[-1][0] * _inputs()[-1][1] / 1000]
         got = [first["value"], last["value"]]
-        if any(not isinstance(g, float) or abs(g - w) > 1e-9 * w for g, w in zip(got, want)):
+        if any(not isinstance(g, float) or abs(g - w) > 1e-9 * w for g, w in zip(got, want, strict=True)):
             raise RuntimeError(f"{name}: Calc computed {got}, expected {want}")
         seconds = [r["seconds"] for r in out if isinstance(r, dict) and "seconds" in r][1:]
         times[name] = statistics.median(seconds)
