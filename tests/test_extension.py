@@ -23,6 +23,7 @@ from typing import Any
 
 import openpyxl
 import pytest
+from openpyxl.worksheet.formula import ArrayFormula
 
 try:  # tests/ may or may not be a package; both layouts work
     from tests import calc_uno
@@ -32,7 +33,9 @@ except ImportError:  # pragma: no cover - depends on how pytest was started
     import libreoffice as lo  # type: ignore[no-redef]
 
 from sheetpump.catalogue import CATALOGUE
+from sheetpump.extension import build
 from sheetpump.extension.build import IMPLEMENTATION
+from sheetpump.extension.office import find_office
 from sheetpump.workbooks.example import EXAMPLE_SHEET, write_worked_example
 
 pytestmark = lo.needs_soffice.marks
@@ -81,6 +84,12 @@ def calc(tmp_path_factory: pytest.TempPathFactory) -> dict[str, Any]:
         if name in CATALOGUE and str(formula).startswith(f"={name}("):
             rows[name] = f"{RESULT_COL}{r}"
     cells = [[EXAMPLE_SHEET, ref] for ref in rows.values()]
+    arrays = openpyxl.Workbook()  # an array formula with an SP_ name, as an .xlsx holds it
+    arrays.active.title = "Arrays"
+    for r, value in enumerate(RANGE_INPUTS.values(), 1):
+        arrays.active[f"A{r}"] = value
+    arrays.active["B1"] = ArrayFormula("B1:B3", "=SP_GEOMETRIC_FLOW(A1:A3,1450)")
+    arrays.save(root / "arrays.xlsx")
     steps: list[dict[str, Any]] = [
         {"open": str(book)},
         {"read": [[EXAMPLE_SHEET, rows["SP_GEOMETRIC_FLOW"]]]},
@@ -96,11 +105,14 @@ def calc(tmp_path_factory: pytest.TempPathFactory) -> dict[str, Any]:
         {"open": str(root / "saved.xlsx")},
         {"calculate": True},
         {"read": cells},
+        {"open": str(root / "arrays.xlsx")},
+        {"read": [["Arrays", f"B{r}"] for r in (1, 2, 3)]},
     ]
     results = calc_uno.run_job(soffice, profile, steps)
-    _, first, *_, computed, _, changed, functions, _, _, _, reopened = results
+    _, first, *_, computed, _, changed, functions, _, _, _, reopened, _, arrays_read = results
     return {"rows": rows, "first": first[0], "computed": computed, "changed": changed[0], "functions": functions,
-            "saved": root / "saved.xlsx", "reopened": reopened, "install": installed.stdout}
+            "saved": root / "saved.xlsx", "reopened": reopened, "arrays": arrays_read,
+            "install": installed.stdout, "soffice": soffice, "root": root}
 
 
 def test_install_message(calc: dict[str, Any]) -> None:
@@ -178,3 +190,24 @@ def test_xlsx_keeps_the_names_both_ways(calc: dict[str, Any]) -> None:
                                       strict=True):
         if name != "SP_GEOMETRIC_FLOW":  # its input was changed before saving
             assert after["value"] == pytest.approx(before["value"], rel=REL, abs=0), ref
+
+
+def test_xlsx_array_formula_computes_as_opened(calc: dict[str, Any]) -> None:
+    want = CATALOGUE["SP_GEOMETRIC_FLOW"]([[v] for v in RANGE_INPUTS.values()], 1450)
+    got = [c["value"] for c in calc["arrays"]]
+    assert got == pytest.approx([row[0] for row in want], rel=REL, abs=0)
+    assert all(c["formula"].startswith("{=") for c in calc["arrays"])  # still one array formula
+
+
+def test_sheetpump_gone_says_so_in_the_cell(calc: dict[str, Any], monkeypatch: pytest.MonkeyPatch) -> None:
+    """An extension whose recorded sheetpump is gone: the cell says what happened and what to do."""
+    gone = calc["root"] / "gone"
+    monkeypatch.setattr(build, "recorded_paths", lambda: [str(gone / "sheetpump-was-here")])
+    oxt = build.build(calc["root"] / "gone.oxt")
+    profile = gone / "profile"
+    monkeypatch.setenv(lo.SOFFICE_ENV, calc["soffice"])
+    find_office().manage("add", build.IDENTIFIER, oxt, profile=profile)
+    steps = [{"new": True}, {"formula": ["Sheet1", "A1", "=SP_GEOMETRIC_FLOW(16;1450)"]}, {"read": [["Sheet1", "A1"]]}]
+    text = calc_uno.run_job(calc["soffice"], profile, steps)[-1][0]["value"]
+    assert text.startswith(f"#SP! sheetpump could not be loaded from {gone / 'sheetpump-was-here'}"), text
+    assert "run 'sheetpump extension --install' again" in text

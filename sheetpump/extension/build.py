@@ -193,9 +193,7 @@ def _load():
 
 def _call(name, values):
     call = _state.get("call") or _load()
-    if call is None:
-        return _state["problem"]
-    out = call(name, values)
+    out = _state["problem"] if call is None else call(name, values)
     # Every method returns sequence<sequence<any>> (rows): a range result as it is, one value as 1 x 1,
     # which Calc shows in a single cell. (pyuno turns a returned tuple into that declared type; a
     # result declared "any" could not carry a range, and uno.Any is refused as a return value.)
@@ -252,7 +250,9 @@ def _enter_again(model):
             key = (where.StartColumn, where.StartRow, where.EndColumn, where.EndRow)
             if key not in arrays:
                 arrays.add(key)
-                cursor.setArrayFormula(_named(cursor.getArrayFormula()))
+                # a cell of an array formula gives it in braces, {=...} (the range's getArrayFormula does
+                # not serve: for a formula with an unknown name it keeps the file's "," separators)
+                cursor.setArrayFormula(mended[1:-1] if mended.startswith("{") else mended)
 
 
 def _rename_in_file(url):
