@@ -33,6 +33,8 @@ except ImportError:  # pragma: no cover - depends on how pytest was started
     import libreoffice as lo  # type: ignore[no-redef]
 
 from sheetpump.catalogue import CATALOGUE
+from sheetpump.cli import extension as extension_cli
+from sheetpump.cli import main
 from sheetpump.extension import build
 from sheetpump.extension.build import IMPLEMENTATION
 from sheetpump.extension.office import find_office
@@ -211,3 +213,22 @@ def test_sheetpump_gone_says_so_in_the_cell(calc: dict[str, Any], monkeypatch: p
     text = calc_uno.run_job(calc["soffice"], profile, steps)[-1][0]["value"]
     assert text.startswith(f"#SP! sheetpump could not be loaded from {gone / 'sheetpump-was-here'}"), text
     assert "run 'sheetpump extension --install' again" in text
+
+
+def test_another_version_installed_then_uninstall(calc: dict[str, Any], monkeypatch: pytest.MonkeyPatch,
+                                                  capsys: pytest.CaptureFixture[str]) -> None:
+    """``--install`` over an extension of another sheetpump version: exit 2; ``--uninstall`` removes it.
+
+    Last in this file on purpose: it removes the extension from the module's profile (the LibreOffice
+    results the other tests read were all taken by the fixture before).
+    """
+    profile = calc["root"] / "profile"  # the fixture's, holding this version's extension
+    monkeypatch.setenv(lo.SOFFICE_ENV, calc["soffice"])
+    monkeypatch.setattr(extension_cli, "__version__", "0.0.0")
+    assert main(["extension", "--install", "--profile", str(profile)]) == 2
+    err = capsys.readouterr().err
+    assert "already has the sheetpump extension" in err and "--uninstall" in err
+    assert main(["extension", "--uninstall", "--profile", str(profile)]) == 0
+    assert "removed the sheetpump extension" in capsys.readouterr().out
+    assert main(["extension", "--uninstall", "--profile", str(profile)]) == 0
+    assert "is not installed" in capsys.readouterr().out
