@@ -142,6 +142,8 @@ def test_unit_text_omitted_optional_bad_argument(calc: dict[str, Any]) -> None:
         else:
             assert got["value"] == pytest.approx(want, rel=REL, abs=0), ref
     assert calc["computed"][n + 3]["value"] == pytest.approx(23.2, rel=1e-12)  # 16 cm³ x 1450 /min = 23.2 L/min
+    # hydraulic horsepower = psi x gpm / 1714 (common practice; 1714 rounded, hence 1e-3)
+    assert calc["computed"][n]["value"] == pytest.approx(3000 * 10 / 1714, rel=1e-3)
 
 
 def test_range_argument_gives_an_array(calc: dict[str, Any]) -> None:

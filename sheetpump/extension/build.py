@@ -292,7 +292,9 @@ class Names(unohelper.Base, XJob, XServiceInfo):
             if model is None or not model.supportsService("com.sun.star.sheet.SpreadsheetDocument"):
                 return None
             if event == "OnLoadFinished":
+                modified = model.isModified()
                 _enter_again(model)
+                model.setModified(modified)  # the same formulas as in the file: nothing to save
             elif model.getURL():
                 _rename_in_file(model.getURL())
         except Exception as exc:  # never disturb opening or saving a document
