@@ -200,18 +200,24 @@ def _call(name, values):
     return out if type(out) is tuple else ((out,),)
 
 
-class CellFunctions(unohelper.Base, XCellFunctions, XServiceInfo):
+class _Service(unohelper.Base, XServiceInfo):
+    NAME = ""  # the implementation's name, which is also its one service name
+
     def __init__(self, ctx=None):
         self.ctx = ctx
 
     def getImplementationName(self):
-        return IMPLEMENTATION
+        return self.NAME
 
     def supportsService(self, name):
-        return name == IMPLEMENTATION
+        return name == self.NAME
 
     def getSupportedServiceNames(self):
-        return (IMPLEMENTATION,)
+        return (self.NAME,)
+
+
+class CellFunctions(_Service, XCellFunctions):
+    NAME = IMPLEMENTATION
 '''
 
 
@@ -272,18 +278,8 @@ def _rename_in_file(url):
     os.replace(temporary, path)
 
 
-class Names(unohelper.Base, XJob, XServiceInfo):
-    def __init__(self, ctx=None):
-        self.ctx = ctx
-
-    def getImplementationName(self):
-        return NAMES_JOB
-
-    def supportsService(self, name):
-        return name == NAMES_JOB
-
-    def getSupportedServiceNames(self):
-        return (NAMES_JOB,)
+class Names(_Service, XJob):
+    NAME = NAMES_JOB
 
     def execute(self, arguments):
         try:
