@@ -6,18 +6,25 @@ An ``.oxt`` is a zip holding:
 - ``META-INF/manifest.xml``: what each file is;
 - ``sheetpump.rdb``: the type library with the interface whose methods are the cell functions
   (:mod:`sheetpump.extension.typelib`); every argument is a UNO ``any``, which Calc treats as optional
-  and through which it passes numbers, texts and whole ranges;
+  and through which it passes numbers, texts and whole ranges; every result is rows of ``any`` (one
+  value as 1 x 1), so a range gives an array;
 - ``Addins.xcu``: Calc's add-in configuration: per function its display name, description, category and
   *compatibility name*, and per argument its name and help (the texts of the xlwings face);
+- ``Jobs.xcu``: runs the component's names job when a spreadsheet has been opened or saved (below);
 - ``sheetpump.components``: registers the component (passively: nothing of it runs at install time);
 - ``sheetpump_calc.py``: the Python component. It records where this sheetpump and its packages live
   (LibreOffice may run another Python than the one sheetpump is installed in), imports sheetpump on
   the first call, and hands each call to :func:`sheetpump.extension.runtime.call`.
 
-The compatibility name is what makes one workbook work in Excel and in Calc: Calc stores an add-in
-function in an .xlsx under its compatibility name for the locale en-US and, reading an .xlsx, maps a
-function name equal to a compatibility name back to the add-in. Each function's compatibility name is
-its own name (``SP_GEOMETRIC_FLOW``), which is also what xlwings registers in Excel.
+The compatibility name is what makes one workbook work in Excel and in Calc: each function's
+compatibility name (locale en-US) is its own name (``SP_GEOMETRIC_FLOW``), which is also what xlwings
+registers in Excel, and is the name an add-in function has in Excel's files. LibreOffice 7.4 maps it
+only in formulas typed or set through its API; in .xlsx files it reads ``SP_...`` as an unknown name and
+writes ``ORG.SHEETPUMP.CALC.CELLFUNCTIONS.SP_...`` (its formula compiler has no add-in-to-Excel-name
+step for OOXML; later versions have one). The component's names job closes that gap: after a
+spreadsheet is loaded it enters every formula calling an ``SP_`` name again through the API, and after
+Save / Save As to .xlsx it takes the programmatic prefix out of the file. With a LibreOffice that maps
+the names itself, the job finds nothing to do.
 """
 
 from __future__ import annotations
