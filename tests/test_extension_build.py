@@ -165,3 +165,16 @@ def test_office_environment_leaves_out_the_virtual_environment(monkeypatch: pyte
     monkeypatch.setenv("PATH", os.pathsep.join([os.path.join(venv, "bin"), "/usr/bin"]))
     env = office_environment()
     assert env["PATH"] == "/usr/bin" and "VIRTUAL_ENV" not in env
+
+
+@pytest.mark.parametrize(("linked", "version"), [
+    (b"\0libpython3.11.so.1.0\0", (3, 11)),  # Debian's python3-uno
+    (b"\0python38.dll\0", (3, 8)),  # Windows
+    (b"@executable_path/../Frameworks/LibreOfficePython.framework/Versions/3.9/LibreOfficePython", (3, 9)),
+    (b"nothing to go by", None),
+])
+def test_python_of_the_bridge(tmp_path: Path, linked: bytes, version: tuple[int, int] | None) -> None:
+    from sheetpump.extension.office import _bridge_python
+
+    (tmp_path / "bridge").write_bytes(b"\x7fELF..." + linked + b"...")
+    assert _bridge_python(tmp_path / "bridge") == version

@@ -147,7 +147,9 @@ def _soffice() -> Path:
 def _bridge_python(bridge: Path) -> tuple[int, int] | None:
     # The bridge library links the Python it was built for (libpython3.11.so, python311.dll, ...).
     data = bridge.read_bytes()
-    found = re.search(rb"libpython(\d)\.(\d+)", data) or re.search(rb"python(\d)(\d\d?)\.dll", data)
+    # macOS bundles its own: .../LibreOfficePython.framework/Versions/3.x/... (from memory; untested here)
+    found = (re.search(rb"libpython(\d)\.(\d+)", data) or re.search(rb"python(\d)(\d\d?)\.dll", data)
+             or re.search(rb"LibreOfficePython\.framework/Versions/(\d)\.(\d+)", data))
     return (int(found.group(1)), int(found.group(2))) if found else None
 
 
@@ -163,7 +165,9 @@ def find_office() -> Office:
             raise InputError(f"LibreOffice at {program} has no unopkg (its extension manager)",
                              hint="reinstall LibreOffice")
         unopkg = Path(found)
-    bridge = next((program / n for n in _BRIDGES if (program / n).is_file()), None)
+    # Linux and Windows: beside soffice; macOS: Contents/Frameworks beside Contents/MacOS (from memory)
+    places = [program / n for n in _BRIDGES] + [program.parent / "Frameworks" / n for n in _BRIDGES]
+    bridge = next((p for p in places if p.is_file()), None)
     if bridge is None:
         raise InputError(f"LibreOffice at {program} has no Python bridge",
                          hint=f"install it, e.g. Debian/Ubuntu: apt-get install {_BRIDGE_PACKAGE}")
