@@ -53,7 +53,8 @@ SCALARS = {
 }
 RANGE_INPUTS = {"Y45": 16.0, "Y46": 28.0, "Y47": 45.0}
 RANGE_FORMULA = ("Z45:Z47", "=SP_GEOMETRIC_FLOW(Y45:Y47;1450)")
-CHANGED_INPUT = ("F5", 16.0)  # the displacement of SP_GEOMETRIC_FLOW in row 5
+CHANGED_INPUT = ("F5", 16.0)
+TEXT_MENTION = "see sp_geometric_flow(A1:A3,1450)"  # the displacement of SP_GEOMETRIC_FLOW in row 5
 
 
 def _uno_python_or_skip() -> str:
@@ -91,6 +92,7 @@ def calc(tmp_path_factory: pytest.TempPathFactory) -> dict[str, Any]:
     for r, value in enumerate(RANGE_INPUTS.values(), 1):
         arrays.active[f"A{r}"] = value
     arrays.active["B1"] = ArrayFormula("B1:B3", "=SP_GEOMETRIC_FLOW(A1:A3,1450)")
+    arrays.active["C1"] = TEXT_MENTION  # a text, not a formula: left as it is
     arrays.save(root / "arrays.xlsx")
     steps: list[dict[str, Any]] = [
         {"open": str(book)},
@@ -108,7 +110,7 @@ def calc(tmp_path_factory: pytest.TempPathFactory) -> dict[str, Any]:
         {"calculate": True},
         {"read": cells},
         {"open": str(root / "arrays.xlsx")},
-        {"read": [["Arrays", f"B{r}"] for r in (1, 2, 3)]},
+        {"read": [["Arrays", f"B{r}"] for r in (1, 2, 3)] + [["Arrays", "C1"]]},
     ]
     results = calc_uno.run_job(soffice, profile, steps)
     _, first, *_, computed, _, changed, functions, _, _, _, reopened, _, arrays_read = results
@@ -198,9 +200,11 @@ def test_xlsx_keeps_the_names_both_ways(calc: dict[str, Any]) -> None:
 
 def test_xlsx_array_formula_computes_as_opened(calc: dict[str, Any]) -> None:
     want = CATALOGUE["SP_GEOMETRIC_FLOW"]([[v] for v in RANGE_INPUTS.values()], 1450)
-    got = [c["value"] for c in calc["arrays"]]
+    *arrays, text = calc["arrays"]
+    assert text["value"] == TEXT_MENTION
+    got = [c["value"] for c in arrays]
     assert got == pytest.approx([row[0] for row in want], rel=REL, abs=0)
-    assert all(c["formula"].startswith("{=") for c in calc["arrays"])  # still one array formula
+    assert all(c["formula"].startswith("{=") for c in arrays)  # still one array formula
 
 
 def test_sheetpump_gone_says_so_in_the_cell(calc: dict[str, Any], monkeypatch: pytest.MonkeyPatch) -> None:

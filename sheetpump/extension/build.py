@@ -160,6 +160,7 @@ Written by `sheetpump extension` (sheetpump {version}, Python {python}); rebuild
 
 import os
 import re
+import shutil
 import site
 import sys
 import zipfile
@@ -237,7 +238,7 @@ _COMPONENT_TAIL = """
 # through the API, and takes the prefix out of the saved .xlsx.
 _NAME = re.compile(r"(?<![\\w.])([A-Za-z_][\\w.]*)(?=\\()")
 _PREFIX = (IMPLEMENTATION + ".").upper().encode("ascii")
-_FORMULA_CELLS = 16  # com.sun.star.sheet.CellFlags.FORMULA
+_IN_FORMULAS = 0  # a search descriptor's SearchType: 0 formulas, 1 values, 2 notes
 
 
 def _named(formula):
@@ -247,9 +248,17 @@ def _named(formula):
 def _enter_again(model):
     for sheet in model.Sheets:
         arrays = set()
-        cells = sheet.queryContentCells(_FORMULA_CELLS).Cells.createEnumeration()
+        search = sheet.createSearchDescriptor()  # Calc finds the candidates: formulas containing "sp_"
+        search.SearchString = "SP_"
+        search.SearchType = _IN_FORMULAS
+        found = sheet.findAll(search)
+        if found is None:
+            continue
+        cells = found.Cells.createEnumeration()
         while cells.hasMoreElements():
             cell = cells.nextElement()
+            if cell.getType().value != "FORMULA":  # a text that mentions SP_ stays as it is
+                continue
             formula = cell.getFormula()
             mended = _named(formula)
             if mended == formula:
@@ -282,6 +291,7 @@ def _rename_in_file(url):
             if info.filename.startswith("xl/") and info.filename.endswith(".xml"):
                 data = data.replace(_PREFIX, b"")
             book.writestr(info, data)
+    shutil.copymode(path, temporary)
     os.replace(temporary, path)
 
 
