@@ -14,9 +14,11 @@ native; the single cells have no target (each is a call into Python, shown per c
 times things.
 
 Where the range call's time goes: sheetpump's own part (:func:`sheetpump.extension.runtime.call` on
-10,000 rows) takes about 3.5 ms; LibreOffice's Python bridge converts every value between Calc and
-Python one by one (20,000 in, 10,000 out; measured once here: 7.7 ms for 10,000 values to UNO and back
-through ``com.sun.star.script.Converter``), which alone is about as much as Calc's native array formula.
+10,000 rows) takes about 3.5 ms (4-8 ms timed inside LibreOffice); the rest is LibreOffice's side of an
+add-in call: ranges to UNO sequences, its Python bridge converting every value one by one (20,000 in,
+10,000 out; measured once alone: 7.7 ms for 10,000 values to UNO and back through
+``com.sun.star.script.Converter``, about as much as Calc's whole native array formula), and the result
+back to a matrix.
 """
 
 from __future__ import annotations
