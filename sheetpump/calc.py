@@ -397,6 +397,27 @@ class Calculation:
     def __call__(self, *values: Any) -> float | list[list[Any]] | str:
         return self.cell(*values)
 
+    def argument_help(self) -> list[tuple[str, str]]:
+        """Each cell argument's name and its help for a function wizard, the result ``unit`` last.
+
+        Every spreadsheet face (xlwings, the LibreOffice extension) shows these same texts.
+
+        >>> from sheetpump.catalogue import CATALOGUE
+        >>> for name, text in CATALOGUE["SP_PULSATION_FREQ"].argument_help()[-2:]:
+        ...     print(f"{name}: {text}")
+        harmonic: Harmonic order (1 = fundamental). A number, a text with a unit, or a range. Optional, default 1.
+        unit: Optional unit of the result, e.g. 'Hz'
+        """
+        texts = []
+        for a in self.args:
+            unit = f" [{a.kind.default}]" if a.kind.default else ""
+            default = f" Optional, default {a.default:g}." if a.default is not None else ""
+            texts.append((a.name, f"{a.help}{unit}. A number, a text with a unit, or a range.{default}"))
+        example = self.result.example.split(" ", 1)[-1]
+        texts.append(("unit", f"Optional unit of the result, e.g. {example!r}" if self.result.default
+                      else "Optional unit of the result"))
+        return texts
+
 
 def _one_cell(value: Any, name: str) -> Any:
     """The value of a one-cell range given for a one-value argument; a larger range is refused."""

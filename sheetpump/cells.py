@@ -73,13 +73,10 @@ def decorate(function: Callable[..., Any], calc: Calculation,
     ``func`` and ``arg`` default to xlwings' own; on Linux those are no-ops, and the tests pass in
     xlwings' Windows implementations to check the metadata Excel would get.
     """
-    for a in reversed(calc.args):
-        unit = f" [{a.kind.default}]" if a.kind.default else ""
-        default = f" Optional, default {a.default:g}." if a.default is not None else ""
-        doc = f"{a.help}{unit}. A number, a text with a unit, or a range.{default}"
-        function = arg(a.name, ndim=2, doc=doc)(function)
-    function = arg("unit", doc=f"Optional unit of the result, e.g. {calc.result.example.split(' ', 1)[-1]!r}"
-                   if calc.result.default else "Optional unit of the result")(function)
+    *texts, (unit, unit_doc) = calc.argument_help()
+    for name, doc in reversed(texts):
+        function = arg(name, ndim=2, doc=doc)(function)
+    function = arg(unit, doc=unit_doc)(function)
     return func(category=CATEGORY)(function)
 
 
