@@ -10,6 +10,8 @@ as a tuple of rows (which the component hands to Calc as an array).
 23.2
 >>> call("SP_GEOMETRIC_FLOW", (((16.0,), (28.0,)), 1450.0, None))
 ((23.2,), (40.6,))
+>>> call("SP_GEOMETRIC_FLOW", (((16.0, 28.0),), "1450 rpm", None))
+((23.2, 40.6),)
 >>> call("SP_GEOMETRIC_FLOW", ("16 rpm", 1450.0, None))
 "#SP! displacement: 'rpm' is a speed, not a displacement (write e.g. '28 cm^3/rev')"
 """
@@ -44,6 +46,10 @@ def call(name: str, values: tuple[Any, ...]) -> float | str | tuple[tuple[Any, .
     if tuple in map(type, values):
         values = tuple(_value(v) for v in values)
     out = calc.cell_values(values)
+    if type(out) is np.ndarray:  # a range converted at once gives its array back: Calc takes rows of floats
+        if out.size == 0 or out.ndim > 2:
+            return f"{ERROR_PREFIX}{name}: a range must be a non-empty row, column or block of cells"
+        out = (out.reshape(1, -1) if out.ndim == 1 else out).tolist()
     if type(out) is list:
         return tuple(map(tuple, out))
     return out
