@@ -44,7 +44,7 @@ from .templates import (
 )
 from .writer import open_book, write_value
 
-__all__ = ["SERIES_FIELDS", "SERIES_SHEET", "read_size_series", "write_series_template"]
+__all__ = ["SERIES_FIELDS", "SERIES_SHEET", "is_series_workbook", "read_size_series", "write_series_template"]
 
 SERIES_SHEET = "Series"
 #: The rows of the Series sheet: the datasheet's fields, with the series' name and each size's frame.
@@ -324,3 +324,17 @@ def _frame_table(model: str, values: dict[str, Any], sizes: dict[str, dict[str, 
                               None if t.input_power is None else t.input_power * k,
                               None if t.torque is None else t.torque * k, t.where)
     return scaled, ref
+
+
+def is_series_workbook(path: str | os.PathLike[str]) -> bool:
+    """Whether ``path`` is a series workbook (it has a sheet named Series); ``False`` for anything else,
+    which the datasheet reader then judges with its own messages."""
+    import re
+    import zipfile
+
+    try:
+        with zipfile.ZipFile(path) as z:
+            text = z.read("xl/workbook.xml")[:200_000].decode("utf-8", "replace")
+    except Exception:  # not a zip, no workbook part ...: not a series workbook
+        return False
+    return re.search(r'<(?:\w+:)?sheet\b[^>]*\bname="Series"', text, re.I) is not None

@@ -1,0 +1,192 @@
+"""The selection workbook: every size of every series on the machine, the proposed sizes marked.
+
+Sheets:
+
+* **Sizes** — one row per size and series: verdict, worst rule and margin, flow margin, the pressure
+  margins (continuous, intermittent, peak, relief), motor, RMS power, energy, cost, and why the size
+  fails or what its margin is. The proposed size of each series says ``proposed`` in its own column (and
+  is bold), so the mark survives printing in black and white.
+* **Series** — per series the proposal in one sentence, the drive speed where one was chosen, and the
+  assumptions (frame tables scaled by displacement).
+* **Assumptions** — the application's settings, the standard motor speeds, the input files and their
+  SHA-256, and the safety caution.
+
+Printed landscape, fit to the page width, the header row repeated on every page. Written with
+:mod:`sheetpump.workbooks.writer`: deterministic, atomic, text from inputs stays text.
+"""
+
+from __future__ import annotations
+
+import math
+import os
+from collections.abc import Sequence
+from pathlib import Path
+from typing import Any
+
+from .. import SAFETY_CAUTION, __version__
+from ..checks import DISPLAY_UNITS, INFO
+from ..comparison import Candidate
+from ..files import sha256
+from ..selection import SLIP, STANDARD_POLES, Selection, worst
+from ..units import DISPLACEMENT, POWER, from_si
+from .writer import open_book, write_value
+
+__all__ = ["write_selection"]
+
+_PRESSURE_RULES = (("pressure.continuous", "continuous"), ("pressure.intermittent", "intermittent"),
+                   ("pressure.peak", "peak"), ("pressure.relief", "relief + overshoot vs peak"))
+
+
+def _margin(c: Candidate, rule: str) -> float | str | None:
+    for f in c.result.findings:
+        if f.rule == rule:
+            if f.severity == INFO:
+                return "judged as intermittent" if rule == "pressure.continuous" else None
+            return f.margin if f.margin is not None and math.isfinite(f.margin) else None
+    return None
+
+
+def _page(sheet: Any, header_row: int) -> None:
+    sheet.set_landscape()
+    sheet.set_paper(9)  # A4
+    sheet.fit_to_pages(1, 0)  # one page wide, as many long as needed
+    sheet.repeat_rows(header_row)
+    sheet.set_margins(left=0.4, right=0.4, top=0.6, bottom=0.6)
+    sheet.set_footer("&L&8sheetpump selection&R&8page &P of &N")
+
+
+def write_selection(target: str | os.PathLike[str], sel: Selection, inputs: Sequence[str | os.PathLike[str]] = (),
+                    units: str = "metric") -> Path:
+    """Write the selection workbook for ``sel`` to ``target`` (atomically).
+
+    Parameters
+    ----------
+    target : path
+        The ``.xlsx`` to write.
+    sel : Selection
+        From :func:`sheetpump.selection.select`.
+    inputs : sequence of paths
+        The input files, listed with their SHA-256 on the Assumptions sheet.
+    units : str
+        ``"metric"`` or ``"imperial"`` display units.
+    """
+    if units not in DISPLAY_UNITS:
+        raise ValueError(f"units must be one of {sorted(DISPLAY_UNITS)}")
+    app = sel.application
+    disp_unit = "cm^3/rev" if units == "metric" else "in^3/rev"
+    power_unit = DISPLAY_UNITS[units][POWER]
+    with open_book(target, title=f"Size selection: {app.name}") as book:
+        f = book.styles
+        bold = book.add_format({"bold": True, "bg_color": "#E8EEF5", "top": 1, "bottom": 1})
+        formats = {name: book.add_format(spec) for name, spec in {
+            "pct": {"num_format": "+0.0%;-0.0%;0.0%"}, "disp": {"num_format": "0.00" if units == "metric" else "0.000"},
+            "kw": {"num_format": "0.0"}, "n0": {"num_format": "#,##0"}}.items()}
+        proposed_fmt = {name: book.add_format({**spec, "bold": True, "bg_color": "#E8EEF5"}) for name, spec in {
+            "pct": {"num_format": "+0.0%;-0.0%;0.0%"}, "disp": {"num_format": "0.00" if units == "metric" else "0.000"},
+            "kw": {"num_format": "0.0"}, "n0": {"num_format": "#,##0"}, "text": {}}.items()}
+        sheet = book.add_worksheet("Sizes")
+        sheet.write_string(0, 0, f"Size selection: {app.name}", f["title"])
+        sheet.merge_range(1, 0, 1, 10, SAFETY_CAUTION, f["caution"])
+        sheet.set_row(1, 36)
+        sheet.write_string(2, 0, "One row per size; per series the proposed size is the smallest displacement that "
+                           "passes every rule (ties: lower price, then lower drive power). Margins are fractions "
+                           "of the limit, positive inside.", f["note"])
+        heads = [
+            ("series", 22, None), ("size", 14, None), ("proposed", 10, None),
+            (f"displacement [{disp_unit}]", 11, "disp"), ("verdict", 8, None), ("worst rule", 22, None),
+            ("worst margin", 9, "pct"), ("flow margin", 9, "pct"),
+            *((f"{label} pressure margin" if rule != "pressure.relief" else "relief + overshoot vs peak margin",
+               11, "pct") for rule, label in _PRESSURE_RULES),
+            ("motor", 9, None), (f"RMS input power [{power_unit}]", 10, "kw"),
+            ("electrical energy per year [kWh]", 11, "n0"), (f"energy cost per year [{app.currency}]", 10, "n0"),
+            (f"price [{app.currency}]", 9, "n0"),
+            (f"cost over {app.evaluation_years:g} years [{app.currency}]", 11, "n0"),
+            ("why", 70, None),
+        ]
+        header_row = 4
+        for c, (text, width, _) in enumerate(heads):
+            sheet.write_string(header_row, c, text, f["header"])
+            sheet.set_column(c, c, width, f["wrap"] if text == "why" else None)
+        sheet.set_row(header_row, 45)
+        row = header_row + 1
+        for ch in sel.choices:
+            for i, (cand, why) in enumerate(zip(ch.candidates, ch.reasons, strict=True)):
+                mine = i == ch.proposed
+                ds, w = cand.datasheet, worst(cand)
+                values: list[Any] = [
+                    ch.series.name, ds.model, "proposed" if mine else "",
+                    float(from_si(ds.displacement, DISPLACEMENT, disp_unit)), cand.result.verdict,
+                    w.rule if w else "", w.margin if w and w.margin is not None and math.isfinite(w.margin) else None,
+                    cand.flow_margin if cand.flow_margin is not None and math.isfinite(cand.flow_margin) else None,
+                    *(_margin(cand, rule) for rule, _ in _PRESSURE_RULES),
+                    cand.motor.label if cand.motor else "none",
+                    float(from_si(cand.result.drive.rms_power, POWER, power_unit))
+                    if math.isfinite(cand.result.drive.rms_power) else None,
+                    cand.electrical_energy_per_year / 3.6e6, cand.energy_cost_per_year, ds.price,
+                    cand.cost_over_period, why,
+                ]
+                for c, (value, (_, _, kind)) in enumerate(zip(values, heads, strict=True)):
+                    if c == 4:
+                        fmt = f[cand.result.verdict] if cand.result.verdict in f else None
+                    elif isinstance(value, str) or kind is None:
+                        fmt = proposed_fmt["text"] if mine else None
+                    else:
+                        fmt = (proposed_fmt if mine else formats)[kind]
+                    if isinstance(value, float) and not math.isfinite(value):
+                        value = None
+                    write_value(sheet, row, c, value, fmt)
+                row += 1
+            row += 1  # a blank row between series
+        sheet.freeze_panes(header_row + 1, 2)
+        sheet.autofilter(header_row, 0, max(row - 2, header_row + 1), len(heads) - 1)
+        _page(sheet, header_row)
+
+        series = book.add_worksheet("Series")
+        series.write_string(0, 0, "The proposal of each series", f["title"])
+        for c, (text, width) in enumerate((("series", 24), ("file", 24), ("proposed size", 14),
+                                           ("drive speed [rpm]", 10), ("why", 90), ("assumptions", 60))):
+            series.write_string(2, c, text, f["header"])
+            series.set_column(c, c, width, f["wrap"])
+        for r, ch in enumerate(sel.choices, start=3):
+            write_value(series, r, 0, ch.series.name)
+            write_value(series, r, 1, Path(ch.series.file).name if ch.series.file else "")
+            write_value(series, r, 2, ch.choice.datasheet.model if ch.choice else "none passes",
+                        bold if ch.choice else f["fail"])
+            write_value(series, r, 3, round(ch.speed * 60) if ch.speed is not None else "as the duty")
+            write_value(series, r, 4, ch.summary, f["wrap"])
+            write_value(series, r, 5, "; ".join(ch.series.assumptions) or "none", f["wrap"])
+        _page(series, 2)
+
+        notes = book.add_worksheet("Assumptions")
+        notes.write_string(0, 0, "Assumptions and inputs", f["title"])
+        notes.write_string(1, 0, SAFETY_CAUTION, f["caution"])
+        notes.set_row(1, 48)
+        rows: list[tuple[str, Any]] = [
+            ("application", app.name), ("motor standard", app.motor_standard),
+            ("mains frequency [Hz]", sel.mains_frequency),
+            ("standard motor speeds tried for a speed range",
+             f"{'/'.join(f'{p}-pole' for p in STANDARD_POLES)}, synchronous speed 120·f/p less {SLIP:.0%} slip "
+             "(common practice, an assumption)"),
+            ("flow margin required", app.flow_margin), ("pressure margin required", app.pressure_margin),
+            ("rules", "those of sheetpump check, on every size"),
+            ("motor, energy and cost", "as in the comparison workbook (sheetpump compare)"),
+            ("settings not given (defaults used)", ", ".join(app.defaulted) or "none"),
+            ("sheetpump version", __version__),
+        ]
+        r = 3
+        for label, value in rows:
+            notes.write_string(r, 0, label, f["header"])
+            write_value(notes, r, 1, value)
+            r += 1
+        r += 1
+        notes.write_string(r, 0, "input file", f["header"])
+        notes.write_string(r, 1, "SHA-256", f["header"])
+        for path in inputs:
+            r += 1
+            write_value(notes, r, 0, Path(path).name)
+            write_value(notes, r, 1, sha256(path))
+        notes.set_column(0, 0, 44)
+        notes.set_column(1, 1, 90)
+        _page(notes, 0)
+        sheet.activate()
+    return Path(target)
