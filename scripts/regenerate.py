@@ -17,12 +17,14 @@ sys.path.insert(0, str(ROOT))
 from sheetpump import demo  # noqa: E402
 from sheetpump.cli import functions, rules  # noqa: E402
 from sheetpump.workbooks.example import write_worked_example  # noqa: E402
+from sheetpump.workbooks.sizes import write_series_template  # noqa: E402
 from sheetpump.workbooks.templates import write_template  # noqa: E402
 
 GENERATED = {
     "worked-example.xlsx": write_worked_example,
     "datasheet-template.xlsx": lambda path: write_template("datasheet", path),
     "application-template.xlsx": lambda path: write_template("application", path),
+    "series-template.xlsx": write_series_template,
 }
 
 

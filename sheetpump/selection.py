@@ -123,13 +123,17 @@ def failing(c: Candidate) -> list[Finding]:
     return sorted(found, key=lambda f: f.margin if f.margin is not None and math.isfinite(f.margin) else -math.inf)
 
 
+#: Rules that judge the application alone (the same for every size): left out of a size's worst margin.
+APPLICATION_RULES = frozenset({"pressure.duty-relief"})
+
+
 def worst(c: Candidate) -> Finding | None:
-    """The judged finding with the smallest margin (a failing one first)."""
+    """The judged finding of the pump with the smallest margin (a failing one first)."""
     bad = failing(c)
     if bad:
         return bad[0]
     judged = [f for f in c.result.findings if f.severity != INFO and f.margin is not None
-              and math.isfinite(f.margin)]
+              and math.isfinite(f.margin) and f.rule not in APPLICATION_RULES]
     return min(judged, key=lambda f: f.margin, default=None)  # type: ignore[arg-type, return-value]
 
 
@@ -180,10 +184,10 @@ def _reasons(candidates: list[Candidate], proposed: int | None) -> tuple[list[st
         w = worst(c)
         if bad:
             text = "fails: " + ", ".join(_margin_text(f) for f in bad[:4]) + (" …" if len(bad) > 4 else "")
-        elif w is not None:
-            text = f"passes; worst margin {_margin_text(w)}"
         else:
-            text = "passes"
+            text = "passes" if c.result.verdict == PASS else "passes with warnings"
+            if w is not None:
+                text += f"; worst margin {_margin_text(w)}"
         if i == proposed:
             text = "proposed; " + text
         elif proposed is not None and i == proposed + 1:
