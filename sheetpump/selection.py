@@ -157,8 +157,10 @@ def _estimates(series: SizeSeries, sizes: Sequence[Datasheet], app: Application,
     return out
 
 
-def _drive_power(c: Candidate) -> float:
-    return c.motor.rated_power if c.motor is not None else c.result.drive.rms_power
+def _drive_power(c: Candidate) -> tuple[float, float]:
+    """RMS, then peak shaft power [W] (unknown: last)."""
+    d = c.result.drive
+    return tuple(x if math.isfinite(x) else math.inf for x in (d.rms_power, d.peak_power))  # type: ignore[return-value]
 
 
 def _evaluate(series: SizeSeries, app: Application, settings: CheckSettings,
