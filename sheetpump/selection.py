@@ -144,8 +144,9 @@ def _estimates(series: SizeSeries, sizes: Sequence[Datasheet], app: Application,
     out: list[performance.Estimate | None] = []
     cache: dict[str, performance.Estimate] = {}
     duty, rho = app.duty, app.oil.density_15
+    references = {m for m, _ in series.scaled.values()}
     for ds in sizes:
-        ref = series.scaled.get(ds.model)
+        ref = series.scaled.get(ds.model) or ((ds.model, 1.0) if ds.model in references else None)
         if ref is None or ref[0] not in by_model:
             out.append(None)
             continue
@@ -153,7 +154,8 @@ def _estimates(series: SizeSeries, sizes: Sequence[Datasheet], app: Application,
         if model not in cache:
             cache[model] = performance.estimate(by_model[model], duty.pressure, duty.speed, nu, rho, rho)
         e = cache[model]
-        out.append(dataclasses.replace(e, flow=e.flow * k, torque=e.torque * k, input_power=e.input_power * k))
+        out.append(e if k == 1.0 else
+                   dataclasses.replace(e, flow=e.flow * k, torque=e.torque * k, input_power=e.input_power * k))
     return out
 
 
