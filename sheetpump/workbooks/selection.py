@@ -34,16 +34,22 @@ from .writer import open_book, write_value
 __all__ = ["write_selection"]
 
 _PRESSURE_RULES = (("pressure.continuous", "continuous"), ("pressure.intermittent", "intermittent"),
-                   ("pressure.peak", "peak"), ("pressure.relief", "relief + overshoot vs peak"))
+                   ("pressure.peak", "peak"), ("pressure.relief", "relief"))
 
 
 def _margin(c: Candidate, rule: str) -> float | str | None:
     for f in c.result.findings:
         if f.rule == rule:
             if f.severity == INFO:
-                return "judged as intermittent" if rule == "pressure.continuous" else None
+                return "intermittent" if rule == "pressure.continuous" else None
             return f.margin if f.margin is not None and math.isfinite(f.margin) else None
     return None
+
+
+def _lines(text: str, width: float) -> int:
+    """Lines a wrapped text takes in a column ``width`` characters wide (spreadsheets do not all grow
+    the row on their own)."""
+    return max(1, math.ceil(len(text) / max(width - 2, 1)))
 
 
 def _page(sheet: Any, header_row: int) -> None:
@@ -77,37 +83,38 @@ def write_selection(target: str | os.PathLike[str], sel: Selection, inputs: Sequ
     power_unit = DISPLAY_UNITS[units][POWER]
     with open_book(target, title=f"Size selection: {app.name}") as book:
         f = book.styles
-        bold = book.add_format({"bold": True, "bg_color": "#E8EEF5", "top": 1, "bottom": 1})
-        formats = {name: book.add_format(spec) for name, spec in {
+        bold = book.add_format({"bold": True, "bg_color": "#E8EEF5", "valign": "top"})
+        specs: dict[str, dict[str, Any]] = {
             "pct": {"num_format": "+0.0%;-0.0%;0.0%"}, "disp": {"num_format": "0.00" if units == "metric" else "0.000"},
-            "kw": {"num_format": "0.0"}, "n0": {"num_format": "#,##0"}}.items()}
-        proposed_fmt = {name: book.add_format({**spec, "bold": True, "bg_color": "#E8EEF5"}) for name, spec in {
-            "pct": {"num_format": "+0.0%;-0.0%;0.0%"}, "disp": {"num_format": "0.00" if units == "metric" else "0.000"},
-            "kw": {"num_format": "0.0"}, "n0": {"num_format": "#,##0"}, "text": {}}.items()}
+            "kw": {"num_format": "0.0"}, "n0": {"num_format": "#,##0"}, "text": {"text_wrap": True, "valign": "top"}}
+        formats = {name: book.add_format(spec) for name, spec in specs.items()}
+        proposed_fmt = {name: book.add_format({**spec, "bold": True, "bg_color": "#E8EEF5"})
+                        for name, spec in specs.items()}
         sheet = book.add_worksheet("Sizes")
         sheet.write_string(0, 0, f"Size selection: {app.name}", f["title"])
-        sheet.merge_range(1, 0, 1, 10, SAFETY_CAUTION, f["caution"])
-        sheet.set_row(1, 36)
-        sheet.write_string(2, 0, "One row per size; per series the proposed size is the smallest displacement that "
-                           "passes every rule (ties: lower price, then lower drive power). Margins are fractions "
-                           "of the limit, positive inside.", f["note"])
+        sheet.merge_range(1, 0, 1, 12, SAFETY_CAUTION, f["caution"])
+        sheet.set_row(1, 40)
+        sheet.merge_range(2, 0, 2, 12, "One row per size; per series the proposed size is the smallest displacement "
+                          "that passes every rule (ties: lower price, then lower drive power). Margins are fractions "
+                          "of the limit, positive inside.", f["note"])
+        sheet.set_row(2, 28)
         heads = [
-            ("series", 22, None), ("size", 14, None), ("proposed", 10, None),
-            (f"displacement [{disp_unit}]", 11, "disp"), ("verdict", 8, None), ("worst rule", 22, None),
+            ("series", 25, None), ("size", 10, None), ("proposed", 9, None),
+            (f"displacement [{disp_unit}]", 13, "disp"), ("verdict", 7, None), ("worst rule", 24, None),
             ("worst margin", 9, "pct"), ("flow margin", 9, "pct"),
-            *((f"{label} pressure margin" if rule != "pressure.relief" else "relief + overshoot vs peak margin",
+            *((f"{label} pressure margin" if rule != "pressure.relief" else "relief + overshoot vs peak",
                11, "pct") for rule, label in _PRESSURE_RULES),
             ("motor", 9, None), (f"RMS input power [{power_unit}]", 10, "kw"),
             ("electrical energy per year [kWh]", 11, "n0"), (f"energy cost per year [{app.currency}]", 10, "n0"),
             (f"price [{app.currency}]", 9, "n0"),
             (f"cost over {app.evaluation_years:g} years [{app.currency}]", 11, "n0"),
-            ("why", 70, None),
+            ("why", 50, None),
         ]
         header_row = 4
         for c, (text, width, _) in enumerate(heads):
             sheet.write_string(header_row, c, text, f["header"])
             sheet.set_column(c, c, width, f["wrap"] if text == "why" else None)
-        sheet.set_row(header_row, 45)
+        sheet.set_row(header_row, 58)
         row = header_row + 1
         for ch in sel.choices:
             for i, (cand, why) in enumerate(zip(ch.candidates, ch.reasons, strict=True)):
@@ -135,6 +142,7 @@ def write_selection(target: str | os.PathLike[str], sel: Selection, inputs: Sequ
                     if isinstance(value, float) and not math.isfinite(value):
                         value = None
                     write_value(sheet, row, c, value, fmt)
+                sheet.set_row(row, 15 * _lines(why, heads[-1][1]))
                 row += 1
             row += 1  # a blank row between series
         sheet.freeze_panes(header_row + 1, 2)
@@ -146,6 +154,7 @@ def write_selection(target: str | os.PathLike[str], sel: Selection, inputs: Sequ
         for c, (text, width) in enumerate((("series", 24), ("file", 24), ("proposed size", 14),
                                            ("drive speed [rpm]", 10), ("why", 90), ("assumptions", 60))):
             series.write_string(2, c, text, f["header"])
+            series.set_row(2, 30)
             series.set_column(c, c, width, f["wrap"])
         for r, ch in enumerate(sel.choices, start=3):
             write_value(series, r, 0, ch.series.name)
@@ -154,7 +163,9 @@ def write_selection(target: str | os.PathLike[str], sel: Selection, inputs: Sequ
                         bold if ch.choice else f["fail"])
             write_value(series, r, 3, round(ch.speed * 60) if ch.speed is not None else "as the duty")
             write_value(series, r, 4, ch.summary, f["wrap"])
-            write_value(series, r, 5, "; ".join(ch.series.assumptions) or "none", f["wrap"])
+            assumptions = "; ".join(ch.series.assumptions) or "none"
+            write_value(series, r, 5, assumptions, f["wrap"])
+            series.set_row(r, 15 * max(_lines(ch.summary, 90), _lines(assumptions, 60)))
         _page(series, 2)
 
         notes = book.add_worksheet("Assumptions")
