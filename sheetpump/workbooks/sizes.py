@@ -26,7 +26,6 @@ from typing import Any
 
 import numpy as np
 
-from .. import SAFETY_CAUTION
 from ..datasheet import Datasheet, PerformanceTable
 from ..errors import InputError, Where
 from ..selection import SizeSeries
@@ -41,6 +40,7 @@ from .templates import (
     TEXT,
     Column,
     Field,
+    write_top,
 )
 from .writer import open_book, write_value
 
@@ -75,11 +75,7 @@ _INSTRUCTIONS = {
 
 
 def _top(sheet: Any, book: Any, name: str, width: int) -> None:
-    sheet.write_string(0, 0, f"sheetpump {name.lower()} sheet (a series of sizes)", book.styles["title"])
-    sheet.merge_range(1, 0, 1, width - 1, SAFETY_CAUTION, book.styles["caution"])
-    sheet.set_row(1, 62)
-    sheet.merge_range(2, 0, 2, width - 1, _INSTRUCTIONS[name], book.styles["note"])
-    sheet.set_row(2, 32)
+    write_top(sheet, book, f"sheetpump {name.lower()} sheet (a series of sizes)", _INSTRUCTIONS[name], width)
 
 
 def write_series_template(target: str | os.PathLike[str],
