@@ -329,8 +329,8 @@ def is_series_workbook(path: str | os.PathLike[str]) -> bool:
     import zipfile
 
     try:
-        with zipfile.ZipFile(path) as z:
-            text = z.read("xl/workbook.xml")[:200_000].decode("utf-8", "replace")
+        with zipfile.ZipFile(path) as z, z.open("xl/workbook.xml") as part:
+            text = part.read(200_000).decode("utf-8", "replace")  # bounded: never a whole (bomb) part
     except Exception:  # not a zip, no workbook part ...: not a series workbook
         return False
     return re.search(r'<(?:\w+:)?sheet\b[^>]*\bname="Series"', text, re.I) is not None
