@@ -9,3 +9,10 @@ SAFETY_CAUTION = (
     "fail violently. Confirm every figure against the supplier's current data, ISO 4413 (hydraulic "
     "system safety) and local codes, and have a qualified engineer approve the design."
 )
+
+#: The caution in one line, for the header or footer of every printed page (the full text stands on the
+#: sheets themselves).
+SAFETY_CAUTION_SHORT = (
+    "Estimates for pump selection: confirm with the supplier's current data, ISO 4413 and local codes; "
+    "a qualified engineer approves the design."
+)

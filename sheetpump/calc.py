@@ -22,6 +22,7 @@ from __future__ import annotations
 
 import inspect
 import math
+import sys
 from collections.abc import Callable
 from dataclasses import dataclass, field
 from typing import Any
@@ -333,20 +334,34 @@ class Calculation:
         except (PhysicsError, InputError, FloatingPointError):
             return None
 
-    def cell(self, *values: Any) -> float | list[list[Any]] | str:
+    def cell(self, *values: Any) -> Any:
         """Evaluate as a spreadsheet cell does: never raises.
 
-        The arguments are the calculation's arguments followed by an optional result unit. A range
-        (nested lists or an array) gives a 2-D list of the broadcast shape; single cells give a number.
-        Errors come back as text starting with :data:`ERROR_PREFIX`.
+        The arguments are the calculation's arguments followed by an optional result unit. Single
+        values give a number. Ranges give the broadcast shape in the form they came in:
+
+        * nested lists (a spreadsheet range, as xlwings passes it): a 2-D list of lists;
+        * a numpy array (or a pint Quantity array) among the arguments: a numpy array, any shape;
+        * a pandas Series among the arguments: a Series with its index, named after the result's
+          kind and unit (``"power [kW]"``), as sheetpump names table columns. Series arguments must
+          share one index (they are not aligned).
+
+        Errors come back as text starting with :data:`ERROR_PREFIX` (:meth:`evaluate` raises instead).
+
+        >>> from sheetpump.catalogue import CATALOGUE
+        >>> CATALOGUE["SP_HYDRAULIC_POWER"].cell(np.array([100.0, 200.0]), 60)
+        array([10., 20.])
         """
         return self.cell_values(values)
 
-    def cell_values(self, values: tuple[Any, ...]) -> float | list[list[Any]] | str:
+    def cell_values(self, values: tuple[Any, ...]) -> Any:
         """:meth:`cell` with the arguments as one tuple (what the generated cell functions call)."""
         try:
             out = self._compute(values)
         except InputError as exc:
+            series = _series(values)  # refused as an argument: looked for only here, costing a number nothing
+            if series is not None:
+                return self._series_values(values, series)
             return ERROR_PREFIX + _cell_text(exc)
         except PhysicsError as exc:
             return f"{ERROR_PREFIX}{self._cell_argument(exc.argument)}: {exc.reason}"
@@ -354,9 +369,30 @@ class Calculation:
             return f"{ERROR_PREFIX}{self.name}: {_plain(exc)}"
         if type(out) is float:
             return out
+        if out.size and any(type(v) is np.ndarray or isinstance(v, _QUANTITY) for v in values):
+            return out  # arrays in, the array out: no copy, no list of a million floats
         if out.size == 0 or out.ndim > 2:
             return f"{ERROR_PREFIX}{self.name}: a range must be a non-empty row, column or block of cells"
         return (out.reshape(1, -1) if out.ndim == 1 else out).tolist()
+
+    def _series_values(self, values: tuple[Any, ...], series: Any) -> Any:
+        """:meth:`cell_values` for arguments among which is a pandas Series: a Series out, same index."""
+        index = series.index
+        plain = []
+        for i, value in enumerate(values):
+            if _series(value) is not None:
+                if i < len(self.args) and not value.index.equals(index):
+                    return (f"{ERROR_PREFIX}{self.args[i].name}: the series' index differs from the first "
+                            "series' (align them first, e.g. with .reindex)")
+                value = value.to_numpy()
+            plain.append(value)
+        out = self.cell_values(tuple(plain))
+        if not isinstance(out, np.ndarray):
+            return out
+        unit = values[len(self.args)] if len(values) > len(self.args) else None
+        unit = unit.strip() if isinstance(unit, str) and unit.strip() else self.result.default
+        name = f"{self.result.name} [{unit}]" if unit else self.result.name
+        return type(series)(out, index=index, name=name)
 
     def __call__(self, *values: Any) -> float | list[list[Any]] | str:
         return self.cell(*values)
@@ -379,6 +415,17 @@ def _one_cell(value: Any, name: str) -> Any:
         size = cells.size if cells is not None else None
     what = f"a range of {size} cells" if size else "an empty or ragged range"
     raise InputError(f"takes one value, not {what}", Where(field=name), "point it at a single cell")
+
+
+def _series(values: Any) -> Any:
+    """The first pandas Series among ``values`` (a tuple, or one value), or None; pandas not imported: None."""
+    pandas = sys.modules.get("pandas")  # no Series can exist before pandas is imported
+    if pandas is None:
+        return None
+    for value in values if type(values) is tuple else (values,):
+        if isinstance(value, pandas.Series):
+            return value
+    return None
 
 
 def _cell_text(exc: InputError) -> str:

@@ -2,9 +2,12 @@
 
 Each rule is a small function over the whole duty at once (numpy arrays, one element per segment or per
 sample of a measured series), so a series of a million samples costs a handful of array passes, not a
-Python loop. Each rule gives one :class:`Finding`: its stable rule id, severity (``fail`` / ``warn`` /
-``info``, or ``pass``), what was measured, the limit, the margin as a fraction of the limit (positive =
-inside), the worst segment and how many segments are outside, and the cell to fix.
+Python loop. Every rule gives one :class:`Finding` for every pump, always: its stable rule id, severity
+(``fail`` / ``warn`` / ``info`` / ``pass``, or ``not checked`` when a value it needs is not stated, with
+the reason and the cell to fill), what was measured, the limit, the margin as a fraction of the limit
+(positive = inside), the worst segment and how many segments are outside, and the cell to fix. A rule
+that matters for the duty (pressure, speed, flow, inlet, viscosity, temperature, torque) and is not
+checked makes the pump's verdict at best ``warn``: a ``pass`` means every rating was proven.
 
 Application margins tighten the limits: an upper rating R with a pressure margin m becomes R·(1 − m), a
 required flow Q becomes Q·(1 + m), a speed range [a, b] becomes [a·(1 + m), b·(1 − m)]. The limit a
@@ -59,8 +62,11 @@ from .units import (
 
 __all__ = [
     "DISPLAY_UNITS",
+    "DUTY_SUBJECTS",
     "FAIL",
     "INFO",
+    "NOT_CHECKED",
+    "NOT_CHECKED_WHEN",
     "PASS",
     "RULES",
     "WARN",
@@ -75,7 +81,12 @@ __all__ = [
 ]
 
 FAIL, WARN, INFO, PASS = "fail", "warn", "info", "pass"
-_ORDER = {PASS: 0, INFO: 1, WARN: 2, FAIL: 3}
+NOT_CHECKED = "not checked"
+_ORDER = {PASS: 0, INFO: 1, NOT_CHECKED: 1, WARN: 2, FAIL: 3}
+
+#: Subjects (the rule id before the dot) whose rules matter for the duty: one of them not checked makes
+#: the verdict at best ``warn`` (``fail`` under ``strict``).
+DUTY_SUBJECTS = ("pressure", "speed", "flow", "inlet", "viscosity", "temperature", "torque")
 
 #: Units a report shows each kind in ("metric" or "imperial"); findings keep SI numbers.
 DISPLAY_UNITS: dict[str, dict[Kind, str]] = {
@@ -97,6 +108,8 @@ RULES: dict[str, str] = {
     "pressure.intermittent-share": "total time above continuous within the allowed share of the cycle",
     "pressure.peak": "pressure never above the peak rating",
     "pressure.relief": "relief-valve setting plus overshoot at or below the peak rating",
+    "pressure.relief-stall": "relief-valve setting, which a stalled machine holds on the pump, at or below "
+                             "the continuous rating (above it: warning; above the intermittent: failure)",
     "pressure.duty-relief": "duty pressures at or below the relief-valve setting (the duty is consistent)",
     "flow.delivered": "delivered flow after volumetric losses at least the required flow",
     "inlet.min": "inlet pressure (absolute) at or above the minimum",
@@ -108,8 +121,27 @@ RULES: dict[str, str] = {
     "temperature.max": "oil temperature at or below the pump's maximum",
     "cleanliness": "system cleanliness (ISO 4406) no worse than the pump needs",
     "torque.max": "shaft torque at or below the shaft's limit",
+    "torque.relief": "shaft torque at the relief setting plus overshoot (a stall) at or below the shaft's limit",
     "rotation": "direction of rotation matches the drive",
     "performance.basis": "what the efficiencies rest on",
+}
+
+#: When each rule can give ``not checked`` (the README's table says it; empty: never).
+NOT_CHECKED_WHEN: dict[str, str] = {
+    "speed.min-high-pressure": "a raised minimum speed without its pressure, or the other way round",
+    "pressure.intermittent-duration": "no longest time stated and the duty goes above continuous",
+    "pressure.intermittent-share": "no share of the cycle stated and the duty goes above continuous",
+    "inlet.min": "no minimum inlet pressure stated",
+    "inlet.max": "no maximum inlet pressure stated",
+    "viscosity.min": "no minimum viscosity stated",
+    "viscosity.max": "no maximum viscosity stated",
+    "viscosity.cold-start": "no cold-start temperature (application) or no maximum viscosity",
+    "temperature.min": "no minimum fluid temperature stated",
+    "temperature.max": "no maximum fluid temperature stated",
+    "cleanliness": "no cleanliness code on the datasheet or in the application",
+    "torque.max": "no shaft torque limit, or no efficiency to compute the torque from",
+    "torque.relief": "no shaft torque limit, or no efficiency to compute the torque from",
+    "rotation": "no rotation on the datasheet or in the application",
 }
 
 
@@ -117,13 +149,20 @@ RULES: dict[str, str] = {
 class CheckSettings:
     """How to check and report.
 
-    ``units`` picks the display units (``"metric"`` or ``"imperial"``); ``strict`` makes warnings fail;
-    ``listed`` caps the number of offending segments a finding names.
+    ``units`` picks the display units (``"metric"`` or ``"imperial"``); ``strict`` makes warnings (and
+    rules not checked that matter for the duty) fail; ``listed`` caps the number of offending segments a
+    finding names. The motor settings of the comparison: ``overload_factor`` k (peak ≤ k × rating,
+    default 1.6), ``service_factor`` (RMS ≤ SF × rating, default 1: size to the nameplate) and
+    ``thermal_window`` [s] (the motor's thermal time over which a long series' RMS is taken, default
+    10 min); see :mod:`sheetpump.physics.drive`.
     """
 
     units: str = "metric"
     strict: bool = False
     listed: int = 5
+    overload_factor: float = drive.IEC_OVERLOAD_FACTOR
+    service_factor: float = 1.0
+    thermal_window: float = drive.THERMAL_WINDOW
 
 
 @dataclass(frozen=True)
@@ -157,6 +196,18 @@ class Finding:
         """The rule's plain description."""
         return RULES.get(self.rule, self.rule)
 
+    @property
+    def matters(self) -> bool:
+        """Whether the rule judges the duty (its subject is one of :data:`DUTY_SUBJECTS`)."""
+        return self.rule.split(".")[0] in DUTY_SUBJECTS
+
+    @property
+    def effect(self) -> str:
+        """The severity this finding gives the verdict: a rule not checked that matters counts as a warning."""
+        if self.severity == NOT_CHECKED:
+            return WARN if self.matters else INFO
+        return self.severity
+
 
 @dataclass(frozen=True)
 class DriveFigures:
@@ -170,14 +221,22 @@ class DriveFigures:
     torque: np.ndarray  # shaft [N*m]
     input_power: np.ndarray  # shaft power [W]
     hydraulic_power: np.ndarray  # [W]
-    power_loss: np.ndarray  # heat into the oil [W]
+    power_loss: np.ndarray  # the pump's own power loss [W]
     peak_torque: float  # [N*m]
     peak_power: float  # [W]
     rms_power: float  # [W]
     mean_power: float  # [W]
-    mean_power_loss: float  # [W]
+    mean_power_loss: float  # the pump's own loss, time mean [W]
     energy_per_cycle: float  # shaft energy [J]
     basis: str = ""  # performance basis: "table", "stated" or "none"
+    surplus_heat: np.ndarray | None = None  # surplus flow x the pressure it crosses, per segment [W]
+    mean_surplus_heat: float = 0.0  # its time mean [W]
+    surplus_path: str = ""  # which pressure the surplus crosses, in words
+
+    @property
+    def mean_heat(self) -> float:
+        """Heat into the oil, time mean [W]: the pump's own loss plus the surplus over the relief or throttle."""
+        return self.mean_power_loss + self.mean_surplus_heat
 
 
 @dataclass(frozen=True)
@@ -199,15 +258,18 @@ class CheckResult:
 
     @property
     def verdict(self) -> str:
-        """``fail``, ``warn`` or ``pass`` (``strict`` settings turn ``warn`` into ``fail``)."""
-        worst = max((_ORDER[f.severity] for f in self.findings), default=0)
+        """``fail``, ``warn`` or ``pass`` (``strict`` settings turn ``warn`` into ``fail``).
+
+        A rule not checked that matters for the duty counts as a warning (:attr:`Finding.effect`).
+        """
+        worst = max((_ORDER[f.effect] for f in self.findings), default=0)
         if worst == _ORDER[FAIL] or (worst == _ORDER[WARN] and self.settings.strict):
             return FAIL
         return WARN if worst == _ORDER[WARN] else PASS
 
     def counts(self) -> dict[str, int]:
         """How many findings of each severity."""
-        out = {FAIL: 0, WARN: 0, INFO: 0, PASS: 0}
+        out = {FAIL: 0, WARN: 0, INFO: 0, NOT_CHECKED: 0, PASS: 0}
         for f in self.findings:
             out[f.severity] += 1
         return out
@@ -289,7 +351,15 @@ def _fmt(ctx: _Context, kind: Kind | None, value: float) -> str:
     unit = ctx.unit(kind)
     shown = from_si(value, kind, unit) if unit else value
     pretty = unit.replace("degC", "°C").replace("degF", "°F").replace("^2", "²").replace("*", "·")
-    return f"{shown:.4g} {pretty}".strip()
+    return f"{_digits(shown)} {pretty}".strip()
+
+
+def _digits(x: float) -> str:
+    """Four significant digits, without an exponent where plain digits read well (87000, not 8.7e+04)."""
+    text = f"{x:.4g}"
+    if "e" not in text or not 1e-3 <= abs(x) < 1e7:
+        return text
+    return f"{float(text):f}".rstrip("0").rstrip(".")
 
 
 def _margin(measured: float, limit: float, upper: bool) -> float:
@@ -382,6 +452,18 @@ def _note(margin: float, what: str) -> str:
     return f" ({what} less a {margin:.0%} margin)" if margin else ""
 
 
+def _not_checked(ctx: _Context, rule: str, reason: str, where: Where, app_where: Where | None = None,
+                 kind: Kind | None = None, measured: float | str | None = None) -> Finding:
+    """A rule that cannot be evaluated: the reason, and the cell to fill."""
+    return Finding(rule, NOT_CHECKED, f"not checked: {reason}", measured, None, None, kind, ctx.unit(kind),
+                   where=where, app_where=app_where)
+
+
+def _not_applicable(rule: str, reason: str, where: Where) -> Finding:
+    """A rule with nothing to judge for this pump (e.g. no intermittent rating: the continuous rule judges)."""
+    return Finding(rule, INFO, f"not applicable: {reason}", where=where)
+
+
 def _stretch_label(ctx: _Context, first: int, stop: int) -> str:
     duty = ctx.duty
     last = (stop - 1) % len(duty)
@@ -411,13 +493,26 @@ def _speed(ctx: _Context) -> list[Finding]:
                       rating_note=_note(m, "minimum speed raised by"), extra=extra_min))
     out.append(_bound(ctx, "speed.max", duty.speed, ds.speed_max * (1 - m), True, SPEED,
                       ds.where("speed_max"), rating_note=_note(m, "maximum speed"), extra=extra_max))
+    rule = "speed.min-high-pressure"
     if ds.speed_min_high_pressure is not None and ds.high_pressure_threshold is not None:
-        high = running & (duty.pressure > ds.high_pressure_threshold)
-        out.append(_bound(ctx, "speed.min-high-pressure", duty.speed, ds.speed_min_high_pressure * (1 + m),
+        # the pressure margin lowers the threshold: the raised minimum speed applies sooner
+        pm = app.pressure_margin
+        threshold = ds.high_pressure_threshold * (1 - pm)
+        high = running & (duty.pressure > threshold)
+        out.append(_bound(ctx, rule, duty.speed, ds.speed_min_high_pressure * (1 + m),
                           False, SPEED, ds.where("speed_min_high_pressure"), active=high,
-                          what=f"no running segment above {_fmt(ctx, PRESSURE, ds.high_pressure_threshold)}",
-                          rating_note=f" above {_fmt(ctx, PRESSURE, ds.high_pressure_threshold)}"
+                          what=f"no running segment above {_fmt(ctx, PRESSURE, threshold)}",
+                          rating_note=f" above {_fmt(ctx, PRESSURE, threshold)}" + _note(pm, "threshold")
                           + _note(m, "raised by")))
+    elif ds.speed_min_high_pressure is None and ds.high_pressure_threshold is None:
+        out.append(_not_applicable(rule, "the datasheet asks no higher minimum speed at high pressure",
+                                   ds.where("speed_min_high_pressure")))
+    elif ds.high_pressure_threshold is None:
+        out.append(_not_checked(ctx, rule, "the datasheet states a raised minimum speed but not the pressure "
+                                "above which it applies", ds.where("high_pressure_threshold")))
+    else:
+        out.append(_not_checked(ctx, rule, "the datasheet states a pressure for a raised minimum speed but "
+                                "not that speed", ds.where("speed_min_high_pressure")))
     return out
 
 
@@ -440,6 +535,11 @@ def _pressure(ctx: _Context) -> list[Finding]:
         out.append(_bound(ctx, "pressure.continuous", p, cont, True, PRESSURE,
                           ds.where("pressure_continuous"),
                           rating_note=_note(m, "continuous rating") + "; no intermittent rating stated"))
+        out += [_not_applicable(rule, "the datasheet states no intermittent rating, so every pressure is "
+                                "held to the continuous rating (pressure.continuous)",
+                                ds.where("pressure_intermittent"))
+                for rule in ("pressure.intermittent", "pressure.intermittent-duration",
+                             "pressure.intermittent-share")]
     else:
         above = p > cont
         first, stop, length = stretches(above, duty.duration, duty.wraps)
@@ -470,7 +570,34 @@ def _pressure(ctx: _Context) -> list[Finding]:
         f"{_fmt(ctx, PRESSURE, peak)}{_note(m, 'rating')}",
         relief, peak, _margin(relief, peak, True), PRESSURE, ctx.unit(PRESSURE), "relief valve",
         0 if ok else 1, None, (), ds.where("pressure_peak"), app.where("relief_setting")))
+    out.append(_stall(ctx, cont))
     return out
+
+
+def _stall(ctx: _Context, cont: float) -> Finding:
+    """A stalled machine holds the pump at the relief setting for as long as the stall lasts, which no
+    intermittent time or share covers: above the continuous rating a warning, above the intermittent
+    rating (when stated) a failure; both cells named."""
+    ds, app = ctx.ds, ctx.app
+    m = app.pressure_margin
+    setting = app.relief_setting
+    inter = ds.pressure_intermittent * (1 - m) if ds.pressure_intermittent is not None else None
+    if inter is not None and setting > inter:
+        sev, limit, where = FAIL, inter, ds.where("pressure_intermittent")
+    elif setting > cont:
+        sev, limit, where = WARN, cont, ds.where("pressure_continuous")
+    else:
+        sev, limit, where = PASS, cont, ds.where("pressure_continuous")
+    text = (f"relief setting {_fmt(ctx, PRESSURE, setting)} {'above' if setting > cont else 'within'} the "
+            f"continuous rating {_fmt(ctx, PRESSURE, cont)}")
+    if inter is not None:
+        text += f", {'above' if setting > inter else 'within'} the intermittent {_fmt(ctx, PRESSURE, inter)}"
+    text += _note(m, "ratings")
+    if sev != PASS:
+        text += ": a stalled machine holds the pump there for as long as the stall lasts"
+    return Finding("pressure.relief-stall", sev, text, setting, limit, _margin(setting, limit, True), PRESSURE,
+                   ctx.unit(PRESSURE), "relief valve", 0 if sev == PASS else 1, None, (), where,
+                   app.where("relief_setting"))
 
 
 def _replace(f: Finding, **changes: object) -> Finding:
@@ -497,9 +624,9 @@ def _stretch_rule(ctx: _Context, rule: str, first: np.ndarray, stop: np.ndarray,
     shown = (f"{value:.1%} of the cycle" if share else
              ("the whole cycle, without a break" if math.isinf(value) else _fmt(ctx, DURATION, value)))
     if limit is None:
-        return Finding(rule, WARN, f"{shown} above the continuous rating, but the datasheet states no "
-                       f"{'share of the cycle' if share else 'longest time'} for intermittent pressure: "
-                       "ask the supplier", value, None, None, kind, ctx.unit(kind), label,
+        return Finding(rule, NOT_CHECKED, f"not checked: {shown} above the continuous rating, but the "
+                       f"datasheet states no {'share of the cycle' if share else 'longest time'} for "
+                       "intermittent pressure: ask the supplier", value, None, None, kind, ctx.unit(kind), label,
                        bad_count, None, (), where, ctx.row(int(first[0])))
     ok = value <= limit
     lim_text = f"{limit:.1%}" if share else _fmt(ctx, DURATION, limit)
@@ -535,9 +662,15 @@ def _inlet(ctx: _Context) -> list[Finding]:
     if ds.inlet_pressure_min is not None:
         out.append(_bound(ctx, "inlet.min", duty.inlet_pressure, ds.inlet_pressure_min, False, ABS_PRESSURE,
                           ds.where("inlet_pressure_min")))
+    else:
+        out.append(_not_checked(ctx, "inlet.min", "the datasheet states no minimum inlet pressure",
+                                ds.where("inlet_pressure_min"), kind=ABS_PRESSURE))
     if ds.inlet_pressure_max is not None:
         out.append(_bound(ctx, "inlet.max", duty.inlet_pressure, ds.inlet_pressure_max, True, ABS_PRESSURE,
                           ds.where("inlet_pressure_max")))
+    else:
+        out.append(_not_checked(ctx, "inlet.max", "the datasheet states no maximum inlet pressure",
+                                ds.where("inlet_pressure_max"), kind=ABS_PRESSURE))
     return out
 
 
@@ -559,6 +692,9 @@ def _viscosity(ctx: _Context, nu: np.ndarray) -> list[Finding]:
                 f = _replace(f, message=f.message + f"; {hard} below the short-term minimum "
                              f"{_fmt(ctx, VISCOSITY, short)}")
         out.append(f)
+    else:
+        out.append(_not_checked(ctx, "viscosity.min", "the datasheet states no minimum viscosity",
+                                ds.where("viscosity_min"), kind=VISCOSITY))
     if ds.viscosity_max is not None:
         f = _bound(ctx, "viscosity.max", nu, ds.viscosity_max, True, VISCOSITY, ds.where("viscosity_max"),
                    active=running, what="the pump never runs", check_nan=True)
@@ -573,6 +709,9 @@ def _viscosity(ctx: _Context, nu: np.ndarray) -> list[Finding]:
                 f = _replace(f, message=f.message + f"; {hard} above the cold-start maximum "
                              f"{_fmt(ctx, VISCOSITY, cold)}")
         out.append(f)
+    else:
+        out.append(_not_checked(ctx, "viscosity.max", "the datasheet states no maximum viscosity",
+                                ds.where("viscosity_max"), kind=VISCOSITY))
     t_cold = app.cold_start_temperature
     cold_limit = ds.viscosity_max_cold_start if ds.viscosity_max_cold_start is not None else ds.viscosity_max
     if t_cold is not None and cold_limit is not None:
@@ -590,6 +729,14 @@ def _viscosity(ctx: _Context, nu: np.ndarray) -> list[Finding]:
                            "cold start", 0 if ok else 1, None, (),
                            ds.where("viscosity_max_cold_start" if stated else "viscosity_max"),
                            app.where("cold_start_temperature")))
+    elif t_cold is None:
+        out.append(_not_checked(ctx, "viscosity.cold-start", "the application states no cold-start "
+                                "temperature", ds.where("viscosity_max_cold_start"),
+                                app.where("cold_start_temperature"), VISCOSITY))
+    else:
+        out.append(_not_checked(ctx, "viscosity.cold-start", "the datasheet states no cold-start maximum "
+                                "viscosity (nor a maximum)", ds.where("viscosity_max_cold_start"),
+                                app.where("cold_start_temperature"), VISCOSITY))
     return out
 
 
@@ -602,9 +749,15 @@ def _temperature(ctx: _Context) -> list[Finding]:
                  else ())
         out.append(_bound(ctx, "temperature.min", duty.temperature, ds.temperature_min, False, TEMPERATURE,
                           ds.where("temperature_min"), extra=extra))
+    else:
+        out.append(_not_checked(ctx, "temperature.min", "the datasheet states no minimum fluid temperature",
+                                ds.where("temperature_min"), kind=TEMPERATURE))
     if ds.temperature_max is not None:
         out.append(_bound(ctx, "temperature.max", duty.temperature, ds.temperature_max, True, TEMPERATURE,
                           ds.where("temperature_max")))
+    else:
+        out.append(_not_checked(ctx, "temperature.max", "the datasheet states no maximum fluid temperature",
+                                ds.where("temperature_max"), kind=TEMPERATURE))
     # A margin as a share of a temperature in kelvin says little: take it as a share of the pump's
     # temperature range where both ends are given (e.g. 55 °C against -20…80 °C: 25 K of 100 K = 25 %).
     if ds.temperature_min is not None and ds.temperature_max is not None:
@@ -640,13 +793,14 @@ def parse_cleanliness(code: str, where: Where | None = None) -> tuple[int | None
 
 def _cleanliness(ctx: _Context) -> list[Finding]:
     ds, app = ctx.ds, ctx.app
-    if ds.cleanliness is None:
-        return []
     where = ds.where("cleanliness")
+    if ds.cleanliness is None:
+        return [_not_checked(ctx, "cleanliness", "the datasheet states no cleanliness code (ISO 4406)", where,
+                             app.where("cleanliness"))]
     need = parse_cleanliness(ds.cleanliness, where)
     if app.cleanliness is None:
-        return [Finding("cleanliness", WARN, f"the pump needs {ds.cleanliness} (ISO 4406) but the "
-                        "application states no cleanliness code", None, ds.cleanliness, None, None, "",
+        return [Finding("cleanliness", NOT_CHECKED, f"not checked: the pump needs {ds.cleanliness} (ISO 4406) "
+                        "but the application states no cleanliness code", None, ds.cleanliness, None, None, "",
                         "system", 0, None, (), where, app.where("cleanliness"))]
     have = parse_cleanliness(app.cleanliness, app.where("cleanliness"))
     pairs = [(h, r) for h, r in zip(have, need, strict=True) if r is not None and h is not None]
@@ -683,8 +837,12 @@ def _rotation_of(text: str, where: Where) -> str:
 
 def _rotation(ctx: _Context) -> list[Finding]:
     ds, app = ctx.ds, ctx.app
-    if ds.rotation is None or app.rotation is None:
-        return []
+    if ds.rotation is None:
+        return [_not_checked(ctx, "rotation", "the datasheet states no direction of rotation",
+                             ds.where("rotation"), app.where("rotation"))]
+    if app.rotation is None:
+        return [_not_checked(ctx, "rotation", "the application states no direction of rotation",
+                             ds.where("rotation"), app.where("rotation"))]
     pump = _rotation_of(ds.rotation, ds.where("rotation"))
     drive_dir = _rotation_of(app.rotation, app.where("rotation"))
     # a one-way pump on a drive that turns both ways does not match
@@ -695,21 +853,58 @@ def _rotation(ctx: _Context) -> list[Finding]:
                     ds.where("rotation"), app.where("rotation"))]
 
 
-def _torque(ctx: _Context, est: performance.Estimate) -> list[Finding]:
+def _torque(ctx: _Context, est: performance.Estimate, nu: np.ndarray) -> list[Finding]:
     ds = ctx.ds
     if ds.torque_max is None:
-        return []
+        return [_not_checked(ctx, rule, "the datasheet states no shaft torque limit", ds.where("torque_max"),
+                             kind=TORQUE) for rule in ("torque.max", "torque.relief")]
     if np.isnan(est.torque).all():
-        return [Finding("torque.max", WARN, "not checked: the datasheet states no efficiency to compute "
-                        "the shaft torque from", None, ds.torque_max, None, TORQUE, ctx.unit(TORQUE),
-                        where=ds.where("total_efficiency"))]
+        return [_not_checked(ctx, rule, "the datasheet states no efficiency to compute the shaft torque from",
+                             ds.where("total_efficiency"), kind=TORQUE) for rule in ("torque.max", "torque.relief")]
     f = _bound(ctx, "torque.max", est.torque, ds.torque_max, True, TORQUE, ds.where("torque_max"),
                check_nan=True)
+    return [_unproven(f, est), _stall_torque(ctx, nu)]
+
+
+def _unproven(f: Finding, est: performance.Estimate) -> Finding:
     if not est.total_known and f.severity == PASS:
         # only η_v stated: η_hm = 1 was assumed, so the torque is too low and a pass is not proven
-        f = _replace(f, severity=WARN, message=f.message + "; not proven: no total efficiency stated "
-                     "(η_hm = 1 assumed)")
-    return [f]
+        return _replace(f, severity=WARN, message=f.message + "; not proven: no total efficiency stated "
+                        "(η_hm = 1 assumed)")
+    return f
+
+
+def _stall_torque(ctx: _Context, nu: np.ndarray) -> Finding:
+    """Shaft torque when a stalled actuator puts the relief setting plus overshoot on the pump:
+    T = V·Δp / (2π·η_hm), η_hm at that pressure, at the duty's extreme speeds and viscosities (the
+    loss models rise with both, so the corners bound every running segment); common practice is to
+    check shaft and coupling there."""
+    ds, app, duty = ctx.ds, ctx.app, ctx.duty
+    p_stall = app.relief_setting * (1 + app.overshoot)
+    running = duty.speed > 0
+    n = duty.speed[running] if running.any() else duty.speed
+    v = nu[running] if running.any() else nu
+    speeds = np.array([n.min(), n.max(), n.min(), n.max()])
+    visc = np.array([v.min(), v.min(), v.max(), v.max()])
+    rho = app.oil.density_15
+    est = performance.estimate(ds, np.full(4, p_stall), speeds, visc, rho, rho)
+    torque = est.torque
+    if np.isnan(torque).all():
+        return _not_checked(ctx, "torque.relief", "the datasheet states no efficiency to compute the shaft "
+                            "torque from", ds.where("total_efficiency"), kind=TORQUE)
+    i = int(np.nanargmax(torque))
+    worst = float(torque[i])
+    limit = float(ds.torque_max)
+    ok = worst <= limit
+    text = (f"{_fmt(ctx, TORQUE, worst)} at the relief setting {_fmt(ctx, PRESSURE, app.relief_setting)} + "
+            f"{app.overshoot:.0%} overshoot = {_fmt(ctx, PRESSURE, p_stall)} (η_hm "
+            f"{float(est.hydromechanical_efficiency[i]):.4g} at {_fmt(ctx, SPEED, float(speeds[i]))}, "
+            f"{_fmt(ctx, VISCOSITY, float(visc[i]))}), {'within' if ok else 'above'} the shaft's limit "
+            f"{_fmt(ctx, TORQUE, limit)}")
+    f = Finding("torque.relief", PASS if ok else FAIL, text, worst, limit, _margin(worst, limit, True), TORQUE,
+                ctx.unit(TORQUE), "stall at the relief setting", 0 if ok else 1, None, (),
+                ds.where("torque_max"), app.where("relief_setting"))
+    return _unproven(f, est)
 
 
 def _basis(ctx: _Context, est: performance.Estimate) -> Finding:
@@ -744,11 +939,28 @@ def _drive(ctx: _Context, est: performance.Estimate, nu: np.ndarray) -> DriveFig
         rms = float(drive.rms_power(p, t))
         mean = float(drive.mean_power(p, t))
         mean_loss = float(np.dot(lo, t) / np.sum(t))
+    # The flow a fixed pump delivers beyond what the machine takes goes to tank, and all of it becomes heat
+    # in the oil. It leaves the pump at the pump's outlet pressure, which is the duty's pressure: the ratings
+    # and the input power are taken there too, so the heat can never exceed the power drawn. Where the
+    # surplus goes over the relief valve, the pump runs at the relief setting and the duty says so; where it
+    # runs lower, the surplus returns through an unloading or open-centre path at that pressure. A stated
+    # throttle or bypass pressure is taken where the duty's pressure is below it.
+    app = ctx.app
+    if app.surplus_pressure is not None:
+        crossing = np.maximum(duty.pressure, app.surplus_pressure)
+        path = (f"over a throttle at {_fmt(ctx, PRESSURE, app.surplus_pressure)} (at the pump's pressure where "
+                "the duty's is higher)")
+    else:
+        crossing = duty.pressure
+        path = (f"to tank at each segment's pump pressure; over the relief valve where the duty runs at its "
+                f"setting of {_fmt(ctx, PRESSURE, app.relief_setting)}")
+    surplus = np.clip(np.nan_to_num(est.flow) - duty.flow, 0.0, None) * crossing
+    mean_surplus = float(np.dot(surplus, duty.duration) / ctx.cycle) if ctx.cycle > 0 else math.nan
     return DriveFigures(
         duty.duration, nu, est.volumetric_efficiency, est.total_efficiency, est.flow, est.torque, power,
         hyd, loss, float(np.max(est.torque)) if len(duty) else math.nan,
         float(np.max(power)) if len(duty) else math.nan, rms, mean, mean_loss,
-        float(np.dot(power, duty.duration)), est.basis)
+        float(np.dot(power, duty.duration)), est.basis, surplus, mean_surplus, path)
 
 
 def _validate(app: Application) -> None:
@@ -840,7 +1052,7 @@ def check(datasheet: Datasheet, application: Application,
     findings += _viscosity(ctx, nu)
     findings += _temperature(ctx)
     findings += _cleanliness(ctx)
-    findings += _torque(ctx, est)
+    findings += _torque(ctx, est, nu)
     findings += _rotation(ctx)
     findings.append(_basis(ctx, est))
     return CheckResult(datasheet, application, findings, _drive(ctx, est, nu), settings)

@@ -1,18 +1,25 @@
 """The comparison: every candidate pump checked on the same application, with motor, energy and cost.
 
 :func:`compare` runs the checker for each datasheet, then sizes the electric motor for each candidate
-(next standard size of the application's motor standard, on RMS power, with the peak inside the motor's
-short-time overload capacity; :func:`sheetpump.physics.drive.select_motor`), estimates the electrical
-energy per cycle and per year with the motor's full-load efficiency, the energy cost, the heat put into
-the oil, and the cost over the application's evaluation period, and ranks the candidates that pass.
+as practice does: the smallest standard rating of the application's motor standard whose rating (times
+the service factor, 1 by default) carries the RMS load, and whose k × rating (k = 1.6 by default)
+carries the peak, trying each size in turn and saying which criterion binds
+(:func:`sheetpump.physics.drive.select_motor`). The RMS is taken over the cycle, or, for a cycle longer
+than the motor's thermal time (a long measured series; 10 min by default), over the worst window of that
+time (:func:`sheetpump.physics.drive.worst_window_rms`). How long a peak lasts does not enter: heating
+follows the RMS (IEC 60034-1 S6), and the 160 % for 15 s of IEC 60034-1 is a stall test. It then
+estimates the electrical energy per cycle and per year at the motor's part-load efficiency
+(:func:`sheetpump.physics.drive.motor_input_power`: an oversized motor costs energy), the energy cost,
+and the cost over the application's evaluation period, and ranks the candidates that pass.
 
 Ranking: candidates whose verdict is ``pass`` or ``warn`` are ranked by cost over the evaluation period
 (price + energy cost per year × years), ties broken by the worst margin (larger first); a candidate that
 fails a rule is not ranked. A candidate without a price is ranked after those with one, and says so.
 
-Heat into the oil is the pump's own power loss plus the surplus flow (delivered beyond what the machine
-takes) throttled over the relief valve or a valve at the segment's pressure: a fixed pump at fixed speed
-has nowhere else to put it.
+Heat into the oil has one meaning everywhere: the pump's own power loss plus the surplus flow (delivered
+beyond what the machine takes) at the pressure it crosses to tank — the relief setting, or a throttle's
+stated pressure (:class:`sheetpump.checks.DriveFigures`, ``mean_heat``); a fixed pump at fixed speed has
+nowhere else to put it.
 """
 
 from __future__ import annotations
@@ -23,10 +30,10 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
-from .checks import FAIL, CheckResult, CheckSettings, DriveFigures, check, stretches
+from .checks import FAIL, CheckResult, CheckSettings, DriveFigures, check
 from .datasheet import Datasheet
 from .duty import Application
-from .errors import InputError
+from .errors import InputError, Where
 from .physics import drive
 from .physics.pump import PhysicsError
 
@@ -45,15 +52,30 @@ class Candidate:
     electrical_energy_per_cycle: float  # [J]
     electrical_energy_per_year: float  # [J]
     energy_cost_per_year: float  # currency per year
-    heat_to_oil: float  # mean power loss of the pump [W]
     cost_over_period: float | None  # price + energy cost over the evaluation period
-    throttling_heat: float = 0.0  # mean power of the surplus flow over the relief valve or a throttle [W]
+    motor_rms: float = math.nan  # the RMS load the motor is sized on [W]
+    motor_rms_basis: str = "over the cycle"  # or "over the worst 10 min"
     rank: int | None = None
     notes: tuple[str, ...] = ()
 
     @property
     def datasheet(self) -> Datasheet:
         return self.result.datasheet
+
+    @property
+    def pump_heat(self) -> float:
+        """The pump's own power loss, time mean [W]."""
+        return self.result.drive.mean_power_loss
+
+    @property
+    def surplus_heat(self) -> float:
+        """The surplus flow over the relief valve or a throttle, time mean [W]."""
+        return self.result.drive.mean_surplus_heat
+
+    @property
+    def heat_to_oil(self) -> float:
+        """Heat into the oil, time mean [W]: pump loss + surplus."""
+        return self.result.drive.mean_heat
 
     @property
     def flow_margin(self) -> float | None:
@@ -87,41 +109,43 @@ class Comparison:
         return "pass"
 
 
-#: How long a peak above the motor's rating may last and still count on its short-time overload
-#: capacity: IEC 60034-1 allows 60 % excess torque for 15 s (from memory). A longer one sizes on the peak.
-PEAK_SECONDS = 15.0
+def _select(fig: DriveFigures, app: Application,
+            settings: CheckSettings) -> tuple[drive.MotorChoice, str, float, str]:
+    """The motor: the smallest standard size carrying the RMS load (over the cycle, or over the worst
+    thermal window of a long one) and the peak; with the text of its loads, the RMS it was sized on
+    and over what."""
+    use = fig.duration > 0
+    power = np.maximum(fig.input_power[use], 0.0)  # a fitted model may dip below zero near standstill
+    window = settings.thermal_window
+    rms = float(drive.worst_window_rms(power, fig.duration[use], window, app.duty.wraps))
+    basis = f"over the worst {window / 60:g} min" if app.duty.cycle_time > window else "over the cycle"
+    peak = max(fig.peak_power, rms)
+    motor = drive.select_motor(rms, peak, app.motor_standard, settings.overload_factor, settings.service_factor)
+    sf = f" × service factor {motor.service_factor:g}" if motor.service_factor != 1 else ""
+    binds = ("below the smallest size" if motor.binding == "smallest size" else
+             f"{motor.binding} bind{'s' if motor.binding != 'RMS and peak' else ''}")
+    note = (f"RMS {motor.rms_load:.0%} of the rating{sf} ({basis}), peak {motor.peak_load:.0%} "
+            f"(≤ {motor.overload_factor:.0%}); {binds}")
+    return motor, note, rms, basis
 
 
-def _select(fig: DriveFigures, app: Application) -> tuple[drive.MotorChoice, str]:
-    """The motor: sized on RMS power with the peak inside the short-time overload, unless a stretch above
-    the rating lasts longer than :data:`PEAK_SECONDS`, in which case on the peak itself."""
-    peak = max(fig.peak_power, fig.rms_power)
-    motor = drive.select_motor(fig.rms_power, peak, app.motor_standard)
-    power = np.nan_to_num(fig.input_power)
-    _, _, length = stretches(power > motor.rated_power, fig.duration, app.duty.wraps)
-    longest = float(length.max()) if length.size else 0.0
-    if longest > PEAK_SECONDS:
-        motor = drive.select_motor(fig.rms_power, peak, app.motor_standard, overload_factor=1.0)
-        return motor, (f"RMS {motor.rms_load:.0%}, peak {motor.peak_load:.0%}: sized on the peak, which "
-                       f"lasts {longest:g} s (> {PEAK_SECONDS:g} s)")
-    return motor, (f"RMS {motor.rms_load:.0%}, peak {motor.peak_load:.0%} "
-                   f"(≤ {motor.overload_factor:.0%} allowed for ≤ {PEAK_SECONDS:g} s)")
-
-
-def _candidate(result: CheckResult, app: Application) -> Candidate:
+def _candidate(result: CheckResult, app: Application, settings: CheckSettings) -> Candidate:
     fig = result.drive
     notes: list[str] = []
     if result.drive.basis == "stated" and result.datasheet.total_efficiency is None:
         notes.append("no total efficiency stated: torque and power assume no mechanical loss (too low)")
+    motor_rms, rms_basis = math.nan, "over the cycle"
     try:
-        motor, motor_note = _select(fig, app)
-        efficiency = motor.efficiency
+        motor, motor_note, motor_rms, rms_basis = _select(fig, app, settings)
     except PhysicsError as exc:
-        motor, efficiency = None, math.nan
+        motor = None
         motor_note = f"no standard motor: {exc}"
     running = fig.duration > 0  # a segment of no length takes no energy
     if motor is not None and np.all(np.isfinite(fig.input_power[running])):
-        per_cycle = float(drive.electrical_energy(fig.input_power[running], fig.duration[running], efficiency))
+        # at the part-load efficiency of the chosen motor: an oversized one draws its constant losses
+        shaft = np.maximum(fig.input_power[running], 0.0)
+        electrical = drive.motor_input_power(shaft, motor.rated_power, motor.efficiency)
+        per_cycle = float(np.dot(electrical, fig.duration[running]))
     else:
         per_cycle = math.nan
     cycles_per_year = app.cycles_per_hour * app.hours_per_year
@@ -131,13 +155,19 @@ def _candidate(result: CheckResult, app: Application) -> Candidate:
     if price is None:
         notes.append("no price on the datasheet: ranked after the priced candidates")
     cost = (price or 0.0) + cost_per_year * app.evaluation_years
-    # Heat into the oil: the pump's own loss, and the flow it delivers beyond what the machine takes,
-    # which a fixed pump pushes over the relief valve or a throttle at the segment's pressure.
-    d = app.duty
-    surplus = np.clip(np.nan_to_num(fig.flow) - d.flow, 0.0, None) * d.pressure
-    throttled = float(np.sum(surplus * d.duration) / d.cycle_time) if d.cycle_time > 0 else math.nan
-    return Candidate(result, motor, motor_note, per_cycle, per_year, cost_per_year, fig.mean_power_loss,
-                     cost if math.isfinite(cost) else None, throttling_heat=throttled, notes=tuple(notes))
+    return Candidate(result, motor, motor_note, per_cycle, per_year, cost_per_year,
+                     cost if math.isfinite(cost) else None, motor_rms, rms_basis, notes=tuple(notes))
+
+
+def _checked(ds: Datasheet, app: Application, settings: CheckSettings) -> CheckResult:
+    """The check of one datasheet; an error in it names the datasheet's file."""
+    try:
+        return check(ds, app, settings)
+    except InputError as exc:
+        raise exc.at(file=ds.file or None) from None
+    except PhysicsError as exc:
+        raise InputError(f"{exc.argument} {exc.reason}", Where(file=ds.file or None, field=exc.argument)) \
+            from None
 
 
 def compare(datasheets: Sequence[Datasheet], application: Application,
@@ -151,7 +181,8 @@ def compare(datasheets: Sequence[Datasheet], application: Application,
     application : Application
         The machine: settings and duty cycle.
     settings : CheckSettings, optional
-        Display units and strictness, passed to the checker.
+        Display units and strictness, passed to the checker; the motor's overload factor, service
+        factor and thermal time.
 
     Returns
     -------
@@ -179,14 +210,14 @@ def compare(datasheets: Sequence[Datasheet], application: Application,
         raise InputError(f"{application.cycles_per_hour:g} cycles per hour of {application.duty.cycle_time:g} s "
                          f"take {busy / 3600:.2f} hours each hour", application.where("cycles_per_hour"),
                          "check the cycles per hour against the duty's cycle time")
-    return compare_results([check(ds, application, settings) for ds in datasheets], application, settings)
+    return compare_results([_checked(ds, application, settings) for ds in datasheets], application, settings)
 
 
 def compare_results(results: Sequence[CheckResult], application: Application,
                     settings: CheckSettings | None = None) -> Comparison:
     """:func:`compare` of pumps already checked on ``application`` (one :class:`CheckResult` each)."""
     settings = settings or CheckSettings()
-    candidates = [_candidate(r, application) for r in results]
+    candidates = [_candidate(r, application, settings) for r in results]
     passing = [i for i, c in enumerate(candidates)
                if c.result.verdict != FAIL and c.cost_over_period is not None]
     # priced candidates first: a missing price must not make a pump look cheap

@@ -145,7 +145,9 @@ PUMPS: tuple[_Pump, ...] = (
         "sandlow-sl-32.xlsx",
         {**_identity("Sandlow Pumpen", "SL-32", "data sheet rev. C, invented"),
          "displacement": (32.0, "cm^3/rev"), "speed_min": (400, "rpm"), "speed_max": (2800, "rpm"),
-         "speed_rated": (1500, "rpm"), "pressure_continuous": (250, "bar"), "pressure_intermittent": (280, "bar"),
+         "speed_rated": (1500, "rpm"), "speed_min_high_pressure": (800, "rpm"),
+         "high_pressure_threshold": (200, "bar"), "pressure_continuous": (250, "bar"),
+         "pressure_intermittent": (280, "bar"),
          "intermittent_max_duration": (20, "s"), "intermittent_max_share": (20, "%"), "pressure_peak": (300, "bar"),
          "inlet_pressure_min": (0.7, "bara"), "viscosity_min": (12, "mm^2/s"), "viscosity_max": (300, "mm^2/s"),
          "viscosity_min_short": (8, "mm^2/s"), "viscosity_max_cold_start": (1000, "mm^2/s"),
@@ -324,9 +326,8 @@ def run(folder: str | os.PathLike[str] | None = None) -> DemoResult:
     series_paths = inputs[-len(SERIES):]
     sel = select([read_series(str(p)) for p in series_paths], comp.application)
     selection = write_selection(out / "selection.xlsx", sel, inputs=[inputs[0], *series_paths])
-    results = [c.result for c in comp.candidates]
     report = out / "report.txt"
-    text = text_report(results, strict=False)
+    text = text_report(comp, strict=False)
     if SAFETY_CAUTION not in text:
         text += "\n" + SAFETY_CAUTION + "\n"
     atomic_write(report, text)

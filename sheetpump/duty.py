@@ -77,6 +77,8 @@ class Application:
     oil: Oil
     relief_setting: float  # [Pa]
     overshoot: float = 0.1  # relief-valve pressure overshoot to allow [-], e.g. 0.1 for 10 %
+    # pressure the surplus flow crosses to tank when not the relief setting: a throttle or bypass [Pa]
+    surplus_pressure: float | None = None
     speed_min: float | None = None  # drive speed range [rev/s]; None: the duty's speeds
     speed_max: float | None = None
     rotation: str | None = None  # rotation the drive imposes
@@ -91,6 +93,7 @@ class Application:
     speed_margin: float = 0.0  # required headroom inside the speed range [-]
     cold_start_temperature: float | None = None  # lowest oil temperature at a start [K]
     evaluation_years: float = 10.0  # period for the cost over life
+    paper_size: str = "A4"  # paper the reports print on: "A4" or "Letter"
     defaulted: tuple[str, ...] = ()  # settings not given in the workbook, taken at their defaults
     file: str = ""
     sources: dict[str, Where] = field(default_factory=dict)

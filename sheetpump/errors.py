@@ -12,12 +12,17 @@ from dataclasses import dataclass, field
 
 @dataclass
 class Where:
-    """The place a value came from: file, sheet, cell and the field it fills."""
+    """The place a value came from: file, sheet, cell and the field it fills.
+
+    ``note`` says how the value was read where that is not plain to see (``"read as bar (the default
+    unit)"``, ``"typed as 24 rev/s"``).
+    """
 
     file: str | None = None
     sheet: str | None = None
     cell: str | None = None
     field: str | None = None
+    note: str | None = None
 
     def __str__(self) -> str:
         parts = []
@@ -29,8 +34,10 @@ class Where:
             parts.append(f"sheet {self.sheet!r}")
         elif self.cell:
             parts.append(self.cell)
-        if self.field:
-            parts.append(f"({self.field})")
+        if self.field and self.note:
+            parts.append(f"({self.field}; {self.note})")
+        elif self.field or self.note:
+            parts.append(f"({self.field or self.note})")
         return " ".join(parts)
 
 

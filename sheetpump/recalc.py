@@ -12,7 +12,10 @@ Three things the engine does quietly are made loud:
   reported with its sheet, cell and function name;
 * a function that fails while it runs is logged by the engine and its cell left out of the solution:
   every formula cell is checked for a result and a missing one is reported with the reason;
-* a circular reference is cut by the engine (never looped on) and reported with its cells.
+* a circular reference is cut by the engine (never looped on) and reported with its cells;
+* a formula in an ordinary cell whose result is a range would keep only its first element: it spills
+  instead, as a dynamic array does in Excel 365 (see :func:`recalculate`), or, when its range is not
+  empty, shows a ``#SPILL!`` text naming the cell in the way (:attr:`Recalculation.blocked`).
 
 Writing keeps the workbook as it is: the computed values are put into the ``<v>`` element beside each
 ``<f>`` of the sheet XML (and into the cells an array formula spills over), every other part of the file
@@ -37,6 +40,7 @@ import logging
 import math
 import os
 import re
+import tempfile
 import zipfile
 from collections.abc import Iterable, Iterator
 from dataclasses import dataclass, field
@@ -56,6 +60,7 @@ from .files import atomic_path, check_outputs
 __all__ = [
     "DEFAULT_ABS_TOL",
     "DEFAULT_REL_TOL",
+    "SPILL_PREFIX",
     "CellError",
     "Difference",
     "Problem",
@@ -68,6 +73,9 @@ __all__ = [
     "write_values",
 ]
 
+#: The value of a formula whose result has no room to spill starts with this (then says which cell is
+#: in the way); a text, as the project's ``#SP!`` texts are, so every spreadsheet program reads it.
+SPILL_PREFIX = "#SPILL! "
 #: Default relative tolerance of ``--verify``.
 DEFAULT_REL_TOL = 1e-9
 #: Default absolute floor of ``--verify`` (differences below it never count).
@@ -129,12 +137,21 @@ class Recalculation:
     stored: dict[Cell, Any] = field(default_factory=dict)
     formulas: dict[Cell, str] = field(default_factory=dict)
     problems: list[Problem] = field(default_factory=list)
+    #: Formulas in ordinary cells whose result is a range, by (sheet, cell): the range they spill over.
+    spills: dict[Cell, str] = field(default_factory=dict)
+    #: Formulas whose result would spill over cells that are not empty: their cell holds a text starting
+    #: with :data:`SPILL_PREFIX` that names the blocking cell, and formulas using it show ``#N/A``.
+    blocked: list[Problem] = field(default_factory=list)
 
-    def raise_problems(self, limit: int = 5) -> None:
-        """Raise one :class:`InputError` that lists the problems (the first ``limit`` of them)."""
-        if not self.problems:
+    def raise_problems(self, limit: int = 5, *, blocked: bool = False) -> None:
+        """Raise one :class:`InputError` that lists the problems (the first ``limit`` of them).
+
+        With ``blocked``, spills without room count as problems too.
+        """
+        problems = self.problems + (self.blocked if blocked else [])
+        if not problems:
             return
-        first, rest = self.problems[0], self.problems[1:]
+        first, rest = problems[0], problems[1:]
         text = first.message
         if rest:
             text += "; also " + "; ".join(str(p) for p in rest[: limit - 1])
@@ -185,7 +202,7 @@ def _cell_function(calc: Calculation) -> Any:
             result = calc.cell(*values)
         except Exception as exc:  # cell() should never raise; if it does, say so in the cell's report
             return _failed(f"{calc.name} failed with {type(exc).__name__}: {exc}")
-        if isinstance(result, list):
+        if isinstance(result, (list, np.ndarray)):
             return np.asarray(result, dtype=object).view(Array)
         return result
 
@@ -309,6 +326,8 @@ class _Sheet:
     formulas: dict[str, str] = field(default_factory=dict)  # cell -> formula text ("" for shared children)
     arrays: dict[str, str] = field(default_factory=dict)  # anchor cell -> ref of an array formula
     stored: dict[str, Any] = field(default_factory=dict)  # cell -> stored value of formula/array cells
+    occupied: set[str] = field(default_factory=set)  # cells holding a value or a formula (spill blockers)
+    shared: set[str] = field(default_factory=set)  # cells of a shared (filled-down) formula
 
 
 def _book_sheets(archive: zipfile.ZipFile) -> list[_Sheet]:
@@ -402,6 +421,9 @@ def _scan(path: Path) -> list[_Sheet]:
                 if f:
                     f_attrs = _attrs(f.group(2))
                     sheet.formulas[ref] = html.unescape(f.group(3) or "")
+                    sheet.occupied.add(ref)
+                    if f_attrs.get("t") == "shared":
+                        sheet.shared.add(ref)
                     if f_attrs.get("t") == "array":
                         sheet.arrays[ref] = f_attrs.get("ref", ref)
                         covered.update(c for row in _range_cells(sheet.arrays[ref]) for c in row)
@@ -409,6 +431,9 @@ def _scan(path: Path) -> list[_Sheet]:
             for ref, attrs, inner in cells:
                 if ref in wanted:
                     sheet.stored[ref] = _stored_value(attrs, inner, strings)
+                elif inner and _stored_value(attrs, inner, strings) not in (None, ""):
+                    sheet.occupied.add(ref)
+            sheet.occupied |= covered
             for ref in covered:
                 sheet.stored.setdefault(ref, None)
         return sheets
@@ -536,10 +561,15 @@ def recalculate(path: str | os.PathLike[str], *, engine: str = "auto") -> Recalc
         every formula is in its subset and with the ``formulas`` engine otherwise; ``"formulas"``
         always uses the engine (the reference the fast path is tested against).
 
+    A formula in an ordinary cell whose result is a range spills into the cells below and to the
+    right, which must be empty; formulas reading those cells see the spilled values (passes of the
+    engine until no spill changes). A spill whose range is not empty is listed in ``blocked``.
+
     Returns
     -------
     Recalculation
-        Computed and stored values of the formula cells, and the problems found (unsupported
+        Computed and stored values of the formula cells (and of the cells spilled into), the spills
+        and the spills blocked, and the problems found (unsupported
         functions, failed cells, circular references). Problems do not raise here; see
         :meth:`Recalculation.raise_problems`.
 
@@ -560,7 +590,6 @@ def recalculate(path: str | os.PathLike[str], *, engine: str = "auto") -> Recalc
         if fast is not None:
             return fast
 
-    import formulas
     from formulas.excel import ERR_CIRCULAR
 
     sheets = _scan(path)
@@ -576,17 +605,27 @@ def recalculate(path: str | os.PathLike[str], *, engine: str = "auto") -> Recalc
     if result.problems:
         return result
 
-    with _quiet_engine():
-        try:
-            model = formulas.ExcelModel().loads(str(path.resolve())).finish(circular=True)
-        except Exception as exc:  # the engine raises many kinds on a bad formula
-            raise InputError(f"the formula engine cannot read this workbook: {_engine_error(exc)}",
-                             Where(file=str(path))) from exc
-        model.dsp.raises = False  # a failing function is logged, its cell left out: we report it below
-        solution = model.calculate()
+    # Dynamic arrays: a formula in an ordinary cell whose result is a range spills into the cells
+    # below and to the right, as in Excel 365. The engine keeps only the top-left element of such a
+    # result, so each pass records the full shapes, turns the formulas that spill into array formulas
+    # over their ranges (in a temporary copy) and computes again, until no spill changes: formulas
+    # that read a spilled range then see all of it, and spills fed by spills settle in turn.
+    spills: dict[Cell, str] = {}
+    blocked: dict[Cell, Problem] = {}
+    for _ in range(_SPILL_PASSES):
+        model, solution, shapes = _engine_pass(path, spills, blocked)
+        index = _engine_key_index(model.dsp.data_nodes, path.name)
+        if not _settle_spills(sheets, index, shapes, spills, blocked):
+            break
+    else:
+        first = next(iter({**spills, **blocked}), (sheets[0].name, "A1"))
+        result.problems.append(Problem(*first, f"the spilled ranges did not settle after {_SPILL_PASSES} "
+                                       "passes (spills that feed each other)"))
+        return result
+    result.spills = dict(spills)
+    result.blocked = list(blocked.values())
     errors = dict(getattr(solution, "_errors", {}) or {})
 
-    index = _engine_key_index(model.dsp.data_nodes, path.name)
     circular_nodes = {k for k, v in model.dsp.default_values.items() if v.get("value") is ERR_CIRCULAR}
     circular_cells = []
     pred = model.dsp.dmap.pred
@@ -594,7 +633,7 @@ def recalculate(path: str | os.PathLike[str], *, engine: str = "auto") -> Recalc
         upper = sheet.name.upper()
         covered = {c for a in sheet.arrays.values() for row in _range_cells(a) for c in row}
         targets = dict(sheet.arrays)
-        targets.update((ref, ref) for ref in sheet.formulas if ref not in covered)
+        targets.update((ref, spills.get((sheet.name, ref), ref)) for ref in sheet.formulas if ref not in covered)
         for anchor, ref in targets.items():
             key = index.get((upper, ref))
             if key is not None and key in circular_nodes:
@@ -619,6 +658,8 @@ def recalculate(path: str | os.PathLike[str], *, engine: str = "auto") -> Recalc
         more = ", ..." if len(circular_cells) > 8 else ""
         result.problems.append(Problem(*circular_cells[0], f"circular reference: the formulas of {shown}{more} "
                                        "depend on each other in a loop"))
+    for problem in result.blocked:  # the anchor of a spill with no room says why, as #SPILL! does
+        result.values[(problem.sheet, problem.cell)] = f"{SPILL_PREFIX}{problem.message}"
     for key, value in list(result.values.items()):
         if isinstance(value, _Reported):
             result.problems.append(Problem(*key, value.message))
@@ -627,6 +668,109 @@ def recalculate(path: str | os.PathLike[str], *, engine: str = "auto") -> Recalc
     result.values = dict(sorted(result.values.items(),
                                 key=lambda kv: (order[kv[0][0]], *_split_ref(kv[0][1]))))
     return result
+
+
+_SPILL_PASSES = 20  # a chain of spills each fed by the one before settles in one pass per link
+_MAX_ROWS, _MAX_COLS = 1_048_576, 16_384  # the sheet's edge (Excel's grid)
+
+
+def _engine_pass(path: Path, spills: dict[Cell, str], blocked: dict[Cell, Problem]) -> tuple[Any, Any, dict]:
+    """One computation by the engine: (model, solution, shape of every node's full result).
+
+    The spilling formulas of ``spills`` are computed as array formulas over their ranges, and those
+    whose spill is blocked as ``NA()`` (so formulas that use them show an error, not a stale value),
+    in a temporary copy of the workbook with the same file name (the engine's node ids contain it).
+    """
+    import formulas
+
+    shapes: dict[str, tuple[int, ...]] = {}
+    with tempfile.TemporaryDirectory(prefix="sheetpump-spill-") as tmp:
+        source = path
+        if spills or blocked:
+            source = Path(tmp) / path.name
+            rewritten: dict[Cell, tuple[str | None, str | None]] = {k: (ref, None) for k, ref in spills.items()}
+            rewritten.update((k, (None, "NA()")) for k in blocked)
+            _copy_package(path, source, dict.fromkeys(rewritten), rewritten)
+        with _quiet_engine(), _recording_shapes(shapes):
+            try:
+                model = formulas.ExcelModel().loads(str(source.resolve())).finish(circular=True)
+            except Exception as exc:  # the engine raises many kinds on a bad formula
+                raise InputError(f"the formula engine cannot read this workbook: {_engine_error(exc)}",
+                                 Where(file=str(path))) from exc
+            model.dsp.raises = False  # a failing function is logged, its cell left out: reported later
+            solution = model.calculate()
+    return model, solution, shapes
+
+
+@contextlib.contextmanager
+def _recording_shapes(shapes: dict[str, tuple[int, ...]]) -> Iterator[None]:
+    """Record the shape of each result before the engine cuts it to its cell (by engine node id)."""
+    import formulas.cell as cell_module
+    from formulas.ranges import Ranges
+
+    original = cell_module.format_output
+
+    def format_output(rng: dict[str, Any], value: Any) -> Any:
+        shapes[rng["name"]] = np.shape(value.value if isinstance(value, Ranges) else value)
+        return original(rng, value)
+
+    cell_module.format_output = format_output  # looked up when the model is built
+    try:
+        yield
+    finally:
+        cell_module.format_output = original
+
+
+def _settle_spills(sheets: list[_Sheet], index: dict[tuple[str, str], Any], shapes: dict[str, tuple[int, ...]],
+                   spills: dict[Cell, str], blocked: dict[Cell, Problem]) -> bool:
+    """Update ``spills`` and ``blocked`` from the shapes of one pass; whether anything changed.
+
+    Formulas are taken in row order; each spill claims its range, and a spill whose range holds a value,
+    a formula, an array formula or an earlier spill is blocked, naming the first such cell.
+    """
+    changed = False
+    for sheet in sheets:
+        upper = sheet.name.upper()
+        covered = {c for a in sheet.arrays.values() for row in _range_cells(a) for c in row}
+        claimed: dict[str, str] = {}
+        for anchor in sorted(sheet.formulas, key=_split_ref):
+            key = (sheet.name, anchor)
+            if anchor in covered or key in blocked:
+                continue
+            current = spills.get(key)
+            shape = shapes.get(index.get((upper, current or anchor)), ())
+            rows, cols = (shape if len(shape) == 2 else (1, int(np.prod(shape))))
+            if rows * cols <= 1:
+                if current is not None:
+                    del spills[key]
+                    changed = True
+                continue
+            row0, col0 = _split_ref(anchor)
+            wanted = f"{anchor}:{_ref(col0 + cols - 1, row0 + rows - 1)}"
+            reason = None
+            if row0 + rows - 1 > _MAX_ROWS or col0 + cols - 1 > _MAX_COLS:
+                reason = "it runs past the edge of the sheet"
+            elif anchor in sheet.shared:
+                reason = "it is a filled-down (shared) formula: enter the formula in a cell of its own"
+            else:
+                for cell in (c for row in _range_cells(wanted) for c in row if c != anchor):
+                    if cell in sheet.occupied:
+                        reason = f"{cell} is not empty (clear {cell} or move the formula)"
+                        break
+                    if cell in claimed:
+                        reason = f"{cell} is in the spilled range of {claimed[cell]} (move one of the formulas)"
+                        break
+            if reason is not None:
+                blocked[key] = Problem(sheet.name, anchor, f"the formula's {rows} x {cols} results need "
+                                       f"{wanted}, but {reason}")
+                spills.pop(key, None)
+                changed = True
+                continue
+            claimed.update((c, anchor) for row in _range_cells(wanted) for c in row)
+            if current != wanted:
+                spills[key] = wanted
+                changed = True
+    return changed
 
 
 def _failure(key: Any, pred: Any, errors: dict[Any, str]) -> str:
@@ -681,7 +825,7 @@ def evaluate_workbook(path: str | os.PathLike[str]) -> dict[Cell, Any]:
         function, circular reference, failed function).
     """
     result = recalculate(path)
-    result.raise_problems()
+    result.raise_problems(blocked=True)
     return result.values
 
 
@@ -755,17 +899,26 @@ def _set_attr(attrs: str, name: str, value: str | None) -> str:
     return attrs
 
 
-def _cell_xml(prefix: str, attrs: str, inner: str, value: Any) -> str:
+#: A formula to rewrite: (the range it becomes an array formula over, or None; its new text, or None).
+_Rewrite = tuple[str | None, str | None]
+
+
+def _cell_xml(prefix: str, attrs: str, inner: str, value: Any, rewrite: _Rewrite | None = None) -> str:
     kind, v = _value_xml(prefix, value)
     attrs = _set_attr(attrs.rstrip(), "t", kind)
     f = _F_RE.search(inner) if inner else None
     ext = (re.search(rf"<{re.escape(prefix)}extLst\b.*?</{re.escape(prefix)}extLst>", inner, re.S)
            if "extLst" in inner else None)
-    body = (f.group(0) if f else "") + v + (ext.group(0) if ext else "")
+    formula = f.group(0) if f else ""
+    if f and rewrite is not None:
+        ref, text = rewrite
+        array = f' t="array" ref="{ref}"' if ref else ""
+        formula = f"<{f.group(1)}f{array}>{escape(text) if text is not None else f.group(3) or ''}</{f.group(1)}f>"
+    body = formula + v + (ext.group(0) if ext else "")
     return f"<{prefix}c{attrs}>{body}</{prefix}c>"
 
 
-def _patch_rows(text: str, prefix: str, values: dict[str, Any]) -> str:
+def _patch_rows(text: str, prefix: str, values: dict[str, Any], rewrites: dict[str, _Rewrite]) -> str:
     """Rewrite the rows of a sheetData body: set values of existing cells, insert missing ones."""
     by_row: dict[int, dict[int, str]] = {}
     for ref in values:
@@ -790,7 +943,7 @@ def _patch_rows(text: str, prefix: str, values: dict[str, Any]) -> str:
             if missing in by_row:
                 out.append(_new_row(prefix, missing, by_row.pop(missing), values))
         wanted = by_row.pop(number, None)
-        out.append(_patched_row(m, number, wanted, values) if wanted else m.group(0))
+        out.append(_patched_row(m, number, wanted, values, rewrites) if wanted else m.group(0))
     out.append(text[pos:])
     for missing in sorted(by_row):
         out.append(_new_row(prefix, missing, by_row[missing], values))
@@ -802,7 +955,8 @@ def _new_row(prefix: str, number: int, cols: dict[int, str], values: dict[str, A
     return f'<{prefix}row r="{number}">{cells}</{prefix}row>'
 
 
-def _patched_row(m: re.Match[str], number: int, wanted: dict[int, str], values: dict[str, Any]) -> str:
+def _patched_row(m: re.Match[str], number: int, wanted: dict[int, str], values: dict[str, Any],
+                 rewrites: dict[str, _Rewrite]) -> str:
     prefix, row_attrs, body = m.group(1), m.group(2), m.group(3) or ""
     pieces: list[str] = []
     pos = 0
@@ -826,7 +980,7 @@ def _patched_row(m: re.Match[str], number: int, wanted: dict[int, str], values: 
         pos = cm.end()
         if col is not None and col in wanted:
             wanted.pop(col)
-            pieces.append(_cell_xml(cm.group(1), cm.group(2), cm.group(3) or "", values[ref]))
+            pieces.append(_cell_xml(cm.group(1), cm.group(2), cm.group(3) or "", values[ref], rewrites.get(ref)))
         else:
             pieces.append(cm.group(0))
     tail = body[pos:]
@@ -846,7 +1000,7 @@ def _ref(col: int, row: int) -> str:
     return f"{_column_letters(col)}{row}"
 
 
-def _patch_cells(text: str, values: dict[str, Any]) -> str | None:
+def _patch_cells(text: str, values: dict[str, Any], rewrites: dict[str, _Rewrite]) -> str | None:
     """Set the values of existing cells in one pass; None when some cell of ``values`` is not in the file."""
     seen: set[str] = set()
 
@@ -855,49 +1009,61 @@ def _patch_cells(text: str, values: dict[str, Any]) -> str | None:
         if ref is None or ref not in values:
             return cm.group(0)
         seen.add(ref)
-        return _cell_xml(cm.group(1), cm.group(2), cm.group(3) or "", values[ref])
+        return _cell_xml(cm.group(1), cm.group(2), cm.group(3) or "", values[ref], rewrites.get(ref))
 
     patched = _CELL_RE.sub(patch, text)
     return patched if len(seen) == len(values) else None
 
 
-def _patch_sheet(text: str, values: dict[str, Any]) -> str:
+def _patch_sheet(text: str, values: dict[str, Any], rewrites: dict[str, _Rewrite]) -> str:
     m = _SHEETDATA_RE.search(text)
     if not m or not values:
         return text
     prefix, attrs, body = m.group(1), m.group(2), m.group(3) or ""
-    patched = _patch_cells(body, values)
+    patched = _patch_cells(body, values, rewrites)
     if patched is None:  # some cells must be added: row by row
-        patched = _patch_rows(body, prefix, values)
+        patched = _patch_rows(body, prefix, values, rewrites)
     return f"{text[:m.start()]}<{prefix}sheetData{attrs}>{patched}</{prefix}sheetData>{text[m.end():]}"
 
 
 def write_values(source: str | os.PathLike[str], target: str | os.PathLike[str],
-                 values: dict[Cell, Any]) -> Path:
+                 values: dict[Cell, Any], spills: dict[Cell, str] | None = None) -> Path:
     """Copy a workbook with ``values`` stored beside its formulas; written atomically, source untouched.
 
     Every package part other than the worksheets that get values is copied unchanged; in those, each
     listed cell gets its ``<v>`` (and type) set, its formula kept; cells an array formula covers that
-    the file lacks are added.
+    the file lacks are added. A formula of ``spills`` (``(sheet, cell) -> range``, as
+    :attr:`Recalculation.spills`) is written as an array formula over its range, so that every
+    spreadsheet program, and a later ``recalc``, sees the same spilled range; the cells it spills into
+    get their values and no formula.
     """
     source, target = Path(source), Path(target)
     check_outputs([(None, target)], [("the workbook", source)])
+    _copy_package(source, target, values, {k: (ref, None) for k, ref in (spills or {}).items()})
+    return target
+
+
+def _copy_package(source: Path, target: Path, values: dict[Cell, Any], rewrites: dict[Cell, _Rewrite]) -> None:
+    """:func:`write_values`, with the formulas of ``rewrites`` changed (each of those cells in ``values``)."""
     with zipfile.ZipFile(source) as archive:
         sheets = {s.name: s.part for s in _book_sheets(archive)}
         per_part: dict[str, dict[str, Any]] = {}
         for (sheet, cell), value in values.items():
             per_part.setdefault(sheets[sheet], {})[cell] = value
+        part_rewrites: dict[str, dict[str, _Rewrite]] = {}
+        for (sheet, cell), rewrite in rewrites.items():
+            part_rewrites.setdefault(sheets[sheet], {})[cell] = rewrite
         with atomic_path(target) as tmp, zipfile.ZipFile(tmp, "w", zipfile.ZIP_DEFLATED) as out:
             for info in archive.infolist():
                 if _is_macro_part(info.filename):
                     continue  # macros are never written back (a recalculated .xlsm is a plain workbook)
                 data = archive.read(info)
                 if info.filename in per_part:
-                    data = _patch_sheet(data.decode("utf-8"), per_part[info.filename]).encode("utf-8")
+                    data = _patch_sheet(data.decode("utf-8"), per_part[info.filename],
+                                        part_rewrites.get(info.filename, {})).encode("utf-8")
                 elif info.filename in ("[Content_Types].xml", "xl/_rels/workbook.xml.rels"):
                     data = _without_macros(info.filename, data.decode("utf-8")).encode("utf-8")
                 out.writestr(info, data, compress_type=zipfile.ZIP_DEFLATED)
-    return target
 
 
 _MACRO_PARTS = re.compile(r"^xl/(vbaProject\.bin|vbaProjectSignature\.bin|vbaData\.xml|_rels/vbaProject\.bin\.rels)$")

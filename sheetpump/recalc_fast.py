@@ -465,7 +465,7 @@ def _calc_cell(calc: Calculation, args: list[Any]) -> Any:
         result = calc.cell(*args)
     except Exception as exc:  # the engine reports the cell: let it
         raise UnsupportedError(f"{calc.name} raised") from exc
-    if isinstance(result, list):
+    if isinstance(result, (list, np.ndarray)):
         raise UnsupportedError(f"{calc.name} gave a range")
     return result
 

@@ -28,7 +28,7 @@ from dataclasses import dataclass, field
 import numpy as np
 
 from . import performance
-from .checks import FAIL, INFO, PASS, CheckSettings, Finding, check, prepare
+from .checks import FAIL, INFO, NOT_CHECKED, PASS, CheckSettings, Finding, check, prepare
 from .comparison import Candidate, compare_results
 from .datasheet import Datasheet
 from .duty import Application
@@ -132,7 +132,7 @@ def worst(c: Candidate) -> Finding | None:
     bad = failing(c)
     if bad:
         return bad[0]
-    judged = [f for f in c.result.findings if f.severity != INFO and f.margin is not None
+    judged = [f for f in c.result.findings if f.severity not in (INFO, NOT_CHECKED) and f.margin is not None
               and math.isfinite(f.margin) and f.rule not in APPLICATION_RULES]
     return min(judged, key=lambda f: f.margin, default=None)  # type: ignore[arg-type, return-value]
 

@@ -13,6 +13,13 @@ Two conventions of the trade that a general unit library does not share:
 * Inlet pressure is absolute. ``bara``/``psia`` say so explicitly; ``barg``/``psig`` are converted by
   adding one standard atmosphere (101.325 kPa).
 
+Units are read as the trade writes them (:func:`spelling`): ``PSI``, ``Bar``, ``KW``, ``GPM``, ``LPM``,
+``cc``, ``ccm``, ``cu in/rev``, ``Nm``, ``lb-ft``, ``°C``, ``C`` in a temperature, ``bar(g)`` ... The
+words in :data:`FOLDED` are read in any case; every other word keeps its case, so SI prefixes keep their
+meaning (``mW`` is not ``MW``), and a spelling that could be either (``Mpa``, ``mw``) is refused naming
+both. Each kind of quantity declares the range of magnitudes sheetpump reads (:attr:`Kind.span`,
+:func:`check_span`): a value outside it is a slip, not a pump.
+
 Parsed unit strings and whole value strings are cached, so a spreadsheet full of ``"250 bar"`` costs
 one parse.
 
@@ -40,12 +47,20 @@ import pint
 from .errors import InputError, Where
 
 __all__ = [
+    "FOLDED",
     "KINDS",
     "Kind",
     "all_finite",
+    "check_span",
     "check_unit",
+    "decimal_comma",
     "default_factor",
     "from_si",
+    "outside_span",
+    "physical_unit",
+    "span_text",
+    "spelling",
+    "split_number",
     "to_si",
     "unit_factor",
     "ureg",
@@ -78,6 +93,8 @@ class Kind:
 
     ``default`` is the unit a bare number is taken in; ``si`` the unit of the number inside;
     ``angle`` is -1 for "per revolution" kinds, +1 for "revolutions per time", 0 otherwise.
+    ``span`` is the range of magnitudes read, in the default unit: a non-zero magnitude below the
+    first or above the second is refused as a slip (for a temperature: the lowest and highest value).
     There is one object per kind (the constants below, listed in :data:`KINDS`), compared by identity:
     a kind keys the unit caches on every cell call, and an identity hash costs nothing.
     """
@@ -89,6 +106,7 @@ class Kind:
     angle: int = 0
     absolute: bool = False
     offset: bool = False
+    span: tuple[float, float] | None = None
 
     def __repr__(self) -> str:
         return f"Kind({self.name!r})"
@@ -101,21 +119,23 @@ def _kind_named(name: str) -> Kind:
     return KINDS[name]
 
 
-DISPLACEMENT = Kind("displacement", "cm^3/rev", "m^3/rev", "28 cm^3/rev", angle=-1)
-SPEED = Kind("speed", "rpm", "rev/s", "1500 rpm", angle=+1)
-PRESSURE = Kind("pressure", "bar", "Pa", "250 bar")
-ABS_PRESSURE = Kind("absolute pressure", "bara", "Pa", "0.8 bara", absolute=True)
-FLOW = Kind("flow", "L/min", "m^3/s", "40 L/min")
-POWER = Kind("power", "kW", "W", "15 kW")
-TORQUE = Kind("torque", "N*m", "N*m", "120 N*m")
-TEMPERATURE = Kind("temperature", "degC", "K", "50 degC", offset=True)
-VISCOSITY = Kind("kinematic viscosity", "mm^2/s", "m^2/s", "46 mm^2/s")
-DYN_VISCOSITY = Kind("dynamic viscosity", "mPa*s", "Pa*s", "40 mPa*s")
-DENSITY = Kind("density", "kg/m^3", "kg/m^3", "870 kg/m^3")
-DURATION = Kind("duration", "s", "s", "12 s")
-FREQUENCY = Kind("frequency", "Hz", "Hz", "250 Hz")
-ENERGY = Kind("energy", "kWh", "J", "3.5 kWh")
-MASS = Kind("mass", "kg", "kg", "9.5 kg")
+# Spans are generous on purpose (far beyond any gear pump and machine), so they only catch slips and
+# absurd values: 1e308 cm³/rev, 1e-300 rpm, a duration of a century.
+DISPLACEMENT = Kind("displacement", "cm^3/rev", "m^3/rev", "28 cm^3/rev", angle=-1, span=(0.01, 1e5))
+SPEED = Kind("speed", "rpm", "rev/s", "1500 rpm", angle=+1, span=(0.01, 1e5))
+PRESSURE = Kind("pressure", "bar", "Pa", "250 bar", span=(1e-6, 1e4))
+ABS_PRESSURE = Kind("absolute pressure", "bara", "Pa", "0.8 bara", absolute=True, span=(1e-6, 1e4))
+FLOW = Kind("flow", "L/min", "m^3/s", "40 L/min", span=(1e-6, 1e5))
+POWER = Kind("power", "kW", "W", "15 kW", span=(1e-6, 1e5))
+TORQUE = Kind("torque", "N*m", "N*m", "120 N*m", span=(1e-6, 1e6))
+TEMPERATURE = Kind("temperature", "degC", "K", "50 degC", offset=True, span=(-100.0, 500.0))
+VISCOSITY = Kind("kinematic viscosity", "mm^2/s", "m^2/s", "46 mm^2/s", span=(0.01, 1e6))
+DYN_VISCOSITY = Kind("dynamic viscosity", "mPa*s", "Pa*s", "40 mPa*s", span=(0.001, 1e7))
+DENSITY = Kind("density", "kg/m^3", "kg/m^3", "870 kg/m^3", span=(10.0, 1e5))
+DURATION = Kind("duration", "s", "s", "12 s", span=(1e-6, 366 * 86400.0))  # up to a (leap) year
+FREQUENCY = Kind("frequency", "Hz", "Hz", "250 Hz", span=(1e-6, 1e7))
+ENERGY = Kind("energy", "kWh", "J", "3.5 kWh", span=(1e-9, 1e12))
+MASS = Kind("mass", "kg", "kg", "9.5 kg", span=(1e-4, 1e6))
 EFFICIENCY = Kind("efficiency", "", "", "0.92")
 NUMBER = Kind("number", "", "", "9")
 
@@ -130,15 +150,75 @@ KINDS: dict[str, Kind] = {
 _NUMBER_UNIT = re.compile(r"^\s*([+-]?(?:\d+\.?\d*|\.\d+)(?:[eE][+-]?\d+)?)\s*(.*?)\s*$")
 _SPELLINGS = (
     ("³", "**3"), ("²", "**2"), ("·", "*"), ("⋅", "*"), ("×", "*"), ("µ", "u"), ("μ", "u"),
-    ("°C", "degC"), ("°F", "degF"), ("℃", "degC"), ("℉", "degF"), ("in3", "in**3"), ("cm3", "cm**3"),
-    ("mm2", "mm**2"),
+    ("°C", "degC"), ("°F", "degF"), ("℃", "degC"), ("℉", "degF"), ("ºC", "degC"), ("ºF", "degF"),
+    ("°K", "K"), ("Δ", "delta_"),
 )
+
+#: Unit words read in any case (``PSI``, ``Bar``, ``KW``, ``gpm``), lower case -> pint's spelling. These
+#: are the trade words whose case carries no meaning; every other word keeps its case, so an SI prefix
+#: keeps its meaning (``mW`` milliwatt, ``MW`` megawatt; ``mPa`` millipascal, ``MPa`` megapascal).
+FOLDED: dict[str, str] = {w.lower(): w for w in (
+    "psi", "psia", "psig", "ksi", "bar", "bara", "barg", "kPa", "kPaa", "kPag", "kW", "kWh", "hp",
+    "gpm", "lpm", "cc", "cSt", "rpm", "rev", "degC", "degF", "min", "L", "lbf", "lb", "ft", "in",
+)} | {"ccm": "cc"}  # ccm: the German "Kubikzentimeter", a displacement in cm³
+
+#: Spellings that could mean two units when case is ignored: refused unless written exactly.
+_AMBIGUOUS: dict[str, tuple[str, ...]] = {
+    "mpa": ("MPa", "mPa"), "mw": ("MW", "mW"), "mbar": ("mbar", "Mbar"), "nm": ("N*m", "nm"),
+}
+_NAMES = {"MPa": "megapascal", "mPa": "millipascal", "MW": "megawatt", "mW": "milliwatt", "mbar": "millibar",
+          "Mbar": "megabar", "N*m": "newton-metre", "nm": "nanometre"}
+_WORD = re.compile(r"[A-Za-z_]+")
+_POWER_DIGIT = re.compile(r"(?<=[A-Za-z])([23])(?![\w.])")  # cm3 -> cm**3, mm2 -> mm**2, m3/h -> m**3/h
+_CUBIC = re.compile(r"(?i)\bcu\b\.?\s*(in|ft|cm|mm)\b\.?")  # cu in, cu. in., cu ft
+_TORQUE_WORDS = re.compile(r"(?i)\b(?:lbf?\s*[-*. ]?\s*(ft|in)|(ft|in)\s*[-*. ]?\s*lbf?)\b")  # lb-ft, in-lb
+_GAUGE_SUFFIX = re.compile(r"(?i)\b(bar|psi|kpa)\s*\(\s*([ag])\s*\)")  # bar(g), psi (a)
+_DOT_PRODUCT = re.compile(r"(?<=[A-Za-z])\.(?=[A-Za-z])")  # N.m, mPa.s
+_TEMPERATURE_WORDS = {"c": "degC", "deg c": "degC", "celsius": "degC", "f": "degF", "deg f": "degF",
+                      "fahrenheit": "degF", "k": "K", "kelvin": "K"}
+_MAX_UNIT_TEXT = 60
 
 
 def _normalise(unit: str) -> str:
     for old, new in _SPELLINGS:
         unit = unit.replace(old, new)
     return unit.strip()
+
+
+@lru_cache(maxsize=4096)
+def spelling(unit: str, kind: Kind | None = None) -> str:
+    """The unit as pint spells it, from the unit as the trade writes it (see :data:`FOLDED`).
+
+    Raises :class:`InputError` (without a place) for a spelling that could be two units.
+
+    >>> spelling("PSI"), spelling("KW"), spelling("cu in/rev"), spelling("lb-ft"), spelling("bar(g)")
+    ('psi', 'kW', 'in**3/rev', 'lbf*ft', 'barg')
+    >>> spelling("C", TEMPERATURE), spelling("Nm", TORQUE), spelling("N.m")
+    ('degC', 'N*m', 'N*m')
+    """
+    text = _normalise(unit)
+    if kind is not None and kind.offset and text.lower() in _TEMPERATURE_WORDS:
+        return _TEMPERATURE_WORDS[text.lower()]
+    text = _CUBIC.sub(lambda m: f"{m.group(1)}**3", text)
+    text = _TORQUE_WORDS.sub(lambda m: f"lbf*{(m.group(1) or m.group(2)).lower()}", text)
+    text = _GAUGE_SUFFIX.sub(lambda m: m.group(1) + m.group(2).lower(), text)
+    text = _DOT_PRODUCT.sub("*", text)
+    text = _POWER_DIGIT.sub(r"**\1", text)
+
+    def word(match: re.Match[str]) -> str:
+        w = match.group(0)
+        if w == "Nm" or (w.lower() == "nm" and kind is TORQUE):
+            return "N*m"  # newton-metre: sheetpump has no length, and no torque is written in nanometres
+        low = w.lower()
+        if low in FOLDED:
+            return FOLDED[low]
+        choices = _AMBIGUOUS.get(low)
+        if choices and w not in choices:
+            named = " or ".join(f"{c!r} ({_NAMES[c]})" for c in choices)
+            raise InputError(f"{unit!r} could be {named}", hint="write the unit with its exact case")
+        return w
+
+    return _WORD.sub(word, text).strip()
 
 
 def _dims_without_angle(root_units: Any) -> dict[str, float]:
@@ -163,34 +243,63 @@ def _describe(root_dims: dict[str, float]) -> str:
     return "a unit of another kind"
 
 
+_PARSE_ERRORS = (pint.errors.PintError, AttributeError, TypeError, ValueError, SyntaxError, AssertionError,
+                 KeyError, ArithmeticError, RecursionError, tokenize.TokenError)
+
+
+def _parse(unit: str, text: str, kind: Kind) -> Any:
+    """pint's reading of an already spelled unit; every failure of pint becomes one InputError."""
+    if len(text) > _MAX_UNIT_TEXT:
+        raise InputError(f"unit text of {len(text)} characters", hint=f"write e.g. {kind.example!r}")
+    if re.search(r"(?i)\bdB|\bdecibel|\bneper|\bNp\b", text):
+        raise InputError(f"{unit!r} is a level in decibels, not a {kind.name}", hint=f"write e.g. {kind.example!r}")
+    try:
+        parsed = ureg.parse_units(text)
+    except _PARSE_ERRORS as exc:  # pint raises many kinds for nonsense like '1/0', 'bar^-0' or 'm/0'
+        raise InputError(f"unknown unit {unit!r}", hint=f"write e.g. {kind.example!r}") from exc
+    if any(name.startswith("delta_") for name in parsed._units):
+        raise InputError(f"{unit!r} is a temperature difference, not a {kind.name}",
+                         hint=f"write e.g. {kind.example!r}")
+    return parsed
+
+
 @lru_cache(maxsize=4096)
 def unit_factor(unit: str, kind: Kind) -> tuple[float, float]:
     """Return ``(factor, offset)`` with ``si = value * factor + offset`` for ``unit`` as a ``kind``.
 
-    Raises :class:`InputError` (without a place) for an unknown unit or one of another dimension.
+    The unit may be spelled as the trade writes it (:func:`spelling`). Raises :class:`InputError`
+    (without a place) for an unknown, absurd or ambiguous unit or one of another kind; never anything else.
 
     >>> unit_factor("L/min", FLOW)
     (1.666...e-05, 0.0)
     >>> unit_factor("cc", DISPLACEMENT)[0]
     1.0000000000000002e-06
     """
-    text = _normalise(unit)
+    text = spelling(unit, kind)
     if kind in (EFFICIENCY, NUMBER) and text in ("", "1"):
         return 1.0, 0.0
     if not text:
         text = kind.default
+    parsed = _parse(unit, text, kind)
     try:
-        parsed = ureg.parse_units(text)
-    except (pint.errors.UndefinedUnitError, pint.errors.DefinitionSyntaxError, AttributeError,
-            TypeError, ValueError, SyntaxError, AssertionError, tokenize.TokenError) as exc:
+        factor, offset = _factor(unit, text, parsed, kind)
+    except InputError:
+        raise
+    except _PARSE_ERRORS as exc:  # overflow of 'bar^1e9' and the like while converting
         raise InputError(f"unknown unit {unit!r}", hint=f"write e.g. {kind.example!r}") from exc
+    if not (math.isfinite(factor) and math.isfinite(offset) and factor > 0.0):
+        raise InputError(f"{unit!r} is not a usable unit", hint=f"write e.g. {kind.example!r}")
+    return factor, offset
+
+
+def _factor(unit: str, text: str, parsed: Any, kind: Kind) -> tuple[float, float]:
     if kind.offset:
         try:
             zero = ureg.Quantity(0.0, parsed).to("kelvin").magnitude
             one = ureg.Quantity(1.0, parsed).to("kelvin").magnitude
         except pint.errors.DimensionalityError as exc:
             raise InputError(f"{unit!r} is not a {kind.name}", hint=f"write e.g. {kind.example!r}") from exc
-        return one - zero, zero
+        return float(one - zero), float(zero)
     factor, root = ureg.get_root_units(parsed)
     dims = _dims_without_angle(root)
     want, si_factor = _kind_root(kind)
@@ -214,6 +323,23 @@ def unit_factor(unit: str, kind: Kind) -> tuple[float, float]:
     return float(factor), offset
 
 
+def physical_unit(unit: str) -> str | None:
+    """What a unit text measures (``"a mass"``) if pint reads it as a unit with a dimension, else None.
+
+    For fields that take no physical unit (a price takes a currency, a count none).
+
+    >>> physical_unit("kg"), physical_unit("EUR"), physical_unit("bar")
+    ('a mass', None, 'a pressure')
+    """
+    try:
+        parsed = _parse(unit, spelling(unit), NUMBER)
+        root = ureg.get_root_units(parsed)[1]
+    except (InputError, *_PARSE_ERRORS):
+        return None
+    dims = _dims_without_angle(root)
+    return _describe(dims) if dims else None
+
+
 def check_unit(unit: str, kind: Kind, name: str = "unit") -> tuple[float, float]:
     """Like :func:`unit_factor` but the error names the argument ``name``."""
     try:
@@ -222,20 +348,61 @@ def check_unit(unit: str, kind: Kind, name: str = "unit") -> tuple[float, float]
         raise exc.at(field=name) from None
 
 
-_COMMA_HINT = ("write numbers without thousands separators and with a point for decimals, "
-               "e.g. '3000 psi' or '3.5 bar'")
+#: A comma followed by exactly three digits after one to three digits (1,250 or 3,000) may group thousands.
+_THOUSANDS = re.compile(r"^[+-]?[1-9]\d{0,2},\d{3}$")
+_COMMA_NUMBER = re.compile(r"^\s*([+-]?\d*,\d+(?:[eE][+-]?\d+)?)(?=\s|[^\d.,]|$)")
+_COMMA_HINT = ("a comma before exactly three digits may group thousands: write 3000 for three thousand, "
+               "3.5 or 3,5 for three and a half")
+
+
+def decimal_comma(number: str) -> float:
+    """A number written with a decimal comma (``"3,5"``); one that could group thousands is refused.
+
+    The one rule for commas in numbers, in cells, workbooks and semicolon-separated tables: a single
+    comma is a decimal comma, except after one to three digits and before exactly three (``1,250``,
+    ``3,000``: a thousands separator to some, a decimal comma to others), which is refused as ambiguous,
+    as is a number with two commas or with a comma and a point.
+
+    >>> decimal_comma("3,5"), decimal_comma("0,125"), decimal_comma("-12,75")
+    (3.5, 0.125, -12.75)
+    """
+    text = number.strip()
+    if text.count(",") != 1 or "." in text or _THOUSANDS.match(text):
+        raise InputError(f"{number!r} is ambiguous", hint=_COMMA_HINT)
+    try:
+        return float(text.replace(",", "."))
+    except ValueError:
+        raise InputError(f"{number!r} is not a number", hint=_COMMA_HINT) from None
+
+
+def split_number(text: str) -> tuple[float, str] | None:
+    """``(number, unit text)`` of a text such as ``"3000 psi"`` or ``"3,5 bar"``; None if it has no number.
+
+    Raises :class:`InputError` for an ambiguous comma (see :func:`decimal_comma`).
+
+    >>> split_number("3000 psi"), split_number(" 3,5 bar "), split_number("psi")
+    ((3000.0, 'psi'), (3.5, 'bar'), None)
+    """
+    if "," in text:
+        head = _COMMA_NUMBER.match(text)
+        if head is None:
+            raise InputError(f"{text!r} is ambiguous", hint=_COMMA_HINT)
+        return decimal_comma(head.group(1)), text[head.end():].strip()
+    match = _NUMBER_UNIT.match(text)
+    if not match:
+        return None
+    number, unit = match.groups()
+    return float(number), unit
 
 
 @lru_cache(maxsize=65536)
 def _parse_text(text: str, kind: Kind) -> float:
-    if "," in text:
-        raise InputError(f"{text!r} is ambiguous", hint=_COMMA_HINT)
-    match = _NUMBER_UNIT.match(text)
-    if not match:
+    parts = split_number(text)
+    if parts is None:
         raise InputError(f"{text!r} is not a number with a unit", hint=f"write e.g. {kind.example!r}")
-    number, unit = match.groups()
+    number, unit = parts
     factor, offset = unit_factor(unit, kind)
-    value = float(number) * factor + offset
+    value = number * factor + offset
     if not math.isfinite(value):
         raise InputError(f"{text!r} is not a finite number")
     return value
@@ -279,6 +446,63 @@ def default_factor(kind: Kind) -> float:
     if f is None:
         f = _DEFAULT_FACTORS[kind] = unit_factor(kind.default, kind)[0]
     return f
+
+
+@cache
+def _si_span(kind: Kind) -> tuple[float, float]:
+    assert kind.span is not None
+    factor, offset = unit_factor(kind.default, kind)
+    return kind.span[0] * factor + offset, kind.span[1] * factor + offset
+
+
+def span_text(kind: Kind) -> str:
+    """The range of a kind as a reader states it: ``"0.01 to 100000 cm^3/rev"``.
+
+    >>> span_text(SPEED), span_text(TEMPERATURE)
+    ('0.01 to 100000 rpm', '-100 to 500 degC')
+    """
+    assert kind.span is not None
+    lo, hi = kind.span
+    return f"{lo:g} to {hi:g} {kind.default}"
+
+
+def outside_span(si: float | np.ndarray, kind: Kind) -> int | None:
+    """Index of the first value outside the kind's span (flat index; 0 for a scalar), or None.
+
+    Zero is inside for every kind without an offset (a stopped segment, no pressure): whether a zero
+    makes sense is the field's own rule. A non-finite value is outside.
+
+    >>> outside_span(np.array([25.0, 0.0, 1e308]), SPEED), outside_span(1e-300, DURATION), outside_span(0.0, FLOW)
+    (2, 0, None)
+    """
+    if kind.span is None:
+        return None
+    lo, hi = _si_span(kind)
+    arr = np.asarray(si, dtype=float).ravel()
+    with np.errstate(invalid="ignore"):
+        if kind.offset:
+            bad = ~((arr >= lo) & (arr <= hi))
+        else:
+            mag = np.abs(arr)
+            bad = ~(((mag >= lo) & (mag <= hi)) | (arr == 0.0))
+    if not bad.any():
+        return None
+    return int(np.flatnonzero(bad)[0])
+
+
+def check_span(si: float, kind: Kind, shown: str) -> float:
+    """``si`` if it lies in the kind's span, else :class:`InputError` naming the span.
+
+    ``shown`` is the value as the user wrote it (``"1e+308 cm^3/rev"``).
+
+    >>> check_span(25.0, SPEED, "1500 rpm")
+    25.0
+    """
+    if outside_span(si, kind) is not None:
+        raise InputError(f"{shown} is outside the range sheetpump reads for a {kind.name}, "
+                         f"{span_text(kind)}{'' if kind.offset else ' (or 0)'}",
+                         hint="check the value and its unit")
+    return si
 
 
 def all_finite(arr: np.ndarray) -> bool:

@@ -50,8 +50,8 @@ def test_ranges_spill_elementwise_and_broadcast():
         (lambda: cells.SP_HYDRAULIC_POWER("250 rpm", 60),
          "#SP! pressure: 'rpm' is a speed, not a pressure (write e.g. '250 bar')"),
         (lambda: cells.SP_HYDRAULIC_POWER("3,000", 60),
-         "#SP! pressure: '3,000' is ambiguous (write numbers without thousands separators and with a "
-         "point for decimals, e.g. '3000 psi' or '3.5 bar')"),
+         "#SP! pressure: '3,000' is ambiguous (a comma before exactly three digits may group thousands: "
+         "write 3000 for three thousand, 3.5 or 3,5 for three and a half)"),
         (lambda: cells.SP_HYDRAULIC_POWER(200, "plenty"),
          "#SP! flow: 'plenty' is not a number with a unit (write e.g. '40 L/min')"),
         (lambda: cells.SP_HYDRAULIC_POWER(200, 60, "rpm"),
@@ -126,3 +126,78 @@ def test_folded_path_still_validates():
         "#SP! pressure: must not be negative")
     assert power.cell(np.array([100.0]), np.array([10.0]), np.array([1.5])).startswith("#SP! total_eff:")
     assert power.cell(np.array([100.0, np.nan]), np.array([10.0, 10.0]), 0.9).startswith("#SP! pressure[1]")
+
+
+# --- Python users: the form of a range is kept (arrays in, arrays out) ----------------------------
+
+# P[kW] = p[bar]·Q[L/min]/(600·η): drive power, the handbook formula (common practice).
+_P_BAR = [100.0, 210.0, 250.0]
+_Q_LPM = [20.0, 39.5, 60.0]
+_ETA = [0.8, 0.85, 0.9]
+_EXPECTED_KW = [p * q / (600 * e) for p, q, e in zip(_P_BAR, _Q_LPM, _ETA, strict=True)]  # 4.17, 16.26, 27.78
+
+
+def test_numpy_arrays_in_give_a_numpy_array_of_the_same_shape():
+    got = cells.SP_INPUT_POWER(np.array(_P_BAR), np.array(_Q_LPM), np.array(_ETA))
+    assert type(got) is np.ndarray and got.shape == (3,) and got.dtype == np.float64
+    np.testing.assert_allclose(got, _EXPECTED_KW, rtol=1e-12)
+    assert got[1] == pytest.approx(13.825 / 0.85, rel=1e-12)  # 210 bar x 39.5 L/min = 13.825 kW hydraulic
+    column = cells.SP_INPUT_POWER(np.array(_P_BAR).reshape(3, 1), 39.5, 0.85)  # a column broadcasts
+    assert type(column) is np.ndarray and column.shape == (3, 1)
+    # a number broadcast against an array, and a result unit (pint's hp as the outside reference)
+    hp = cells.SP_INPUT_POWER(np.array(_P_BAR), 39.5, 0.85, "hp")
+    expected = [REF.Quantity(p * 39.5 / (600 * 0.85), "kW").to("hp").magnitude for p in _P_BAR]
+    np.testing.assert_allclose(hp, expected, rtol=1e-12)
+    # the caller's arrays are never modified
+    p = np.array(_P_BAR)
+    cells.SP_INPUT_POWER(p, 39.5, 0.85, "hp")
+    assert p.tolist() == _P_BAR
+
+
+def test_pint_quantity_arrays_give_a_numpy_array():
+    from sheetpump.units import ureg
+    got = cells.SP_INPUT_POWER(ureg.Quantity(np.array([3000.0]), "psi"), ureg.Quantity(np.array([10.0]), "gpm"),
+                               np.array([1.0]), "hp")
+    expected = (REF.Quantity(3000, "psi") * REF.Quantity(10, "gallon/minute")).to("hp").magnitude
+    assert type(got) is np.ndarray and got == pytest.approx([expected], rel=1e-12)
+
+
+def test_a_series_gives_a_series_with_its_index():
+    pd = pytest.importorskip("pandas")
+    index = pd.Index(["approach", "press", "hold"], name="segment")
+    p = pd.Series(_P_BAR, index=index, name="pressure [bar]")
+    q = pd.Series(_Q_LPM, index=index, name="flow [L/min]")
+    got = cells.SP_INPUT_POWER(p, q, pd.Series(_ETA, index=index))
+    assert type(got) is pd.Series
+    assert got.index.equals(index) and got.index.name == "segment"
+    assert got.name == "power [kW]"  # the result's kind and unit, as sheetpump names table columns
+    np.testing.assert_allclose(got.to_numpy(), _EXPECTED_KW, rtol=1e-12)
+    # with a number, a text with a unit and a result unit
+    hp = cells.SP_INPUT_POWER(p, "39.5 L/min", 0.85, "hp")
+    assert hp.name == "power [hp]" and list(hp.index) == list(index)
+    assert hp["press"] == pytest.approx(REF.Quantity(13.825 / 0.85, "kW").to("hp").magnitude, rel=1e-12)
+    # a Series of texts with units
+    texts = cells.SP_INPUT_POWER(pd.Series(["3000 psi", "210 bar"], index=[7, 9]), "10 gpm", 1.0, "hp")
+    assert list(texts.index) == [7, 9]
+    assert texts[7] == pytest.approx((REF.Quantity(3000, "psi") * REF.Quantity(10, "gallon/minute"))
+                                     .to("hp").magnitude, rel=1e-12)
+    assert cells.SP_VOL_EFF(pd.Series([39.9]), 28, 1500, "%").name == "efficiency [%]"
+
+
+def test_series_with_different_indexes_are_refused_not_aligned():
+    pd = pytest.importorskip("pandas")
+    p = pd.Series([100.0, 200.0], index=["a", "b"])
+    q = pd.Series([10.0, 20.0], index=["b", "a"])
+    assert cells.SP_HYDRAULIC_POWER(p, q) == (
+        "#SP! flow: the series' index differs from the first series' (align them first, e.g. with .reindex)")
+
+
+def test_lists_give_the_2d_list_a_spreadsheet_spills():
+    got = cells.SP_INPUT_POWER([[p] for p in _P_BAR], [[q] for q in _Q_LPM], [[e] for e in _ETA])
+    assert type(got) is list and all(type(r) is list and len(r) == 1 for r in got)
+    assert [r[0] for r in got] == pytest.approx(_EXPECTED_KW, rel=1e-12)
+    assert cells.SP_INPUT_POWER(_P_BAR, 39.5, 0.85) == [pytest.approx([p * 39.5 / 510 for p in _P_BAR])]
+
+
+def test_bad_array_elements_are_still_error_texts():
+    assert cells.SP_INPUT_POWER(np.array([100.0, -1.0]), 10.0, 0.9) == "#SP! pressure: must not be negative"

@@ -94,7 +94,7 @@ def test_strict_makes_warnings_fail(files, capsys):
 def test_exit_1_when_a_rule_fails_and_the_cell_is_named(files, capsys):
     code, out, _ = run(capsys, "--app", files["app"], files["good"], files["bad"])
     assert code == 1
-    assert "FAIL  speed.max" in out
+    assert "FAIL        speed.max" in out
     assert "Ratings!C6" in out  # the cell to fix
 
 
@@ -177,7 +177,8 @@ def test_junit_strict_counts_warnings(files, capsys):
     run(capsys, "--strict", "--junit", str(junit), "--app", files["app"], files["good"])
     root = ET.parse(junit).getroot()
     types_ = [f.get("type") for f in root.iter("failure")]
-    assert types_ and set(types_) == {"warn"}
+    # under --strict a warning fails, and so does a rule not checked that matters for the duty
+    assert "warn" in types_ and set(types_) <= {"warn", "not checked"}
 
 
 def test_annotate_leaves_the_input_unchanged(files, capsys):

@@ -300,17 +300,19 @@ def test_rotation(pump, drive, want):
 
 def test_rotation_not_checked_when_not_stated():
     ds = metric_pump(rotation=None)
-    assert not [f for f in check(ds, app_for(duty(quiet(ds)))).findings if f.rule == "rotation"]
+    found = [f for f in check(ds, app_for(duty(quiet(ds)))).findings if f.rule == "rotation"]
+    assert [f.severity for f in found] == ["not checked"]
+    assert "states no direction of rotation" in found[0].message and found[0].where.field == "rotation"
 
 
 def test_imperial_display_round_trips_through_pint():
     ds = imperial_pump(pressure_intermittent=None)
-    r = check(ds, app_for(duty(quiet(ds))), CheckSettings(units="imperial"))
     import json
 
+    from sheetpump.comparison import compare
     from sheetpump.report import json_report
 
-    doc = json.loads(json_report([r]))
+    doc = json.loads(json_report(compare([ds], app_for(duty(quiet(ds))), CheckSettings(units="imperial"))))
     cont = next(f for f in doc["pumps"][0]["findings"] if f["rule"] == "pressure.continuous")
     assert cont["limit"]["unit"] == "psi"
     assert cont["limit"]["value"] == pytest.approx(3600, rel=1e-12)  # the datasheet's own number
@@ -626,3 +628,113 @@ def test_temperature_margin_is_a_share_of_the_pump_range():
     r = check(ds, app_for(duty(quiet(ds, temperature=323.15))))
     assert finding(r, "temperature.max").margin == pytest.approx(0.30, rel=1e-12)
     assert finding(r, "temperature.min").margin == pytest.approx(0.70, rel=1e-12)
+
+
+# --------------------------------------------------------------------------------------------------
+# Every rule, every candidate: "not checked" is a state of its own
+
+
+def test_every_rule_appears_for_every_pump_even_with_blank_ratings():
+    from sheetpump.checks import NOT_CHECKED, RULES
+
+    full = metric_pump()
+    blank = metric_pump(torque_max=None, inlet_pressure_min=None, inlet_pressure_max=None, temperature_min=None,
+                        temperature_max=None, cleanliness=None, rotation=None)
+    for ds in (full, blank):
+        r = check(ds, app_for(duty(quiet(ds))))
+        assert sorted(f.rule for f in r.findings) == sorted(RULES)
+    r = check(blank, app_for(duty(quiet(blank))))
+    nc = {f.rule: f for f in r.findings if f.severity == NOT_CHECKED}
+    # (and the cold start: this application states no cold-start temperature)
+    assert set(nc) == {"torque.max", "torque.relief", "inlet.min", "inlet.max", "temperature.min",
+                       "temperature.max", "cleanliness", "rotation", "viscosity.cold-start"}
+    assert "states no shaft torque limit" in nc["torque.max"].message
+    assert nc["torque.max"].where.field == "torque_max"  # the cell to fill
+    assert nc["viscosity.cold-start"].app_where.field == "cold_start_temperature"
+    assert r.counts()[NOT_CHECKED] == 9
+
+
+def test_a_rule_not_checked_that_matters_makes_the_verdict_at_best_warn():
+    from sheetpump.comparison import compare
+
+    ds = metric_pump()
+    app = app_for(duty(quiet(ds, pressure=150e5, speed=25.0)), cold_start_temperature=283.15)
+    ok = check(ds, app)
+    assert all(f.severity != "not checked" for f in ok.findings)
+    # cleanliness and rotation not stated: shown as not checked, but they do not judge the duty
+    side = metric_pump(cleanliness=None, rotation=None)
+    assert check(side, app).verdict == ok.verdict
+    # the torque limit not stated: torque matters for the duty, so at best a warning; --strict fails
+    blank = metric_pump(torque_max=None)
+    r = check(blank, app)
+    assert [f.effect for f in r.findings if f.rule == "torque.max"] == [WARN]
+    assert r.verdict == WARN
+    assert check(blank, app, CheckSettings(strict=True)).verdict == FAIL
+    # in JSON the rule's verdict is "not checked"; in JUnit a skipped case with the reason
+    import json
+    import xml.etree.ElementTree as ET
+
+    from sheetpump.report import json_report, junit_report, text_report
+
+    comp = compare([blank], app)
+    doc = json.loads(json_report(comp))
+    torque = next(f for f in doc["pumps"][0]["findings"] if f["rule"] == "torque.max")
+    assert torque["verdict"] == "not checked" and torque["failed"] is False
+    assert torque["where"]["field"] == "torque_max"
+    root = ET.fromstring(junit_report([r]).split("\n", 1)[1])
+    skipped = [c for c in root.iter("testcase") if c.find("skipped") is not None]
+    assert {c.get("name") for c in skipped} == {"torque.max", "torque.relief"}
+    assert "no shaft torque limit" in skipped[0].find("skipped").get("message")
+    strict = ET.fromstring(junit_report([check(blank, app, CheckSettings(strict=True))], strict=True)
+                           .split("\n", 1)[1])
+    assert {c.get("name") for c in strict.iter("testcase") if c.find("failure") is not None} >= {"torque.max"}
+    text = text_report(comp)
+    assert "NOT CHECKED torque.max" in text and "cell to fill" in text and "2 not checked" in text
+
+
+def test_torque_at_the_relief_setting_worked_case():
+    # The stalled machine: 20 cm³/rev, relief 225 bar + 10 % overshoot = 247.5 bar, η_hm = η_t/η_v =
+    # 0.85/0.95 = 0.8947: T = V·Δp/(2π·η_hm) = 88.1 N·m (ISO 4391 relations; common practice to check
+    # the shaft at the relief setting plus overshoot) against a 70 N·m limit: fail, where the duty's
+    # own torque (here at 160 bar: 20e-6·160e5/(2π·0.8947) = 56.9 N·m) passes.
+    ds = metric_pump(displacement=20e-6, torque_max=70.0, volumetric_efficiency=0.95, total_efficiency=0.85)
+    app = app_for(duty(quiet(ds, pressure=160e5)), relief_setting=225e5, overshoot=0.1)
+    r = check(ds, app)
+    eta_hm = 0.85 / 0.95
+    by_hand = 20e-6 * 225e5 * 1.1 / (2 * math.pi * eta_hm)
+    assert by_hand == pytest.approx(88.1, abs=0.05)
+    stall = finding(r, "torque.relief")
+    assert stall.severity == FAIL and stall.measured == pytest.approx(by_hand, rel=1e-12)
+    assert stall.limit == 70.0 and stall.app_where.field == "relief_setting"
+    assert "0.8947" in stall.message
+    assert finding(r, "torque.max").severity in (PASS, WARN)
+    assert finding(r, "torque.max").measured == pytest.approx(20e-6 * 160e5 / (2 * math.pi * eta_hm), rel=1e-12)
+
+
+def test_relief_setting_against_the_continuous_and_intermittent_ratings():
+    # a stall holds the pump at the relief setting as long as it lasts (common practice): above continuous
+    # a warning, above intermittent a failure; both cells named
+    ds = metric_pump()  # continuous 250 bar, intermittent 280 bar
+    d = duty(quiet(ds))
+    within = finding(check(ds, app_for(d, relief_setting=250e5)), "pressure.relief-stall")
+    assert within.severity == PASS and within.margin == 0.0
+    warn = finding(check(ds, app_for(d, relief_setting=260e5, overshoot=0.0)), "pressure.relief-stall")
+    assert warn.severity == WARN and warn.where.field == "pressure_continuous"
+    assert warn.app_where.field == "relief_setting"
+    fail = finding(check(ds, app_for(d, relief_setting=285e5, overshoot=0.0)), "pressure.relief-stall")
+    assert fail.severity == FAIL and fail.where.field == "pressure_intermittent" and fail.limit == 280e5
+    # no intermittent rating: above continuous is a warning only
+    none = finding(check(metric_pump(pressure_intermittent=None), app_for(d, relief_setting=285e5,
+                                                                          overshoot=0.0)), "pressure.relief-stall")
+    assert none.severity == WARN
+
+
+def test_pressure_margin_lowers_the_high_pressure_threshold():
+    # threshold 200 bar, raised minimum speed 1000 rpm; a segment at 190 bar and 800 rpm. With a 10 %
+    # pressure margin the threshold is 180 bar (arithmetic), so the raised minimum applies: fail.
+    ds = metric_pump()
+    d = duty(quiet(ds, pressure=190e5, speed=800 / 60))
+    assert finding(check(ds, app_for(d)), "speed.min-high-pressure").severity == INFO  # no segment above
+    r = check(ds, app_for(d, pressure_margin=0.1))
+    f = finding(r, "speed.min-high-pressure")
+    assert f.severity == FAIL and "180 bar" in f.message

@@ -432,3 +432,122 @@ def test_worked_example_recalculates_to_its_expected_values(tmp_path):
     # and --verify passes on the recalculated copy, and fails on the bare one (no stored values)
     assert main(["recalc", str(out), "--verify"]) == 0
     assert main(["recalc", str(bare), "--verify"]) == 1
+
+
+# ------------------------------------------------------------------- dynamic arrays: results that spill
+
+# Geometric flow Q[L/min] = V[cm^3/rev] x n[rpm] / 1000 and hydraulic power P[kW] = p[bar] x Q[L/min] / 600
+# (common practice). 8 cm^3/rev at 1000, 1500, 2000 rpm: 8, 12, 16 L/min, 36 L/min in all; at 200 bar
+# that is 8/3, 4, 16/3 kW, 12 kW in all. 28 cm^3/rev at 1500 and 3000 rpm: 42 and 84 L/min.
+SPEEDS = [1000.0, 1500.0, 2000.0]
+SPILLING = [  # (cell, formula with sheetpump's functions, the same with plain arithmetic)
+    ("B1", "=SP_GEOMETRIC_FLOW(8,A1:A3)", "=8*A1:A3/1000"),  # spills down
+    ("C1", "=SP_HYDRAULIC_POWER(200,B1:B3)", "=200*B1:B3/600"),  # fed by the spill above: spills too
+    ("D1", "=SUM(B1:B3)", "=SUM(B1:B3)"),
+    ("E1", "=SUM(C1:C3)", "=SUM(C1:C3)"),
+    ("A6", "=SP_GEOMETRIC_FLOW(A5,B5:C5)", "=A5*B5:C5/1000"),  # spills right
+    ("D6", "=SUM(A6:B6)", "=SUM(A6:B6)"),
+]
+
+
+def _spill_book(path: Path, column: int) -> Path:
+    wb = openpyxl.Workbook()
+    ws = wb.active
+    ws.title = "Spill"
+    for row, speed in enumerate(SPEEDS, start=1):
+        ws.cell(row, 1, speed)
+    ws["A5"], ws["B5"], ws["C5"] = 28.0, 1500.0, 3000.0
+    for spec in SPILLING:
+        ws[spec[0]] = spec[column]
+    wb.save(path)
+    return path
+
+
+def test_a_range_result_spills_and_formulas_see_the_spilled_cells(tmp_path: Path,
+                                                                 capsys: pytest.CaptureFixture[str]) -> None:
+    book = _spill_book(tmp_path / "spill.xlsx", 1)
+    result = recalculate(book)
+    assert result.problems == [] and result.blocked == []
+    assert result.spills == {("Spill", "B1"): "B1:B3", ("Spill", "C1"): "C1:C3", ("Spill", "A6"): "A6:B6"}
+    got = {cell: value for (_, cell), value in result.values.items()}
+    expected = {"B1": 8.0, "B2": 12.0, "B3": 16.0, "C1": 8 / 3, "C2": 4.0, "C3": 16 / 3, "D1": 36.0,
+                "E1": 12.0, "A6": 42.0, "B6": 84.0, "D6": 126.0}
+    assert got == pytest.approx(expected, rel=1e-12)
+    # the original stores none of the spilled values: --verify says so, cell by cell
+    assert main(["recalc", str(book), "--verify"]) == 1
+    assert "Spill!B2: stored (no stored value), recomputed 12.0" in capsys.readouterr().out
+    # the copy: the formula as an array formula over its range, the spilled cells as values
+    out = tmp_path / "spill-out.xlsx"
+    assert main(["recalc", str(book), "-o", str(out)]) == 0
+    formulas = openpyxl.load_workbook(out)["Spill"]
+    assert formulas["B1"].value.ref == "B1:B3" and formulas["B1"].value.text == "=SP_GEOMETRIC_FLOW(8,A1:A3)"
+    assert formulas["A6"].value.ref == "A6:B6"
+    assert formulas["D1"].value == "=SUM(B1:B3)"
+    values = openpyxl.load_workbook(out, data_only=True)["Spill"]
+    assert {cell: values[cell].value for cell in expected} == pytest.approx(expected, rel=1e-12)
+    assert main(["recalc", str(out), "--verify"]) == 0  # the copy is consistent with itself
+
+
+def test_a_spill_with_no_room_names_the_cell_in_the_way(tmp_path: Path,
+                                                        capsys: pytest.CaptureFixture[str]) -> None:
+    wb = openpyxl.Workbook()
+    ws = wb.active
+    ws.title = "Spill"
+    for row, speed in enumerate(SPEEDS, start=1):
+        ws.cell(row, 1, speed)
+    ws["B1"] = "=SP_GEOMETRIC_FLOW(8,A1:A3)"
+    ws["B3"] = "kept"  # in the way
+    ws["C1"] = "=SUM(B1:B3)"
+    ws["D1"] = "=SP_GEOMETRIC_FLOW(8,A1:B1)"  # would spill right over E1, which a formula holds
+    ws["E1"] = "=1+1"
+    book = tmp_path / "blocked.xlsx"
+    wb.save(book)
+    out = tmp_path / "blocked-out.xlsx"
+    assert main(["recalc", str(book), "-o", str(out)]) == 1
+    err = capsys.readouterr().err
+    assert "Spill!B1: the formula's 3 x 1 results need B1:B3, but B3 is not empty" in err
+    assert "Spill!D1: the formula's 1 x 2 results need D1:E1, but E1 is not empty" in err
+    values = openpyxl.load_workbook(out, data_only=True)["Spill"]
+    assert values["B1"].value.startswith("#SPILL! ") and "B3 is not empty" in values["B1"].value
+    assert values["B2"].value is None and values["B3"].value == "kept"  # nothing written over
+    assert values["C1"].value == "#N/A"  # never the first element alone
+    assert values["E1"].value == 2
+    assert main(["recalc", str(book), "--verify"]) == 1
+    with pytest.raises(InputError, match="B3 is not empty"):
+        evaluate_workbook(book)
+
+
+def test_a_spill_over_another_spill_is_blocked(tmp_path: Path) -> None:
+    wb = openpyxl.Workbook()
+    ws = wb.active
+    for row, speed in enumerate(SPEEDS, start=1):
+        ws.cell(row, 1, speed)
+    ws["B1"] = "=SP_GEOMETRIC_FLOW(8,A1:A3)"  # B1:B3
+    ws["B4"] = "=SP_GEOMETRIC_FLOW(8,A1:A1)"  # one value: no spill, no conflict
+    ws["C2"] = "=SP_GEOMETRIC_FLOW(8,TRANSPOSE(A1:A3))"  # wants C2:E2 ...
+    ws["D1"] = "=SP_GEOMETRIC_FLOW(8,A1:A3)"  # ... but D1:D3 spilled first (row order)
+    wb.save(tmp_path / "two.xlsx")
+    result = recalculate(tmp_path / "two.xlsx")
+    assert result.spills.get((ws.title, "D1")) == "D1:D3"
+    assert [(p.cell, p.message) for p in result.blocked] == [
+        ("C2", "the formula's 1 x 3 results need C2:E2, but D2 is in the spilled range of D1 "
+               "(move one of the formulas)")]
+
+
+@needs_soffice
+def test_spills_agree_with_libreoffice_array_formulas(tmp_path: Path) -> None:
+    # The same workbook with plain arithmetic in place of sheetpump's functions: LibreOffice (7.x has
+    # no dynamic arrays) computes our copy, whose spilling formulas are array formulas over their
+    # ranges; its values must equal ours for the arithmetic and for sheetpump's functions.
+    plain = _spill_book(tmp_path / "plain.xlsx", 2)
+    ours_plain = recalculate(plain)
+    out = tmp_path / "plain-out.xlsx"
+    write_values(plain, out, ours_plain.values, ours_plain.spills)
+    (lo_book,) = recalculate_many([out], tmp_path / "lo")
+    theirs = openpyxl.load_workbook(lo_book, data_only=True)["Spill"]
+    ours_sp = recalculate(_spill_book(tmp_path / "sp.xlsx", 1)).values
+    assert set(ours_plain.values) == set(ours_sp)
+    for (sheet, cell), value in ours_sp.items():
+        assert _close(theirs[cell].value, value), f"{cell}: LibreOffice {theirs[cell].value!r}, ours {value!r}"
+        assert _close(ours_plain.values[(sheet, cell)], value)
+    assert theirs["D1"].value == pytest.approx(36.0, rel=1e-12)  # not 8: the whole spilled range summed

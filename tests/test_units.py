@@ -81,7 +81,8 @@ def test_bare_numbers_take_the_documented_default_unit():
     [
         ("250 rpm", u.PRESSURE, "pressure: 'rpm' is a speed, not a pressure"),
         ("3,000", u.PRESSURE, "'3,000' is ambiguous"),
-        ("3,5 bar", u.PRESSURE, "'3,5 bar' is ambiguous"),
+        ("1,250 bar", u.PRESSURE, "'1,250' is ambiguous"),
+        ("1.234,5 bar", u.PRESSURE, "'1.234,5 bar' is ambiguous"),
         ("high", u.PRESSURE, "'high' is not a number with a unit"),
         ("5 furlongs/fortnight^2", u.PRESSURE, "is a unit of another kind, not a pressure"),
         ("5 blorps", u.PRESSURE, "unknown unit 'blorps'"),
@@ -103,7 +104,7 @@ def test_bad_values_name_the_argument(value, kind, message):
 def test_ambiguous_text_says_how_to_write_it():
     with pytest.raises(InputError) as info:
         u.to_si("3,000", u.PRESSURE, "pressure")
-    assert "write numbers without thousands separators" in info.value.hint
+    assert "write 3000 for three thousand" in info.value.hint
 
 
 def test_empty_cell_takes_declared_default():

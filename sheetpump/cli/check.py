@@ -2,7 +2,8 @@
 
     sheetpump check --app APPLICATION.xlsx DATASHEET.xlsx [DATASHEET.xlsx ...]
 
-Prints a report per pump (or ``--format json``), optionally writes JUnit XML (``--junit``) and an
+Prints a report per pump (or ``--format json``): every rule, then the drive, heat into the oil, motor,
+energy, cost and rank (the comparison's numbers); optionally writes JUnit XML (``--junit``) and an
 annotated copy of each datasheet (``--annotate``). Exit code 0 when every rule passes, 1 when one fails
 (with ``--strict`` also when one warns), 2 for bad input or usage.
 """
@@ -14,9 +15,10 @@ import sys
 from pathlib import Path
 from typing import Any
 
-from ..checks import FAIL, CheckResult, CheckSettings, check
+from ..checks import FAIL, CheckResult, CheckSettings
 from ..errors import InputError, Where
 from ..files import atomic_write, check_outputs
+from ..physics import drive
 from ..physics.pump import PhysicsError
 
 EXIT_OK, EXIT_FAIL = 0, 1
@@ -69,20 +71,52 @@ def inputs_of(app: Any, app_path: str, datasheets: list[str]) -> list[tuple[str,
     return found + [("a datasheet", path) for path in datasheets]
 
 
+def settings_from(args: argparse.Namespace) -> CheckSettings:
+    """The check and motor settings of the command line."""
+    return CheckSettings(units=args.units, strict=args.strict, overload_factor=args.overload_factor,
+                         service_factor=args.service_factor, thermal_window=args.thermal_window * 60.0)
+
+
+def add_motor_options(parser: argparse.ArgumentParser) -> None:
+    """The motor-sizing options ``check`` and ``compare`` share."""
+    def at_least_one(text: str) -> float:
+        try:
+            value = float(text)
+        except ValueError:
+            raise argparse.ArgumentTypeError(f"{text!r} is not a number") from None
+        if not value >= 1.0 or value == float("inf"):
+            raise argparse.ArgumentTypeError(f"{text!r} must be a number of at least 1")
+        return value
+
+    def positive(text: str) -> float:
+        try:
+            value = float(text)
+        except ValueError:
+            raise argparse.ArgumentTypeError(f"{text!r} is not a number") from None
+        if not 0.0 < value < float("inf"):
+            raise argparse.ArgumentTypeError(f"{text!r} must be a number above 0")
+        return value
+
+    group = parser.add_argument_group("motor sizing")
+    group.add_argument("--overload-factor", type=at_least_one, default=drive.IEC_OVERLOAD_FACTOR, metavar="K",
+                       help="peak load at most K x the motor's rating (default 1.6, IEC 60034-1)")
+    group.add_argument("--service-factor", type=at_least_one, default=1.0, metavar="SF",
+                       help="RMS load at most SF x the rating (default 1: size to the nameplate; NEMA "
+                            "motors state 1.15)")
+    group.add_argument("--thermal-window", type=positive, default=drive.THERMAL_WINDOW / 60.0, metavar="MIN",
+                       help="the motor's thermal time in minutes: a longer cycle is sized on the RMS of its "
+                            "worst window this long (default 10)")
+
+
 def run(args: argparse.Namespace) -> int:
     from .. import report
+    from ..comparison import compare
 
-    settings = CheckSettings(units=args.units, strict=args.strict)
+    settings = settings_from(args)
     app = _read(_read_application, args.app, "application workbook")
-    results: list[CheckResult] = []
-    for path in args.datasheets:
-        ds = _read(_read_datasheet, path, "datasheet workbook")
-        try:
-            results.append(check(ds, app, settings))
-        except InputError as exc:
-            raise exc.at(file=path) from None
-        except PhysicsError as exc:
-            raise InputError(f"{exc.argument} {exc.reason}", Where(file=path, field=exc.argument)) from None
+    sheets = [_read(_read_datasheet, path, "datasheet workbook") for path in args.datasheets]
+    comp = compare(sheets, app, settings)  # an error in one datasheet's check names its file
+    results: list[CheckResult] = [c.result for c in comp.candidates]
     several = len(results) > 1
     annotated = [annotate_target(args.annotate, path, several) for path in args.datasheets] if args.annotate else []
     shown = [str(target) for target in annotated] if several else [args.annotate] * len(annotated)  # as typed
@@ -93,9 +127,9 @@ def run(args: argparse.Namespace) -> int:
     if args.junit:
         atomic_write(args.junit, report.junit_report(results, strict=args.strict))
     if args.format == "json":
-        text = report.json_report(results, strict=args.strict)
+        text = report.json_report(comp, strict=args.strict)
     else:
-        text = report.text_report(results, strict=args.strict)
+        text = report.text_report(comp, strict=args.strict)
     if args.output:
         atomic_write(args.output, text)
     else:
@@ -120,8 +154,10 @@ def register(sub: argparse._SubParsersAction) -> argparse.ArgumentParser:
     parser.add_argument("--annotate", metavar="OUT.xlsx",
                         help="write a copy of the datasheet with the offending cells highlighted and a "
                              "findings sheet (several datasheets: OUT-<datasheet>.xlsx)")
-    parser.add_argument("--strict", action="store_true", help="warnings fail too")
+    parser.add_argument("--strict", action="store_true",
+                        help="warnings fail too, and rules not checked that matter for the duty")
     parser.add_argument("--units", choices=("metric", "imperial"), default="metric",
                         help="units the report shows (default: metric)")
+    add_motor_options(parser)
     parser.set_defaults(run=run)
     return parser

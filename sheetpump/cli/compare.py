@@ -58,8 +58,11 @@ class _Progress:
             sys.stderr.write("\r" + " " * 70 + "\r")
 
 
-def build(app_path: str, datasheets: list[str], out: str, units: str = "metric", strict: bool = False):
-    """Read, check, compare and write; returns the :class:`~sheetpump.comparison.Comparison`."""
+def build(app_path: str, datasheets: list[str], out: str, units: str = "metric", strict: bool = False,
+          settings: CheckSettings | None = None):
+    """Read, check, compare and write; returns the :class:`~sheetpump.comparison.Comparison`.
+
+    ``settings`` (when given) replaces ``units`` and ``strict``, with the motor settings."""
     from ..comparison import compare
     from ..workbooks.comparison import write_comparison
     from ..workbooks.sizes import is_series_workbook
@@ -77,15 +80,15 @@ def build(app_path: str, datasheets: list[str], out: str, units: str = "metric",
         else:
             sheets.append(_check._read(_check._read_datasheet, path, "datasheet workbook"))
     progress.done()
+    settings = settings or CheckSettings(units=units, strict=strict)
     inputs = _check.inputs_of(app, app_path, paths)
     check_outputs([("--output", out)], inputs)
-    settings = CheckSettings(units=units, strict=strict)
     sheets, notes = proposed_sizes(sheets, app, settings)
     comp = compare(sheets, app, settings)
     if any(notes):
         comp = replace(comp, candidates=[replace(c, notes=c.notes + n) for c, n in zip(comp.candidates, notes,
                                                                                        strict=True)])
-    write_comparison(out, comp, inputs=[path for _, path in inputs], units=units)
+    write_comparison(out, comp, inputs=[path for _, path in inputs], units=settings.units)
     return comp
 
 
@@ -119,7 +122,7 @@ def exit_code(verdicts: list[str], strict: bool) -> int:
 
 
 def run(args: argparse.Namespace) -> int:
-    comp = build(args.app, args.datasheets, args.output, args.units, args.strict)
+    comp = build(args.app, args.datasheets, args.output, settings=_check.settings_from(args))
     for c in comp.candidates:
         rank = f"rank {c.rank}" if c.rank else "not ranked"
         print(f"{c.result.verdict:4}  {c.datasheet.label}  ({rank})")
@@ -135,6 +138,9 @@ def register(sub: argparse._SubParsersAction) -> argparse.ArgumentParser:
     parser.add_argument("-o", "--output", required=True, metavar="COMPARISON.xlsx", help="the workbook to write")
     parser.add_argument("--units", choices=("metric", "imperial"), default="metric",
                         help="units shown in the comparison (default metric)")
-    parser.add_argument("--strict", action="store_true", help="warnings count as failures for the exit code")
+    parser.add_argument("--strict", action="store_true",
+                        help="warnings (and rules not checked that matter for the duty) count as failures "
+                             "for the exit code")
+    _check.add_motor_options(parser)
     parser.set_defaults(run=run)
     return parser

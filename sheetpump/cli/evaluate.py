@@ -286,7 +286,7 @@ def run(args: argparse.Namespace) -> int:
         raise InputError(f"cannot read the table ({exc.strerror or exc})", Where(file=args.table)) from None
     e = evaluate_table(table, displacement, oil=oil, density_15=density, viscosity=viscosity)
     if args.output:
-        write_evaluation(e, args.output, source=args.table)
+        write_evaluation(e, args.output, source=args.table, paper=args.paper)
     if args.format == "json":
         write_json(e, args.table, sys.stdout)
     else:
@@ -306,6 +306,8 @@ def register(sub: argparse._SubParsersAction) -> argparse.ArgumentParser:
     parser.add_argument("table", metavar="TABLE.xlsx|TABLE.csv", help="the measured table")
     parser.add_argument("-o", "--output", metavar="OUT.xlsx", help="write the evaluation workbook")
     parser.add_argument("--sheet", metavar="NAME", help="sheet of a workbook (default: the first holding a table)")
+    parser.add_argument("--paper", choices=("A4", "Letter"), default="A4",
+                        help="paper the evaluation workbook prints on (default A4)")
     parser.add_argument("--displacement", metavar="VALUE",
                         help="nominal displacement, e.g. '28 cc' or '1.7 in^3/rev' (bare number: cm³/rev); "
                              "default the displacement derived from the table")

@@ -6,6 +6,13 @@ each formula cell whose stored value differs from the recomputed one beyond the 
 does, 0 if none. Numbers agree when ``|a - b| <= max(REL * max(|a|, |b|), ABS)``; the defaults are
 ``--rel-tol 1e-9`` and ``--abs-tol 1e-12``. A formula that cannot be computed (unsupported function,
 circular reference, failing function) is bad input: one line naming the cell, exit 2.
+
+A formula in an ordinary cell whose result is a range (``=SP_GEOMETRIC_FLOW(8, A1:A3)``) spills into
+the cells below and to the right, as a dynamic array does in Excel 365: formulas that read those cells
+see the spilled values, and the copy stores the formula as an array formula over its range with the
+values in every cell of it. When a cell of that range is not empty, the formula's cell gets the text
+``#SPILL! ...`` naming the cell in the way, formulas that use it show ``#N/A``, the copy is still
+written, and one line per such formula on standard error says so: exit 1, as for a value that differs.
 """
 
 from __future__ import annotations
@@ -42,15 +49,19 @@ def run(args: argparse.Namespace) -> int:
     result = recalculate(book)
     result.raise_problems()
     if args.output is not None:
-        write_values(book, args.output, result.values)
+        write_values(book, args.output, result.values, result.spills)
         print(f"{args.output}: {len(result.values)} formula cells computed")
+    for problem in result.blocked:
+        print(f"{book}: {problem} (shown as #SPILL!)", file=sys.stderr)
     if not args.verify:
-        return 0
+        return 1 if result.blocked else 0
     differences = compare(result, args.rel_tol, args.abs_tol)
     for difference in differences:
         print(difference)
     if differences:
         print(f"{book}: {len(differences)} of {len(result.values)} formula cells differ", file=sys.stderr)
+        return 1
+    if result.blocked:
         return 1
     print(f"{book}: all {len(result.values)} formula cells agree")
     return 0

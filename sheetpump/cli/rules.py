@@ -4,13 +4,20 @@ from __future__ import annotations
 
 import argparse
 
-from ..checks import RULES
+from ..checks import DUTY_SUBJECTS, NOT_CHECKED_WHEN, RULES
+
+
+def _not_checked(rule: str) -> str:
+    when = NOT_CHECKED_WHEN.get(rule)
+    if not when:
+        return "never"
+    return when + ("" if rule.split(".")[0] in DUTY_SUBJECTS else " (does not lower the verdict)")
 
 
 def markdown() -> str:
     """The rule table of the README (kept in sync with the checker by a test)."""
-    lines = ["| rule id | what it checks |", "| --- | --- |"]
-    lines += [f"| `{rule}` | {text} |" for rule, text in RULES.items()]
+    lines = ["| rule id | what it checks | not checked when |", "| --- | --- | --- |"]
+    lines += [f"| `{rule}` | {text} | {_not_checked(rule)} |" for rule, text in RULES.items()]
     return "\n".join(lines)
 
 

@@ -4,8 +4,12 @@ Pure functions of SI numbers or numpy arrays: powers in W, durations in s, energ
 as fractions. No units, files or spreadsheets here.
 
 A duty cycle is a sequence of segments, each a shaft power held for a duration. The motor is sized
-on two numbers of that cycle: the RMS power (its thermal load, compared with the continuous rating)
-and the peak power (compared with the short-time overload capacity).
+on two numbers of that cycle: the RMS power (its thermal load, compared with the continuous rating,
+times a service factor where one is used) and the peak power (compared with k times the rating, the
+torque the motor carries without stalling). For a cycle longer than the motor's thermal time (a long
+measured series) the RMS is taken over the worst window of that time (:func:`worst_window_rms`).
+Energy is drawn at the part-load efficiency (:func:`motor_input_power`), so an oversized motor costs
+energy.
 
 Standard tables in this module, each with its source:
 
@@ -53,15 +57,19 @@ __all__ = [
     "NEMA_OVERLOAD_FACTOR",
     "NEMA_PREMIUM_4POLE_ENCLOSED",
     "NEMA_RATINGS_HP",
+    "PART_LOAD_CONSTANT_SHARE",
     "STANDARDS",
+    "THERMAL_WINDOW",
     "MotorChoice",
     "electrical_energy",
     "mean_power",
     "motor_efficiency",
+    "motor_input_power",
     "motor_rating",
     "rms_power",
     "select_motor",
     "standard_ratings",
+    "worst_window_rms",
 ]
 
 Number = float | np.ndarray
@@ -113,6 +121,19 @@ IEC_OVERLOAD_FACTOR = 1.6
 
 #: Default peak allowance of a NEMA motor; see :func:`motor_rating` for why it is not the service factor.
 NEMA_OVERLOAD_FACTOR = 1.6
+
+#: Default thermal time of a motor [s] over which the RMS load of a long series is taken: 10 min, the
+#: order of the thermal time constant of small and medium totally enclosed motors (common practice).
+THERMAL_WINDOW = 600.0
+
+#: Share of a motor's full-load losses that does not change with load (iron, friction, fan), fitted so
+#: that the efficiency at half load equals the full-load efficiency: with losses L0 + Lc·x² (x the load
+#: fraction), η(½) = η(1) gives L0 + Lc/4 = (L0 + Lc)/2, so L0 = Lc/2 = 1/3 of the full-load losses and
+#: the efficiency peaks at x = 1/√2 ≈ 71 % load. Typical of IE3 4-pole induction motors, whose
+#: efficiency is nearly flat between half and full load and peaks near three-quarter load (from memory;
+#: the part-load columns of motor makers' catalogues, and the part-load curves of the US DOE fact sheet
+#: "Determining electric motor load and efficiency").
+PART_LOAD_CONSTANT_SHARE = 1.0 / 3.0
 
 #: The motor standards sheetpump knows, as written in a cell.
 STANDARDS = ("IEC", "NEMA")
@@ -223,6 +244,82 @@ def rms_power(power: ArrayLike, duration: ArrayLike, axis: int | None = None) ->
     return _out(np.squeeze(scale, axis=ax) * np.sqrt(np.sum(x * x * t, axis=ax) / np.sum(t, axis=ax)))
 
 
+def worst_window_rms(power: ArrayLike, duration: ArrayLike, window: float = THERMAL_WINDOW,
+                     wraps: bool = True) -> float:
+    r"""RMS power over the worst window of a motor's thermal time, for a cycle longer than that time.
+
+    .. math:: P_{rms,W} = \max_s \sqrt{\frac{1}{W} \int_s^{s+W} P(t)^2 \, dt}
+
+    A motor's temperature follows the RMS load over about its thermal time constant; over a long
+    measured series (an hour of a machine's log) the average over the whole series hides a heavy
+    stretch, so the worst stretch of length W counts (common practice). A cycle no longer than W is
+    taken whole (:func:`rms_power`): heating follows the RMS of a periodic duty (IEC 60034-1 S6).
+
+    The load is held constant over each segment, so the integral is piecewise linear in the window's
+    start s and its maximum lies where the start or the end of the window meets a segment boundary;
+    every such window is evaluated from one cumulative sum.
+
+    Parameters
+    ----------
+    power : array
+        Shaft power P_i of each segment or sample [W], >= 0, in time order.
+    duration : array
+        Duration t_i of each segment [s], >= 0 (a sample is held until the next one).
+    window : float, optional
+        Thermal time W [s], > 0; default :data:`THERMAL_WINDOW` (10 min).
+    wraps : bool, optional
+        The cycle repeats (a window may run from its end into its start); default True.
+
+    Returns
+    -------
+    float
+        RMS power over the worst window [W]; the RMS over the cycle when the cycle lasts at most W.
+
+    Examples
+    --------
+    An hour at 5 kW with 15 min at 20 kW in it: over the hour the RMS is 10.9 kW, but the worst
+    10 minutes are all at 20 kW.
+
+    >>> round(rms_power([5e3, 20e3, 5e3], [1800.0, 900.0, 900.0]))
+    10897
+    >>> worst_window_rms([5e3, 20e3, 5e3], [1800.0, 900.0, 900.0], 600.0)
+    20000.0
+    >>> round(worst_window_rms([5e3, 20e3], [1800.0, 300.0], 600.0))
+    14577
+
+    References
+    ----------
+    IEC 60034-1 (duty type S6, equivalent loading; from memory); common practice for the window.
+    """
+    p = np.asarray(power, dtype=float).ravel()
+    t = np.asarray(duration, dtype=float).ravel()
+    non_negative(p, "power")
+    non_negative(t, "duration")
+    positive(np.asarray(window, dtype=float), "window")
+    if p.size != t.size or p.size == 0:
+        raise PhysicsError("duration", f"has {t.size} segments where power has {p.size}")
+    total = float(np.sum(t))
+    if total <= 0:
+        raise PhysicsError("duration", "adds up to no time")
+    if total <= window:
+        use = t > 0
+        return float(rms_power(p[use], t[use]))
+    scale = float(np.max(p)) or 1.0
+    x2t = (p / scale) ** 2 * t
+    bounds = np.concatenate(([0.0], np.cumsum(t)))
+    energy = np.concatenate(([0.0], np.cumsum(x2t)))
+    if wraps:  # the next cycle, for windows that run past the end
+        bounds = np.concatenate((bounds, bounds[1:] + total))
+        energy = np.concatenate((energy, energy[1:] + energy[-1]))
+        last = total
+    else:
+        last = total - window
+    starts = np.concatenate((bounds, bounds - window))
+    starts = starts[(starts >= 0.0) & (starts <= last)]
+    inside = np.interp(starts + window, bounds, energy) - np.interp(starts, bounds, energy)
+    return scale * math.sqrt(max(float(np.max(inside)), 0.0) / window)
+
+
 def mean_power(power: ArrayLike, duration: ArrayLike, axis: int | None = None) -> Number:
     r"""Time-weighted mean power of a duty cycle.
 
@@ -304,6 +401,62 @@ def electrical_energy(shaft_power: ArrayLike, duration: ArrayLike, motor_efficie
     return _out(np.sum(p * t / eta, axis=ax))
 
 
+def motor_input_power(shaft_power: ArrayLike, rated_power: ArrayLike,
+                      full_load_efficiency: ArrayLike) -> Number:
+    r"""Electrical power a motor draws at a part load: shaft power plus losses.
+
+    .. math:: P_{el} = P + L_0 + L_c \left(\frac{P}{P_N}\right)^2, \qquad
+              L_0 + L_c = P_N \left(\frac{1}{\eta_N} - 1\right), \qquad L_0 = s\,(L_0 + L_c)
+
+    The losses of an induction motor are a constant part L_0 (iron, friction, fan) and a part growing
+    with the square of the load L_c (copper), fitted to the full-load efficiency η_N (so the full-load
+    point is reproduced exactly) and to a typical part-load point through the constant share
+    s = :data:`PART_LOAD_CONSTANT_SHARE` (η at half load equal to η_N; from memory). A motor running
+    light still draws L_0, which is why an oversized motor costs energy.
+
+    Parameters
+    ----------
+    shaft_power : float or array
+        Shaft power P the motor delivers [W], >= 0.
+    rated_power : float or array
+        Rated output P_N [W], > 0.
+    full_load_efficiency : float or array
+        Efficiency at rated output η_N [-], in (0, 1].
+
+    Returns
+    -------
+    float or array
+        Electrical input power [W].
+
+    Examples
+    --------
+    An 11 kW motor of 91.4 % full-load efficiency: 12.035 kW at full load, 1.035 kW of losses; at
+    half load the same efficiency; idling, the constant third of the losses.
+
+    >>> round(motor_input_power(11e3, 11e3, 0.914), 3)
+    12035.011
+    >>> round(5.5e3 / motor_input_power(5.5e3, 11e3, 0.914), 6)
+    0.914
+    >>> round(motor_input_power(0.0, 11e3, 0.914), 3)
+    345.004
+
+    References
+    ----------
+    IEC 60034-2-1 (losses of induction motors: constant and load losses; from memory); the part-load
+    point from memory (see :data:`PART_LOAD_CONSTANT_SHARE`).
+    """
+    p = np.asarray(shaft_power, dtype=float)
+    rated = np.asarray(rated_power, dtype=float)
+    eta = np.asarray(full_load_efficiency, dtype=float)
+    non_negative(p, "shaft_power")
+    positive(rated, "rated_power")
+    efficiency(eta if eta.ndim else float(eta), "full_load_efficiency")
+    losses = rated * (1.0 / eta - 1.0)
+    constant = PART_LOAD_CONSTANT_SHARE * losses
+    x = p / rated
+    return _out(p + constant + (losses - constant) * x * x)
+
+
 def standard_ratings(standard: str) -> np.ndarray:
     """Rated powers of a motor standard's series [W], smallest first.
 
@@ -380,24 +533,26 @@ def _overload(standard: str, overload_factor: float | None) -> float:
 
 
 def motor_rating(rms_power: Number, peak_power: Number, standard: str = "IEC",
-                 overload_factor: float | None = None) -> Number:
+                 overload_factor: float | None = None, service_factor: float = 1.0) -> Number:
     r"""Smallest standard motor rating that carries a duty cycle.
 
     The rating P_N is the smallest of the standard's series with
 
-    .. math:: P_N \ge P_{rms} \quad\text{and}\quad k \cdot P_N \ge P_{peak}
+    .. math:: SF \cdot P_N \ge P_{rms} \quad\text{and}\quad k \cdot P_N \ge P_{peak}
 
-    where k is the overload factor: how far above its rating the motor may be loaded for a short
-    peak. Torque and power are taken as proportional (an induction motor's speed changes little).
+    where k is the overload factor (the peak torque the motor carries without stalling, as a multiple
+    of its rated torque) and SF the service factor. Torque and power are taken as proportional (an
+    induction motor's speed changes little). How long the peak lasts does not enter: heating follows
+    the RMS load (periodic duty, IEC 60034-1 S6), and the 15 s of IEC 60034-1 clause 9.4 is the length
+    of a test that the motor does not stall, not a time limit on a cyclic overload.
 
     Default overload factors:
 
     * IEC: 1.6, from IEC 60034-1 clause 9.4 (from memory): a polyphase induction motor withstands
       60 % excess torque for 15 s without stalling. (Clause 9.3 allows 1.5 times rated current for
-      2 min to motors up to 315 kW.) It is a short-time allowance: a peak held longer than about 15 s
-      should be given as part of the RMS load with ``overload_factor=1``.
+      2 min to motors up to 315 kW.)
     * NEMA: also 1.6. The service factor (1.15) is a continuous allowance with a hotter winding and a
-      shorter life, not a peak allowance, so it is not used. NEMA MG 1 instead sets the breakdown
+      shorter life, not a peak allowance, so it is not used for the peak. NEMA MG 1 instead sets the breakdown
       torque of Design B motors at no less than 200 % of full-load torque for most 4-pole sizes
       (from memory; more for small ones); at 90 % voltage, which MG 1 permits, breakdown torque falls
       with the voltage squared to about 162 %. Loading to 160 % therefore stays just below breakdown
@@ -414,6 +569,10 @@ def motor_rating(rms_power: Number, peak_power: Number, standard: str = "IEC",
         ``"IEC"`` (default) or ``"NEMA"``.
     overload_factor : float, optional
         Peak allowance k [-], >= 1; default 1.6 for both standards (see above).
+    service_factor : float, optional
+        Continuous allowance SF [-], >= 1; default 1 for both standards: sheetpump sizes to the
+        nameplate rating and leaves NEMA's 1.15 as a reserve for low voltage, a hot room and wear
+        (common practice). IEC 60034-1 gives no service factor.
 
     Returns
     -------
@@ -441,7 +600,21 @@ def motor_rating(rms_power: Number, peak_power: Number, standard: str = "IEC",
     IEC 60034-1 clause 9.4; IEC 60072-1; NEMA MG 1 (all from memory).
     """
     std = _standard(standard)
-    factor = _overload(std, overload_factor)
+    need_rms, need_peak = _needs(std, rms_power, peak_power, _overload(std, overload_factor),
+                                 _service(service_factor))
+    return _out(_SERIES_W[std][np.maximum(need_rms, need_peak)])
+
+
+def _service(service_factor: float) -> float:
+    sf = float(service_factor)
+    if not (math.isfinite(sf) and sf >= 1.0):
+        raise PhysicsError("service_factor", "must be at least 1 (1 = size to the nameplate rating)")
+    return sf
+
+
+def _needs(std: str, rms_power: Number, peak_power: Number, factor: float,
+           sf: float) -> tuple[np.ndarray, np.ndarray]:
+    """Index in the series of the smallest rating the RMS load needs, and the one the peak needs."""
     rms = np.asarray(rms_power, dtype=float)
     peak = np.asarray(peak_power, dtype=float)
     non_negative(rms, "rms_power")
@@ -449,7 +622,7 @@ def motor_rating(rms_power: Number, peak_power: Number, standard: str = "IEC",
     _require_peak(rms, peak)
     series = _SERIES_W[std]
     covers = series * (1.0 + _REL_TOL)
-    need_rms = np.searchsorted(covers, rms, side="left")
+    need_rms = np.searchsorted(covers * sf, rms, side="left")
     need_peak = np.searchsorted(covers * factor, peak, side="left")
     for need, load, name in ((need_rms, rms, "rms_power"), (need_peak, peak, "peak_power")):
         if np.any(need >= series.size):
@@ -457,7 +630,7 @@ def motor_rating(rms_power: Number, peak_power: Number, standard: str = "IEC",
             what = "continuous rating" if name == "rms_power" else f"peak capacity ({factor:g} × rating)"
             raise PhysicsError(name, f"is {np.max(load) / 1e3:.4g} kW, beyond the {what} of the "
                                f"largest {std} motor ({largest}); split the drive or use a special motor")
-    return _out(series[np.maximum(need_rms, need_peak)])
+    return need_rms, need_peak
 
 
 def _require_peak(rms: np.ndarray, peak: np.ndarray) -> None:
@@ -484,7 +657,9 @@ class MotorChoice:
 
     Fields: ``standard`` ("IEC" or "NEMA"), ``rated_power`` [W], ``label`` (e.g. "11 kW", "15 hp"),
     ``efficiency`` (full-load, [-]), ``overload_factor`` [-] used for the peak, ``rms_load`` and
-    ``peak_load`` (RMS and peak power as fractions of the rated power, [-]).
+    ``peak_load`` (RMS and peak power as fractions of the rated power, [-]), ``service_factor`` [-]
+    and ``binding``: which criterion chose the size (``"RMS"``, ``"peak"`` or ``"RMS and peak"``;
+    ``"smallest size"`` when the load is below the smallest rating).
     """
 
     standard: str
@@ -494,14 +669,18 @@ class MotorChoice:
     overload_factor: float
     rms_load: float
     peak_load: float
+    service_factor: float = 1.0
+    binding: str = "RMS"
 
 
 def select_motor(rms_power: float, peak_power: float, standard: str = "IEC",
-                 overload_factor: float | None = None) -> MotorChoice:
-    """Choose the smallest standard motor for a duty cycle and describe it.
+                 overload_factor: float | None = None, service_factor: float = 1.0) -> MotorChoice:
+    """Choose the smallest standard motor for a duty cycle, say which criterion binds, and describe it.
 
-    The rule and the default overload factors are those of :func:`motor_rating`; the efficiency
-    is :func:`motor_efficiency` at the chosen rating.
+    Each standard size is tried in turn, smallest first; the first one that carries the RMS load and
+    the peak (the rule and defaults of :func:`motor_rating`) is chosen, and ``binding`` names the
+    criterion that ruled out the size below it. The efficiency is :func:`motor_efficiency` at the
+    chosen rating.
 
     Parameters
     ----------
@@ -513,6 +692,8 @@ def select_motor(rms_power: float, peak_power: float, standard: str = "IEC",
         ``"IEC"`` (default) or ``"NEMA"``.
     overload_factor : float, optional
         Peak allowance [-], >= 1; default 1.6.
+    service_factor : float, optional
+        Continuous allowance [-], >= 1; default 1 (see :func:`motor_rating`).
 
     Returns
     -------
@@ -528,6 +709,10 @@ def select_motor(rms_power: float, peak_power: float, standard: str = "IEC",
     >>> choice = select_motor(11.1e3, 20e3, "IEC")
     >>> choice.label, round(choice.efficiency, 3), round(choice.rms_load, 2), round(choice.peak_load, 3)
     ('15 kW', 0.921, 0.74, 1.333)
+    >>> choice.binding
+    'RMS and peak'
+    >>> select_motor(11.1e3, 16e3, "IEC").binding, select_motor(9e3, 20e3, "IEC").binding
+    ('RMS', 'peak')
     >>> select_motor(0.2 * HP, 0.3 * HP, "NEMA").label
     '1/4 hp'
 
@@ -537,7 +722,14 @@ def select_motor(rms_power: float, peak_power: float, standard: str = "IEC",
     """
     std = _standard(standard)
     factor = _overload(std, overload_factor)
-    rated = float(motor_rating(float(rms_power), float(peak_power), std, factor))
+    sf = _service(service_factor)
+    need_rms, need_peak = (int(k) for k in _needs(std, float(rms_power), float(peak_power), factor, sf))
+    k = max(need_rms, need_peak)
+    rated = float(_SERIES_W[std][k])
+    if k == 0:
+        binding = "smallest size"
+    else:
+        binding = "RMS and peak" if need_rms == need_peak else ("RMS" if need_rms > need_peak else "peak")
     return MotorChoice(
         standard=std,
         rated_power=rated,
@@ -546,4 +738,6 @@ def select_motor(rms_power: float, peak_power: float, standard: str = "IEC",
         overload_factor=factor,
         rms_load=float(rms_power) / rated,
         peak_load=float(peak_power) / rated,
+        service_factor=sf,
+        binding=binding,
     )

@@ -18,10 +18,12 @@ Written with :mod:`sheetpump.workbooks.writer`: deterministic, atomic, text from
 
 from __future__ import annotations
 
+import dataclasses
 import itertools
+import math
 import os
-import re
 from collections.abc import Sequence
+from dataclasses import dataclass
 from pathlib import Path
 from typing import Any
 
@@ -31,8 +33,9 @@ from xlsxwriter.utility import xl_rowcol_to_cell
 from .. import SAFETY_CAUTION, __version__, performance
 from ..checks import DISPLAY_UNITS, RULES, Finding
 from ..comparison import Candidate, Comparison
+from ..errors import Where
 from ..files import sha256
-from ..physics import drive, fluid
+from ..physics import drive, fluid, pump
 from ..units import (
     DISPLACEMENT,
     ENERGY,
@@ -47,19 +50,32 @@ from ..units import (
     Kind,
     from_si,
 )
-from .writer import open_book, write_formula, write_value
+from .writer import (
+    LINE_HEIGHT,
+    MARKERS,
+    PALETTE,
+    PAPER_SIZES,
+    PCT,
+    SIGNED_PCT,
+    cell_format,
+    column_width,
+    display_path,
+    number_format,
+    open_book,
+    page_setup,
+    text_lines,
+    text_width,
+    write_formula,
+    write_header,
+    write_value,
+)
 
 __all__ = ["MAX_DUTY_ROWS", "write_comparison"]
 
 #: A duty longer than this (a measured series) is shown as this many time-weighted bins.
 MAX_DUTY_ROWS = 1000
 
-# number format of each duty-sheet column (1: duration ... 11: input power)
-_DUTY_FORMATS = {1: "n1", 2: "n1", 3: "n0", 4: "n1", 5: "n1", 6: "n2", 7: "n2", 8: "pct", 9: "pct", 10: "n1",
-                 11: "n2"}
 _CURVE_POINTS = 25  # points of each efficiency and flow curve
-_LABEL_COL = 60  # column of the Curves sheet that holds chart labels
-_SHEET_KEEP = re.compile(r"[^\w .&-]")
 
 
 def _unit(units: str, kind: Kind) -> str:
@@ -72,16 +88,6 @@ def _show(value: float | None, kind: Kind, units: str) -> float | None:
     return float(from_si(value, kind, _unit(units, kind)))
 
 
-def _sheet_name(i: int, label: str) -> str:
-    # Sheet names stand inside formulas ('Duty 1 ...'!B5): a label from an input goes into the name only
-    # when it holds nothing but plain characters, so '=HYPERLINK(...)' or "+cmd|'..." never reaches a
-    # formula (the label is in the sheet's title cell anyway, as text).
-    clean = " ".join(label.split())
-    if _SHEET_KEEP.search(clean):
-        return f"Duty {i + 1}"
-    return f"Duty {i + 1} {clean}"[:31].rstrip()
-
-
 def _resample(candidate: Candidate) -> tuple[dict[str, np.ndarray], list[str], str]:
     """Per-row arrays for a duty sheet (SI), the row labels, and a note if resampled."""
     res = candidate.result
@@ -91,6 +97,7 @@ def _resample(candidate: Candidate) -> tuple[dict[str, np.ndarray], list[str], s
         "temperature": duty.temperature, "required": duty.flow, "delivered": fig.flow,
         "vol_eff": fig.volumetric_efficiency, "total_eff": fig.total_efficiency, "torque": fig.torque,
         "input_power": fig.input_power, "viscosity": fig.viscosity,
+        "surplus": fig.surplus_heat if fig.surplus_heat is not None else np.zeros(len(duty)),
     }
     n = len(duty)
     if n <= MAX_DUTY_ROWS:
@@ -112,78 +119,129 @@ def _resample(candidate: Candidate) -> tuple[dict[str, np.ndarray], list[str], s
     return out, labels, note
 
 
-def _duty_sheet(book: Any, name: str, candidate: Candidate, units: str) -> dict[str, str]:
+#: Columns of a duty sheet: key, header (with {unit} of its kind), kind for the unit (None: none), number
+#: format ("pct" an efficiency, "spct" a signed margin, None: digits from the column's values), formula.
+#: The charts and the summary find columns by key, so a column added here reaches them by its key.
+_DUTY_COLUMNS: tuple[tuple[str, str, Kind | None, str | None, bool], ...] = (
+    ("segment", "segment", None, None, False),
+    ("duration", "duration [s]", None, None, False),
+    ("pressure", "pressure [{}]", PRESSURE, None, False),
+    ("speed", "speed [{}]", SPEED, None, False),
+    ("temperature", "oil temperature [{}]", TEMPERATURE, None, False),
+    ("viscosity", "viscosity [{}]", VISCOSITY, None, False),
+    ("required", "required flow [{}]", FLOW, None, False),
+    ("delivered", "delivered flow [{}]", FLOW, None, False),
+    ("vol_eff", "volumetric efficiency", None, "pct", False),
+    ("total_eff", "total efficiency", None, "pct", False),
+    ("torque", "torque [{}]", TORQUE, None, False),
+    ("input_power", "input power [{}]", POWER, None, False),
+    ("hydraulic", "hydraulic power [{}]", POWER, None, True),
+    ("loss", "power loss [{}]", POWER, None, True),
+    ("flow_margin", "flow margin", None, "spct", True),
+    ("energy", "energy [Wh]", None, None, True),
+    # heat into the oil: the pump's loss plus the surplus flow at the pressure it crosses
+    ("surplus", "surplus flow heat [{}]", POWER, None, False),
+    ("heat", "heat into the oil [{}]", POWER, None, True),
+)
+_DUTY_COL = {key: i for i, (key, *_rest) in enumerate(_DUTY_COLUMNS)}
+_DUTY_HEADER_ROW = 3
+_NO_FLOW = "none required"
+
+
+def _duty_sheet(book: Any, name: str, candidate: Candidate, units: str, paper: str) -> dict[str, str]:
     """Write one candidate's duty sheet; returns cell references of its totals (for the summary)."""
     f = book.styles
     sheet = book.add_worksheet(name)
     cols, labels, note = _resample(candidate)
+    app = candidate.result.application
+    sheet.write_string(0, 0, f"{name}: duty of {candidate.datasheet.label} on {app.name}", f["title"])
+    sheet.write_string(1, 0, note or "One row per duty segment. Columns with a blue header are live formulas.",
+                       cell_format(book, "note", text_wrap=False))
     u = {k: _unit(units, k) for k in (PRESSURE, SPEED, FLOW, POWER, TORQUE, TEMPERATURE, VISCOSITY)}
-    sheet.write_string(0, 0, f"Duty of {candidate.datasheet.label} on {candidate.result.application.name}",
-                       f["title"])
-    sheet.write_string(1, 0, note or "One row per duty segment. Grey-headed columns are live formulas.",
-                       f["note"])
-    headers = [
-        ("segment", None), ("duration [s]", None), (f"pressure [{u[PRESSURE]}]", None),
-        (f"speed [{u[SPEED]}]", None), (f"oil temperature [{u[TEMPERATURE]}]", None),
-        (f"viscosity [{u[VISCOSITY]}]", None), (f"required flow [{u[FLOW]}]", None),
-        (f"delivered flow [{u[FLOW]}]", None), ("volumetric efficiency", None), ("total efficiency", None),
-        (f"torque [{u[TORQUE]}]", None), (f"input power [{u[POWER]}]", None),
-        (f"hydraulic power [{u[POWER]}]", "formula"), (f"power loss [{u[POWER]}]", "formula"),
-        ("flow margin", "formula"), (f"energy [{_unit(units, ENERGY) or 'kWh'}]", "formula"),
-    ]
-    if "pressure_max" in cols:
-        headers.append((f"max pressure [{u[PRESSURE]}]", None))
-    for c, (text, kind) in enumerate(headers):
-        sheet.write_string(3, c, text, f["header"] if kind is None else f["info"])
-    first = 4
     # the factor that turns pressure x flow in the display units into the display power unit
     hyd = float(from_si(from_si(1.0, PRESSURE, u[PRESSURE]) ** -1 * from_si(1.0, FLOW, u[FLOW]) ** -1,
                         POWER, u[POWER]))
-    kwh_per_j = float(from_si(1.0, ENERGY, "kWh"))
+    wh_per_j = float(from_si(1.0, ENERGY, "Wh"))
     power_si_per_display = 1.0 / float(from_si(1.0, POWER, u[POWER]))
-    show = {
-        "pressure": (PRESSURE,), "speed": (SPEED,), "temperature": (TEMPERATURE,), "viscosity": (VISCOSITY,),
-        "required": (FLOW,), "delivered": (FLOW,), "torque": (TORQUE,), "input_power": (POWER,),
-    }
-    shown = {k: np.asarray(from_si(v, show[k][0], u[show[k][0]]), float) if k in show else np.asarray(v, float)
-             for k, v in cols.items() if k != "pressure_max"}
+    shown = {key: (np.asarray(from_si(cols[key], kind, u[kind]), float) if kind is not None
+                   else np.asarray(cols[key], float))
+             for key, _h, kind, _f, formula in _DUTY_COLUMNS if key in cols}
+    shown["hydraulic"] = shown["pressure"] * shown["delivered"] * hyd
+    shown["loss"] = shown["input_power"] - shown["hydraulic"]
+    with np.errstate(divide="ignore", invalid="ignore"):
+        shown["flow_margin"] = np.where(shown["required"] > 0, shown["delivered"] / shown["required"] - 1.0, np.nan)
+    shown["energy"] = shown["input_power"] * power_si_per_display * shown["duration"] * wh_per_j
+    shown["heat"] = shown["loss"] + shown["surplus"]
+    headers, widths, formats = [], [], []
+    for key, head, kind, num, _formula in _DUTY_COLUMNS:
+        text = head.format(u[kind]) if kind is not None else head
+        values = labels if key == "segment" else shown[key]
+        if key == "flow_margin" and not np.all(shown["required"] > 0):
+            values = [*values, _NO_FLOW]
+        fmt_text = {"pct": PCT, "spct": SIGNED_PCT}.get(num or "", number_format(values)) if key != "segment" \
+            else None
+        headers.append(text)
+        widths.append(column_width(text, values, fmt_text, most=28))
+        formats.append(cell_format(book, num_format=fmt_text) if fmt_text else cell_format(book, "wrap"))
+    if "pressure_max" in cols:
+        shown["pressure_max"] = np.asarray(from_si(cols["pressure_max"], PRESSURE, u[PRESSURE]), float)
+        headers.append(f"max pressure [{u[PRESSURE]}]")
+        widths.append(column_width(headers[-1], shown["pressure_max"], number_format(shown["pressure_max"])))
+        formats.append(cell_format(book, num_format=number_format(shown["pressure_max"])))
+    write_header(sheet, _DUTY_HEADER_ROW, headers, widths, f["header"])
+    for c, (_key, _h, _k, _n, formula) in enumerate(_DUTY_COLUMNS):
+        if formula:
+            sheet.write_string(_DUTY_HEADER_ROW, c, headers[c], cell_format(book, "header", "info"))
+    first = _DUTY_HEADER_ROW + 1
+    cell = lambda r, key: xl_rowcol_to_cell(r, _DUTY_COL[key])  # noqa: E731
     for i, label in enumerate(labels):
         r = first + i
-        write_value(sheet, r, 0, label)
-        for c, key in enumerate(("duration", "pressure", "speed", "temperature", "viscosity", "required",
-                                 "delivered", "vol_eff", "total_eff", "torque", "input_power"), start=1):
-            write_value(sheet, r, c, float(shown[key][i]), f[_DUTY_FORMATS[c]])
-        p, q, qr, pin, t = (xl_rowcol_to_cell(r, c) for c in (2, 7, 6, 11, 1))
-        hyd_v = float(shown["pressure"][i] * shown["delivered"][i] * hyd)
-        write_formula(sheet, r, 12, f"={p}*{q}*{hyd!r}", hyd_v, f["n2"])
-        h = xl_rowcol_to_cell(r, 12)
-        write_formula(sheet, r, 13, f"={pin}-{h}", float(shown["input_power"][i]) - hyd_v, f["n2"])
-        req = float(shown["required"][i])
-        if req > 0:
-            write_formula(sheet, r, 14, f"={q}/{qr}-1", float(shown["delivered"][i]) / req - 1.0, f["pct"])
+        write_value(sheet, r, 0, label, formats[0])
+        for key, _h, _k, _n, formula in _DUTY_COLUMNS[1:]:
+            if not formula:
+                c = _DUTY_COL[key]
+                write_value(sheet, r, c, float(shown[key][i]), formats[c])
+        p, q, qr, pin, t = (cell(r, k) for k in ("pressure", "delivered", "required", "input_power", "duration"))
+        h = cell(r, "hydraulic")
+        write_formula(sheet, r, _DUTY_COL["hydraulic"], f"={p}*{q}*{hyd!r}", float(shown["hydraulic"][i]),
+                      formats[_DUTY_COL["hydraulic"]])
+        write_formula(sheet, r, _DUTY_COL["loss"], f"={pin}-{h}", float(shown["loss"][i]), formats[_DUTY_COL["loss"]])
+        if shown["required"][i] > 0:
+            write_formula(sheet, r, _DUTY_COL["flow_margin"], f"={q}/{qr}-1", float(shown["flow_margin"][i]),
+                          formats[_DUTY_COL["flow_margin"]])
         else:
-            write_value(sheet, r, 14, "no flow required")
-        energy = float(shown["input_power"][i]) * power_si_per_display * float(shown["duration"][i]) * kwh_per_j
-        write_formula(sheet, r, 15, f"={pin}*{t}*{power_si_per_display * kwh_per_j!r}", energy, f["n3"])
+            write_value(sheet, r, _DUTY_COL["flow_margin"], _NO_FLOW, cell_format(book, align="right"))
+        write_formula(sheet, r, _DUTY_COL["energy"], f"={pin}*{t}*{power_si_per_display * wh_per_j!r}",
+                      float(shown["energy"][i]), formats[_DUTY_COL["energy"]])
+        write_formula(sheet, r, _DUTY_COL["heat"], f"={cell(r, 'loss')}+{cell(r, 'surplus')}",
+                      float(shown["heat"][i]), formats[_DUTY_COL["heat"]])
         if "pressure_max" in cols:
-            write_value(sheet, r, 16, float(from_si(cols["pressure_max"][i], PRESSURE, u[PRESSURE])))
+            write_value(sheet, r, len(_DUTY_COLUMNS), float(shown["pressure_max"][i]), formats[-1])
     last = first + len(labels) - 1
     total_row = last + 2
-    col = lambda c: f"{xl_rowcol_to_cell(first, c)}:{xl_rowcol_to_cell(last, c)}"  # noqa: E731
-    d, pin = np.asarray(shown["duration"]), np.asarray(shown["input_power"])
-    loss = pin - np.asarray(shown["pressure"]) * np.asarray(shown["delivered"]) * hyd
+    col = lambda key: f"{cell(first, key)}:{cell(last, key)}"  # noqa: E731
+    d, pin = shown["duration"], shown["input_power"]
     # key, label, column, formula, value (what the formula gives, computed here)
     totals = [
-        ("cycle", "cycle time [s]", 1, f"=SUM({col(1)})", float(d.sum())),
-        ("peak_power", f"peak input power [{u[POWER]}]", 11, f"=MAX({col(11)})", float(pin.max())),
-        ("rms_power", f"RMS input power [{u[POWER]}]", 11,
-         f"=SQRT(SUMPRODUCT({col(11)},{col(11)},{col(1)})/SUM({col(1)}))",
+        ("cycle", "cycle time [s]", "duration", f"=SUM({col('duration')})", float(d.sum())),
+        ("peak_power", f"peak input power [{u[POWER]}]", "input_power", f"=MAX({col('input_power')})",
+         float(pin.max())),
+        ("rms_power", f"RMS input power [{u[POWER]}]", "input_power",
+         f"=SQRT(SUMPRODUCT({col('input_power')},{col('input_power')},{col('duration')})/SUM({col('duration')}))",
          float(np.sqrt(np.sum(pin**2 * d) / d.sum()))),
-        ("peak_torque", f"peak torque [{u[TORQUE]}]", 10, f"=MAX({col(10)})", float(np.max(shown["torque"]))),
-        ("mean_loss", f"mean power loss [{u[POWER]}]", 13, f"=SUMPRODUCT({col(13)},{col(1)})/SUM({col(1)})",
-         float(np.sum(loss * d) / d.sum())),
-        ("energy", "shaft energy per cycle [kWh]", 15, f"=SUM({col(15)})",
-         float(np.sum(pin * power_si_per_display * d) * kwh_per_j)),
+        ("peak_torque", f"peak torque [{u[TORQUE]}]", "torque", f"=MAX({col('torque')})",
+         float(np.max(shown["torque"]))),
+        ("mean_loss", f"mean power loss [{u[POWER]}]", "loss",
+         f"=SUMPRODUCT({col('loss')},{col('duration')})/SUM({col('duration')})",
+         float(np.sum(shown["loss"] * d) / d.sum())),
+        ("energy", "shaft energy per cycle [Wh]", "energy", f"=SUM({col('energy')})",
+         float(np.sum(shown["energy"]))),
+        ("mean_surplus", f"mean surplus flow heat [{u[POWER]}]", "surplus",
+         f"=SUMPRODUCT({col('surplus')},{col('duration')})/SUM({col('duration')})",
+         float(np.sum(shown["surplus"] * d) / d.sum())),
+        ("mean_heat", f"mean heat into the oil [{u[POWER]}]", "heat",
+         f"=SUMPRODUCT({col('heat')},{col('duration')})/SUM({col('duration')})",
+         float(np.sum(shown["heat"] * d) / d.sum())),
     ]
     refs: dict[str, str] = {}
     if note:
@@ -193,24 +251,36 @@ def _duty_sheet(book: Any, name: str, candidate: Candidate, units: str) -> dict[
                  "rms_power": _show(fig.rms_power, POWER, units),
                  "peak_torque": _show(fig.peak_torque, TORQUE, units),
                  "mean_loss": _show(fig.mean_power_loss, POWER, units),
-                 "energy": fig.energy_per_cycle * kwh_per_j}
+                 "energy": fig.energy_per_cycle * wh_per_j,
+                 "mean_surplus": _show(fig.mean_surplus_heat, POWER, units),
+                 "mean_heat": _show(fig.mean_heat, POWER, units)}
         sheet.write_string(total_row - 1, 0, "over every sample (not the bins above):", f["note"])
-    for k, (key, text, c, formula, value) in enumerate(totals):
+    for k, (key, text, c_key, formula, value) in enumerate(totals):
         r = total_row + k
-        sheet.write_string(r, 0, text, f["header"])
-        if note:
-            write_value(sheet, r, c, exact[key], f["n2"])
+        c = _DUTY_COL[c_key]
+        # the label stands right-aligned just left of its figure's column, so it never hides the figure
+        label = cell_format(book, bold=True, align="right")
+        if c > 1:
+            sheet.merge_range(r, 0, r, c - 1, text, label)
         else:
-            write_formula(sheet, r, c, formula, value, f["n2"])
+            sheet.write_string(r, 0, text, label)
+        num = cell_format(book, bold=True, top=1, bottom=1,
+                          num_format=number_format([exact[key] if note else value]))
+        if note:
+            write_value(sheet, r, c, exact[key], num)
+        else:
+            write_formula(sheet, r, c, formula, value, num)
             refs[key] = f"'{name}'!{xl_rowcol_to_cell(r, c, row_abs=True, col_abs=True)}"
-    sheet.set_column(0, 0, 24)
-    sheet.set_column(1, len(headers), 13)
-    sheet.freeze_panes(4, 1)
+    sheet.freeze_panes(_DUTY_HEADER_ROW + 1, 1)
+    last_col = len(headers) - 1
+    page_setup(sheet, app.name, paper=paper, title_rows=(_DUTY_HEADER_ROW, _DUTY_HEADER_ROW), title_columns=(0, 0),
+               area=(0, 0, total_row + len(totals) - 1, last_col))
     sheet._sheetpump_rows = (first, last)  # for the charts
+    sheet._sheetpump_binned = bool(note)
     return refs
 
 
-def _fmt_margin(margin: float | None) -> str:
+def _fmt_margin(margin: float | None) -> str:  # as SIGNED_PCT shows a number
     return "" if margin is None else f"{margin:+.1%}"
 
 
@@ -220,58 +290,70 @@ def _finding_text(f: Finding) -> str:
     return f"{f.severity} {_fmt_margin(f.margin)}".strip()
 
 
-def _summary(book: Any, comp: Comparison, units: str, duty_refs: list[dict[str, str]]) -> None:
-    f = book.styles
-    sheet = book.add_worksheet("Summary")
+@dataclass
+class _Row:
+    """One line of the Summary: a label and one value per candidate.
+
+    ``style`` is a number format key for every cell (``"num"``: three significant digits of the row's
+    largest value; ``"int"``; ``"pct"`` a share; ``"spct"`` a signed share), ``"text"``/``"wrap"``, or a
+    list of per-cell :data:`~sheetpump.workbooks.writer.STYLES` names (verdict colours). ``formulas``
+    (optional) are live formulas whose values are ``values``. A row of None is a gap.
+    """
+
+    label: str
+    values: list[Any]
+    style: str | list[str | None] | None = None
+    formulas: list[str | None] | None = None
+
+
+_NUMERIC = {"num", "int", "pct", "spct", "n0", "n1", "n2", "n3"}
+
+
+def _summary_rows(comp: Comparison, units: str, duty_refs: list[dict[str, str]], base: str
+                  ) -> list[_Row | None]:
+    """Every line of the Summary, in order (None: a gap). Add a line here and it is laid out and printed
+    like the others."""
     app = comp.application
-    sheet.write_string(0, 0, f"Pump comparison: {app.name}", f["title"])
-    width = max(2, len(comp.candidates))
-    sheet.merge_range(1, 0, 1, width, SAFETY_CAUTION, f["caution"])
-    sheet.set_row(1, 48)
-    for r, (style, text) in enumerate((("pass", "pass: inside the rating, with the margin asked"),
-                                       ("warn", "warn: allowed, but look (short-term limit, extrapolation)"),
-                                       ("fail", "fail: outside a rating"),
-                                       ("info", "info: a figure without a verdict")), start=2):
-        sheet.write_string(r, 0, "legend" if r == 2 else "")
-        sheet.write_string(r, 1, text, f[style])
     cands = comp.candidates
-    row = 7
-    sheet.write_string(row, 0, "candidate", f["header"])
-    for c, cand in enumerate(cands, start=1):
-        sheet.write_string(row, c, cand.datasheet.label, f["header"])
-    sheet.set_row(row, 32)
-    row += 1
-
-    def line(label: str, values: Sequence[Any], styles: Sequence[str | None] | str | None = None) -> None:
-        nonlocal row
-        sheet.write_string(row, 0, label)
-        for c, value in enumerate(values, start=1):
-            style = styles if isinstance(styles, str) else (styles[c - 1] if styles else None)
-            write_value(sheet, row, c, value, f[style] if style else None)
-        row += 1
-
-    u = lambda kind: _unit(units, kind)  # noqa: E731
     ds = [c.datasheet for c in cands]
-    line("supplier", [d.supplier for d in ds])
-    line("model", [d.model for d in ds])
-    line("datasheet file", [Path(d.file).name if d.file else "" for d in ds])
-    line(f"displacement [{_unit(units, DISPLACEMENT) if units == 'metric' else 'in^3/rev'}]",
-         [float(from_si(d.displacement, DISPLACEMENT, "cm^3/rev" if units == "metric" else "in^3/rev"))
-          for d in ds], "n2")
-    line(f"speed range [{u(SPEED)}]", [f"{_show(d.speed_min, SPEED, units):g} – {_show(d.speed_max, SPEED, units):g}"
-                                         for d in ds])
-    line(f"continuous pressure [{u(PRESSURE)}]", [_show(d.pressure_continuous, PRESSURE, units) for d in ds], "n0")
-    line(f"intermittent pressure [{u(PRESSURE)}]", [_show(d.pressure_intermittent, PRESSURE, units) for d in ds], "n0")
-    line(f"peak pressure [{u(PRESSURE)}]", [_show(d.pressure_peak, PRESSURE, units) for d in ds], "n0")
-    line(f"price [{app.currency}]", [d.price for d in ds], "n0")
+    u = lambda kind: _unit(units, kind)  # noqa: E731
+    rows: list[_Row | None] = []
+
+    def line(label: str, values: Sequence[Any], style: str | list[str | None] | None = None) -> None:
+        rows.append(_Row(label, list(values), style))
+
+    line("supplier", [d.supplier for d in ds], "wrap")
+    line("model", [d.model for d in ds], "wrap")
+    line("datasheet file", [display_path(d.file, base) if d.file else "" for d in ds], "wrap")
+    disp_unit = "cm^3/rev" if units == "metric" else "in^3/rev"
+    line(f"displacement [{disp_unit}]", [float(from_si(d.displacement, DISPLACEMENT, disp_unit)) for d in ds], "num")
+    line(f"speed range [{u(SPEED)}]",
+         [f"{_show(d.speed_min, SPEED, units):.4g} – {_show(d.speed_max, SPEED, units):.4g}" for d in ds])
+    line(f"continuous pressure [{u(PRESSURE)}]", [_show(d.pressure_continuous, PRESSURE, units) for d in ds], "int")
+    line(f"intermittent pressure [{u(PRESSURE)}]", [_show(d.pressure_intermittent, PRESSURE, units) for d in ds],
+         "int")
+    line(f"peak pressure [{u(PRESSURE)}]", [_show(d.pressure_peak, PRESSURE, units) for d in ds], "int")
+    line(f"price [{app.currency}]", [d.price for d in ds], "int")
     mass_unit = "kg" if units == "metric" else "lb"
     line(f"mass [{mass_unit}]", [None if d.mass is None else float(from_si(d.mass, MASS, mass_unit)) for d in ds],
-         "n1")
-    line("noise [dB(A)]", [d.noise for d in ds], "n0")
-    row += 1
+         "num")
+    line("noise [dB(A)]", [d.noise for d in ds], "int")
+    speeds = app.duty.speed
+    lo, hi = float(np.min(speeds)), float(np.max(speeds))
+    pulsation = []
+    for d in ds:
+        if not d.teeth:
+            pulsation.append("teeth not stated")
+        elif np.isclose(lo, hi):
+            pulsation.append(float(pump.pulsation_frequency(d.teeth, lo)))
+        else:
+            pulsation.append(f"{float(pump.pulsation_frequency(d.teeth, lo)):.0f} – "
+                             f"{float(pump.pulsation_frequency(d.teeth, hi)):.0f}")
+    line("pulsation frequency, teeth x speed / 60 [Hz]", pulsation, "int")
+    rows.append(None)
     line("verdict", [c.result.verdict for c in cands], [c.result.verdict for c in cands])
-    line("worst margin", [_fmt_margin(c.result.worst_margin) for c in cands])
-    line("delivered-flow margin", [_fmt_margin(c.flow_margin) for c in cands])
+    line("worst margin", [c.result.worst_margin for c in cands], "spct")
+    line("delivered-flow margin", [c.flow_margin for c in cands], "spct")
     rules = [r for r in RULES if any(f.rule == r for c in cands for f in c.result.findings)]
     for rule in rules:
         texts, styles = [], []
@@ -280,157 +362,361 @@ def _summary(book: Any, comp: Comparison, units: str, duty_refs: list[dict[str, 
             texts.append(_finding_text(found[0]) if found else "not stated")
             styles.append(found[0].severity if found else None)
         line(f"{rule}: {RULES[rule]}", texts, styles)
-    row += 1
+    rows.append(None)
     # drive figures: live links to each duty sheet's totals, with the checker's values stored
     for key, label, kind, attr in (
         ("peak_power", f"peak input power [{u(POWER)}]", POWER, "peak_power"),
         ("rms_power", f"RMS input power [{u(POWER)}]", POWER, "rms_power"),
         ("peak_torque", f"peak torque [{u(TORQUE)}]", TORQUE, "peak_torque"),
         ("mean_loss", f"pump power loss, mean [{u(POWER)}]", POWER, "mean_power_loss"),
+        ("mean_surplus", f"surplus flow over the relief valve or a throttle, mean [{u(POWER)}]", POWER,
+         "mean_surplus_heat"),
+        ("mean_heat", f"heat into the oil, mean [{u(POWER)}] (pump loss + surplus)", POWER, "mean_heat"),
     ):
-        sheet.write_string(row, 0, label)
-        for c, (cand, refs) in enumerate(zip(cands, duty_refs, strict=True), start=1):
-            value = _show(getattr(cand.result.drive, attr), kind, units)
-            if key in refs:
-                write_formula(sheet, row, c, f"={refs[key]}", value, f["n2"])
-            else:  # a resampled series: the duty sheet's bins are not the whole truth
-                write_value(sheet, row, c, value, f["n2"])
-        row += 1
-    line(f"surplus flow over the relief valve or a throttle, mean [{u(POWER)}]",
-         [_show(c.throttling_heat, POWER, units) for c in cands], "n2")
-    line(f"heat into the oil, mean [{u(POWER)}]",
-         [_show(c.heat_to_oil + c.throttling_heat, POWER, units) for c in cands], "n2")
+        values = [_show(getattr(c.result.drive, attr), kind, units) for c in cands]
+        # a resampled series has no link: the duty sheet's bins are not the whole truth
+        formulas = [f"={refs[key]}" if key in refs else None for refs in duty_refs]
+        rows.append(_Row(label, values, "num", formulas))
+    line("surplus flow crosses", [c.result.drive.surplus_path for c in cands], "wrap")
     line("motor chosen", [c.motor.label if c.motor else "none" for c in cands],
          [None if c.motor else "fail" for c in cands])
-    sheet.set_row(row, 30)
+    line(f"motor sized on: RMS load [{u(POWER)}]", [_show(c.motor_rms, POWER, units) for c in cands], "num")
+    line("RMS load taken", [c.motor_rms_basis for c in cands], "wrap")
+    line(f"motor sized on: peak load [{u(POWER)}]",
+         [_show(max(c.result.drive.peak_power, c.motor_rms), POWER, units) for c in cands], "num")
+    line("criterion that binds the motor size", [c.motor.binding if c.motor else "" for c in cands], "wrap")
     line("motor load (of its rating)", [c.motor_note for c in cands], "wrap")
     line("motor full-load efficiency", [c.motor.efficiency if c.motor else None for c in cands], "pct")
-    line("electrical energy per cycle [kWh]", [c.electrical_energy_per_cycle / 3.6e6 for c in cands], "n3")
-    line("electrical energy per year [kWh]", [c.electrical_energy_per_year / 3.6e6 for c in cands], "n0")
-    line(f"energy cost per year [{app.currency}]", [c.energy_cost_per_year for c in cands], "n0")
-    line(f"cost over {app.evaluation_years:g} years [{app.currency}]", [c.cost_over_period for c in cands], "n0")
-    line("rank (passing candidates, by cost over the period)", [c.rank if c.rank else "not ranked" for c in cands])
+    line("electrical energy per cycle [Wh] (at the motor's part-load efficiency)",
+         [c.electrical_energy_per_cycle / 3600.0 for c in cands], "num")
+    line("electrical energy per year [kWh]", [c.electrical_energy_per_year / 3.6e6 for c in cands], "int")
+    line(f"energy cost per year [{app.currency}]", [c.energy_cost_per_year for c in cands], "int")
+    line(f"cost over {app.evaluation_years:g} years [{app.currency}]", [c.cost_over_period for c in cands], "int")
+    line("rank (passing candidates, by cost over the period)", [c.rank if c.rank else "not ranked" for c in cands],
+         "int")
     defaults = f"defaults used for: {', '.join(app.defaulted)}" if app.defaulted else ""
     line("notes", ["; ".join([*c.notes, defaults] if defaults else c.notes) for c in cands], "wrap")
-    sheet.set_column(0, 0, 75)
-    sheet.set_column(1, max(len(cands), 2), 36)
-    sheet.freeze_panes(8, 1)
+    return rows
 
 
-def _curves_and_charts(book: Any, comp: Comparison, units: str, duty_sheets: list[Any]) -> None:
+def _summary(book: Any, comp: Comparison, units: str, duty_refs: list[dict[str, str]], paper: str,
+             base: str) -> None:
+    f = book.styles
+    sheet = book.add_worksheet("Summary")
+    app = comp.application
+    cands = comp.candidates
+    rows = _summary_rows(comp, units, duty_refs, base)
+    n = max(len(cands), 1)
+    # widths from content: labels wrap at 52 characters, candidate columns fit their values (14-30)
+    label_w = min(52, max(len(r.label) for r in rows if r) + 1)
+    cand_w = 14
+    for r in rows:
+        if r is None:
+            continue
+        num = number_format(r.values) if r.style in ("num", "n1", "n2", "n3") else None
+        for v in r.values:
+            cand_w = max(cand_w, min(30, text_width(v, num) + 2))
+    cand_w = max(cand_w, *(min(30, max((len(w) for w in c.datasheet.label.split()), default=0) + 2) for c in cands))
+    sheet.set_column(0, 0, label_w)
+    sheet.set_column(1, n, cand_w)
+    sheet.write_string(0, 0, f"Pump comparison: {app.name}", f["title"])
+    caution = cell_format(book, "caution")
+    sheet.merge_range(1, 0, 1, n, SAFETY_CAUTION, caution)
+    sheet.set_row(1, LINE_HEIGHT * text_lines(SAFETY_CAUTION, (label_w + n * cand_w) * 0.85))
+    # the legend on one line: the verdict's word is in every coloured cell, so colour is never alone
+    sheet.write_string(2, 0, "legend (the word says the verdict; colour helps)", cell_format(book, "note"))
+    legend = (("pass", "pass: inside the rating, with the margin asked"),
+              ("warn", "warn: allowed, but look (short-term limit, extrapolation)"),
+              ("fail", "fail: outside a rating"),
+              ("info", "info: a figure without a verdict"),
+              ("not checked", "not checked: the datasheet or application does not state what the rule needs; "
+               "fill the cell named on Findings"))
+    # the entries across the candidates' columns, on as many lines as they need
+    legend_rows = -(-len(legend) // n)
+    for r in range(legend_rows):
+        entries = legend[r * n:(r + 1) * n]
+        for c, (style, text) in enumerate(entries, start=1):
+            sheet.write_string(2 + r, c, text, cell_format(book, style, "wrap"))
+        sheet.set_row(2 + r, LINE_HEIGHT * max(text_lines(text, cand_w) for _, text in entries))
+    head = 2 + legend_rows + 1
+    sheet.write_string(head, 0, "candidate", f["header"])
+    lines = 1
+    for c, cand in enumerate(cands, start=1):
+        sheet.write_string(head, c, cand.datasheet.label, f["header"])
+        lines = max(lines, text_lines(cand.datasheet.label, cand_w * 0.9))
+    sheet.set_row(head, LINE_HEIGHT * lines)
+    row = head + 1
+    label_fmt = cell_format(book, "wrap")
+    for r in rows:
+        if r is None:
+            row += 1
+            continue
+        sheet.write_string(row, 0, r.label, label_fmt)
+        lines = text_lines(r.label, label_w)
+        numeric = r.style if isinstance(r.style, str) and r.style in _NUMERIC else None
+        num = None
+        if numeric in ("pct", "spct"):
+            num = PCT if numeric == "pct" else SIGNED_PCT
+        elif numeric == "int" or numeric == "n0":
+            num = "#,##0"
+        elif numeric:
+            num = number_format(r.values)
+        for c, value in enumerate(r.values, start=1):
+            style = r.style[c - 1] if isinstance(r.style, list) else None
+            # a thin line between candidates; numbers right, texts left and indented: they never run together
+            edge = {"left": 1, "left_color": "#BFBFBF"}
+            if isinstance(value, (int, float)) and not isinstance(value, bool):
+                fmt = cell_format(book, style, num_format=num or number_format([value]), align="right", **edge)
+            else:
+                fmt = cell_format(book, style, "wrap", indent=1, **edge)
+                lines = max(lines, text_lines(value, cand_w - 2))
+            formula = r.formulas[c - 1] if r.formulas else None
+            if formula:
+                write_formula(sheet, row, c, formula, value, fmt)
+            else:
+                write_value(sheet, row, c, value, fmt)
+        if lines > 1:
+            sheet.set_row(row, LINE_HEIGHT * lines)
+        row += 1
+    sheet.freeze_panes(head + 1, 1)
+    # at most two pages: one wide, two tall; the candidates' names and the labels repeat on each
+    page_setup(sheet, app.name, paper=paper, title_rows=(head, head), title_columns=(0, 0),
+               area=(0, 0, row - 1, n))
+    sheet.fit_to_pages(1, 2)
+
+
+_BAND_ROWS = 30  # rows of one printed page of the Charts sheet (30 x 20 px = 450 pt)
+# pixels: two charts side by side fit a landscape page, also where LibreOffice draws cells (and so the charts
+# anchored to them) up to ~1.2 x wider for want of the Calibri font
+_CHART_W, _CHART_H, _CHART_GAP = 390, 540, 14
+_LINE_STYLE = {"total": "solid", "volumetric": "dash", "flow": "solid"}  # one line style per quantity
+
+
+def _nice_ceiling(x: float) -> float:
+    """``x`` rounded up to a multiple of half its leading power of ten: 3675 -> 4000, 325.5 -> 350.
+
+    >>> _nice_ceiling(3675.0), _nice_ceiling(325.5), _nice_ceiling(0.0)
+    (4000.0, 350.0, 1.0)
+    """
+    if x <= 0:
+        return 1.0
+    step = 5 * 10 ** (math.floor(math.log10(x)) - 1)
+    return float(math.ceil(x / step) * step)
+
+
+def _series_style(k: int, quantity: str) -> dict[str, Any]:
+    colour = PALETTE[k % len(PALETTE)]
+    return {"line": {"color": colour, "width": 2.25, "dash_type": _LINE_STYLE[quantity]}, "marker": {"type": "none"}}
+
+
+def _points_style(k: int, size: int = 6) -> dict[str, Any]:
+    colour = PALETTE[k % len(PALETTE)]
+    return {"marker": {"type": MARKERS[k % len(MARKERS)], "size": size, "fill": {"color": colour},
+                       "border": {"color": colour}}, "line": {"none": True}}
+
+
+def _curves_and_charts(book: Any, comp: Comparison, units: str, duty_sheets: list[Any], paper: str) -> None:
     curves = book.add_worksheet("Curves")
     charts = book.add_worksheet("Charts")
     f = book.styles
     app = comp.application
     duty = app.duty
     oil = app.oil
+    cands = comp.candidates
     weights = duty.duration / duty.duration.sum()
     n_mean = float(np.sum(duty.speed * weights))
     t_mean = float(np.sum(duty.temperature * weights))
     nu_mean = float(fluid.viscosity_at(t_mean, oil.nu1, oil.t1, oil.nu2, oil.t2))
-    pu, qu = _unit(units, PRESSURE), _unit(units, FLOW)
+    pu, qu, su = _unit(units, PRESSURE), _unit(units, FLOW), "rpm"
+    head_fmt, group_fmt = f["header"], cell_format(book, "header", text_wrap=False)
     curves.write_string(0, 0, f"Curves at the duty's mean speed {from_si(n_mean, SPEED, 'rpm'):.0f} rpm and "
                         f"mean oil temperature {from_si(t_mean, TEMPERATURE, _unit(units, TEMPERATURE)):.0f} "
-                        f"{_unit(units, TEMPERATURE)}", f["note"])
-    # Chart texts that contain input text are taken from cells: XlsxWriter would read a "!" in a
-    # literal series name as a sheet reference.
-    label_row = [0]
+                        f"{_unit(units, TEMPERATURE)}; below them the required flow and each candidate's "
+                        "speed-pressure envelope", cell_format(book, "note", text_wrap=False))
+    # rows of the three blocks: curves, required flow, envelopes; then chart labels that hold input text
+    req_cols, req_labels, _ = _resample(cands[0]) if cands else ({}, [], "")
+    m = len(req_labels)
+    row_req = 3 + _CURVE_POINTS + 1
+    row_env = row_req + 2 + m + 1
+    env_block = 10
+    label_row = [row_env + env_block * len(cands) + 1]
 
-    def text_ref(text: str) -> list[Any]:
+    def name_of(text: str) -> Any:
+        # a "!" in a literal series name reads as a sheet reference: such a name is taken from a cell
+        if "!" not in text and not text.startswith("="):
+            return text
         r = label_row[0]
         label_row[0] += 1
-        curves.write_string(r, _LABEL_COL, text)
-        return ["Curves", r, _LABEL_COL]
+        curves.write_string(r, 0, text)
+        return ["Curves", r, 0]
 
-    curves.write_string(0, _LABEL_COL - 1, "chart labels:", f["note"])
+    # block 1: efficiency and flow curves, four columns per candidate
+    heads = (f"pressure [{pu}]", "volumetric efficiency", "total efficiency", f"delivered flow [{qu}]")
+    widths = [10, 11, 11, 10] * max(len(cands), 1)
+    write_header(curves, 2, list(heads) * len(cands), widths[:4 * len(cands)], head_fmt)
+    fmts = [cell_format(book, num_format=x) for x in ("#,##0", PCT, PCT, "#,##0.0")]
     eff = book.add_chart({"type": "scatter", "subtype": "straight"})
+    vol = book.add_chart({"type": "scatter", "subtype": "straight"})
     flow = book.add_chart({"type": "scatter", "subtype": "straight"})
-    for k, cand in enumerate(comp.candidates):
+    lowest = {"total": 1.0, "volumetric": 1.0}
+    for k, cand in enumerate(cands):
         ds = cand.datasheet
         p = np.linspace(0.0, ds.pressure_peak, _CURVE_POINTS)
         est = performance.estimate(ds, p, np.full_like(p, n_mean), np.full_like(p, nu_mean))
         c0 = 4 * k
-        for j, (head, values) in enumerate((
-            (f"pressure [{pu}]", from_si(p, PRESSURE, pu)), ("volumetric efficiency", est.volumetric_efficiency),
-            ("total efficiency", est.total_efficiency), (f"delivered flow [{qu}]", from_si(est.flow, FLOW, qu)),
-        )):
-            curves.write_string(1, c0 + j, f"{ds.label}: {head}", f["header"])
+        # the efficiency axes start where the curves do above a fifth of the peak pressure (below it the
+        # total efficiency falls to zero and would flatten every difference between the candidates)
+        upper = p >= 0.2 * ds.pressure_peak
+        lowest["total"] = min(lowest["total"], float(np.nanmin(est.total_efficiency[upper])),
+                              float(np.nanmin(cand.result.drive.total_efficiency)))
+        lowest["volumetric"] = min(lowest["volumetric"], float(np.nanmin(est.volumetric_efficiency)),
+                                   float(np.nanmin(cand.result.drive.volumetric_efficiency)))
+        curves.merge_range(1, c0, 1, c0 + 3, ds.label, group_fmt)
+        for j, values in enumerate((from_si(p, PRESSURE, pu), est.volumetric_efficiency, est.total_efficiency,
+                                    from_si(est.flow, FLOW, qu))):
             for i, v in enumerate(np.asarray(values, float)):
-                write_value(curves, 2 + i, c0 + j, float(v))
-        ref = lambda c: ["Curves", 2, c, 1 + _CURVE_POINTS, c]  # noqa: E731
-        eff.add_series({"name": text_ref(f"{ds.label} total"), "categories": ref(c0), "values": ref(c0 + 2)})
-        eff.add_series({"name": text_ref(f"{ds.label} volumetric"), "categories": ref(c0), "values": ref(c0 + 1),
-                        "line": {"dash_type": "dash"}})
-        flow.add_series({"name": text_ref(f"{ds.label} delivered"), "categories": ref(c0), "values": ref(c0 + 3)})
+                write_value(curves, 3 + i, c0 + j, float(v), fmts[j])
+        ref = lambda c: ["Curves", 3, c, 2 + _CURVE_POINTS, c]  # noqa: E731
         first, last = duty_sheets[k]._sheetpump_rows
         sheet = duty_sheets[k].name
-        eff.add_series({"name": text_ref(f"{ds.label} at the duty"), "categories": [sheet, first, 2, last, 2],
-                        "values": [sheet, first, 9, last, 9], "marker": {"type": "circle", "size": 5},
-                        "line": {"none": True}})
-        if k == 0:
-            flow.add_series({"name": "required (duty)", "categories": [sheet, first, 2, last, 2],
-                             "values": [sheet, first, 6, last, 6], "marker": {"type": "diamond", "size": 7},
-                             "line": {"none": True}})
-    eff.set_title({"name": "Efficiency against pressure"})
-    eff.set_x_axis({"name": f"pressure [{pu}]"})
-    eff.set_y_axis({"name": "efficiency", "min": 0, "max": 1})
-    flow.set_title({"name": "Delivered flow against pressure (required points marked)"})
-    flow.set_x_axis({"name": f"pressure [{pu}]"})
-    flow.set_y_axis({"name": f"flow [{qu}]"})
-    for chart in (eff, flow):
-        chart.set_size({"width": 760, "height": 420})
+        at = lambda key, s=sheet, a=first, b=last: [s, a, _DUTY_COL[key], b, _DUTY_COL[key]]  # noqa: E731
+        eff.add_series({"name": name_of(f"{ds.label}"), "categories": ref(c0), "values": ref(c0 + 2),
+                        **_series_style(k, "total")})
+        eff.add_series({"name": name_of(f"{ds.label} at the duty"), "categories": at("pressure"),
+                        "values": at("total_eff"), **_points_style(k)})
+        vol.add_series({"name": name_of(f"{ds.label}"), "categories": ref(c0), "values": ref(c0 + 1),
+                        **_series_style(k, "volumetric")})
+        vol.add_series({"name": name_of(f"{ds.label} at the duty"), "categories": at("pressure"),
+                        "values": at("vol_eff"), **_points_style(k)})
+        flow.add_series({"name": name_of(f"{ds.label} delivered"), "categories": ref(c0), "values": ref(c0 + 3),
+                         **_series_style(k, "flow")})
+    # block 2: the required flow at the duty's pressures, and with the margin asked
+    if cands:
+        curves.write_string(row_req, 0, "required flow at the duty's points", group_fmt)
+        req_heads = [f"pressure [{pu}]", f"required flow [{qu}]",
+                     f"required + {app.flow_margin:.0%} margin [{qu}]"]
+        order = np.argsort(req_cols["pressure"], kind="stable")
+        p_req = np.asarray(from_si(req_cols["pressure"][order], PRESSURE, pu), float)
+        q_req = np.asarray(from_si(req_cols["required"][order], FLOW, qu), float)
+        for i in range(m):
+            write_value(curves, row_req + 2 + i, 0, float(p_req[i]), fmts[0])
+            write_value(curves, row_req + 2 + i, 1, float(q_req[i]), fmts[3])
+            write_value(curves, row_req + 2 + i, 2, float(q_req[i] * (1 + app.flow_margin)), fmts[3])
+        for c, text in enumerate(req_heads):
+            curves.write_string(row_req + 1, c, text, head_fmt)
+        curves.set_row(row_req + 1, LINE_HEIGHT * max(text_lines(t, w * 0.9) for t, w in zip(req_heads, widths,
+                                                                                             strict=False)))
+        rng = lambda c: ["Curves", row_req + 2, c, row_req + 1 + m, c]  # noqa: E731
+        flow.add_series({"name": "required (duty)", "categories": rng(0), "values": rng(1),
+                         "marker": {"type": "diamond", "size": 8, "fill": {"color": "#000000"},
+                                    "border": {"color": "#000000"}}, "line": {"none": True}})
+        if app.flow_margin > 0:
+            flow.add_series({"name": f"required + {app.flow_margin:.0%} margin", "categories": rng(0),
+                             "values": rng(2),
+                             "marker": {"type": "triangle", "size": 8, "fill": {"none": True},
+                                        "border": {"color": "#000000", "width": 1.25}}, "line": {"none": True}})
+    for chart, title, quantity in ((eff, "Total efficiency against pressure", "total"),
+                                   (vol, "Volumetric efficiency against pressure", "volumetric")):
+        chart.set_title({"name": title, "name_font": {"size": 12}})
+        chart.set_x_axis({"name": f"pressure [{pu}]", "min": 0})
+        bottom = max(0.0, math.floor(lowest[quantity] * 20 - 1e-9) / 20)  # a multiple of 5 %
+        chart.set_y_axis({"name": f"{quantity} efficiency", "min": bottom, "max": 1, "num_format": "0%"})
+    flow.set_title({"name": "Delivered flow against pressure, with the required flow", "name_font": {"size": 12}})
+    flow.set_x_axis({"name": f"pressure [{pu}]", "min": 0})
+    flow.set_y_axis({"name": f"flow [{qu}]", "min": 0})
+    for chart in (eff, vol, flow):
         chart.set_legend({"position": "bottom"})
-    charts.write_string(0, 0, "Charts (native spreadsheet charts; data on the sheet Curves and the duty sheets)",
-                        f["title"])
-    charts.insert_chart(2, 0, eff)
-    charts.insert_chart(2, 12, flow)
-    # speed-pressure envelopes: bands as closed outlines, duty points on top
-    su = "rpm"
-    base = 4 * len(comp.candidates) + 1
-    for k, cand in enumerate(comp.candidates):
+        chart.set_size({"width": _CHART_W, "height": _CHART_H})
+    flow.set_size({"width": 2 * _CHART_W + _CHART_GAP, "height": _CHART_H})
+    charts.write_string(0, 0, "Charts: native spreadsheet charts, data on the sheet Curves and the duty sheets; "
+                        "one colour and marker per candidate in every chart",
+                        cell_format(book, "note", text_wrap=False))
+
+    second = {"x_offset": _CHART_W + _CHART_GAP}
+    charts.insert_chart(1, 0, eff)
+    charts.insert_chart(1, 0, vol, second)
+    charts.insert_chart(_BAND_ROWS + 1, 0, flow)
+    # block 3: speed-pressure envelopes, one block of rows per candidate, on shared axes
+    x_max = _nice_ceiling(1.05 * max([float(from_si(c.datasheet.speed_max, SPEED, su)) for c in cands]
+                                     + [float(from_si(np.max(duty.speed), SPEED, su))]))
+    y_max = _nice_ceiling(1.05 * max([float(from_si(c.datasheet.pressure_peak, PRESSURE, pu)) for c in cands]
+                                     + [float(from_si(np.max(duty.pressure), PRESSURE, pu))]))
+    seg_fmt = cell_format(book, num_format="#,##0")
+    for k, cand in enumerate(cands):
         ds = cand.datasheet
         env = book.add_chart({"type": "scatter", "subtype": "straight"})
         lo, hi = float(from_si(ds.speed_min, SPEED, su)), float(from_si(ds.speed_max, SPEED, su))
-        bands = [("continuous", ds.pressure_continuous, 0.0)]
+        bands = [("continuous", ds.pressure_continuous, 0.0, "solid")]
         if ds.pressure_intermittent:
-            bands.append(("intermittent", ds.pressure_intermittent, ds.pressure_continuous))
-        bands.append(("peak", ds.pressure_peak, ds.pressure_intermittent or ds.pressure_continuous))
-        c0 = base + 2 * (len(bands) + 1) * k
-        for j, (label, top, bottom) in enumerate(bands):
+            bands.append(("intermittent", ds.pressure_intermittent, ds.pressure_continuous, "dash"))
+        bands.append(("peak", ds.pressure_peak, ds.pressure_intermittent or ds.pressure_continuous, "round_dot"))
+        r0 = row_env + env_block * k
+        curves.merge_range(r0, 0, r0, 7, f"{ds.label}: speed-pressure envelope [{su}, {pu}]", group_fmt)
+        outlines: list[tuple[str, list[float], list[float], str]] = []
+        for label, top, bottom, dash in bands:
             top_d, bot_d = float(from_si(top, PRESSURE, pu)), float(from_si(bottom, PRESSURE, pu))
-            xs = [lo, hi, hi, lo, lo]
-            ys = [bot_d, bot_d, top_d, top_d, bot_d]
-            cx = c0 + 2 * j
-            curves.write_string(1, cx, f"{ds.label} {label}: speed [{su}]", f["header"])
-            curves.write_string(1, cx + 1, f"pressure [{pu}]", f["header"])
+            outlines.append((f"{label} band", [lo, hi, hi, lo, lo], [bot_d, bot_d, top_d, top_d, bot_d], dash))
+        if ds.speed_min_high_pressure and ds.high_pressure_threshold is not None:
+            raised = float(from_si(ds.speed_min_high_pressure, SPEED, su))
+            thr = float(from_si(ds.high_pressure_threshold, PRESSURE, pu))
+            top = float(from_si(ds.pressure_peak, PRESSURE, pu))
+            outlines.append((f"min. {raised:.0f} {su}", [lo, raised, raised],
+                             [thr, thr, top], "dash_dot"))
+        lines = 1
+        for j, (label, xs, ys, dash) in enumerate(outlines):
+            cx = 2 * j
+            curves.write_string(r0 + 1, cx, f"{label}: speed", head_fmt)
+            curves.write_string(r0 + 1, cx + 1, "pressure", head_fmt)
+            lines = max(lines, text_lines(f"{label}: speed", 9))
+            curves.set_row(r0 + 1, LINE_HEIGHT * lines)
             for i, (x, y) in enumerate(zip(xs, ys, strict=True)):
-                write_value(curves, 2 + i, cx, x)
-                write_value(curves, 2 + i, cx + 1, y)
-            colour = {"continuous": "#2E7D32", "intermittent": "#C77C02", "peak": "#B3261E"}[label]
-            env.add_series({"name": f"{label} band", "categories": ["Curves", 2, cx, 6, cx],
-                            "values": ["Curves", 2, cx + 1, 6, cx + 1],
-                            "line": {"color": colour, "width": 2}})
+                write_value(curves, r0 + 2 + i, cx, x, seg_fmt)
+                write_value(curves, r0 + 2 + i, cx + 1, y, seg_fmt)
+            env.add_series({"name": label, "categories": ["Curves", r0 + 2, cx, r0 + 1 + len(xs), cx],
+                            "values": ["Curves", r0 + 2, cx + 1, r0 + 1 + len(xs), cx + 1],
+                            "line": {"color": "#000000" if label.startswith("min.") else "#555555",
+                                     "width": 2, "dash_type": dash}, "marker": {"type": "none"}})
         first, last = duty_sheets[k]._sheetpump_rows
         sheet = duty_sheets[k].name
-        env.add_series({"name": "duty points", "categories": [sheet, first, 3, last, 3],
-                        "values": [sheet, first, 2, last, 2], "marker": {"type": "circle", "size": 6},
-                        "line": {"none": True}})
-        env.set_title({"name": text_ref(f"Operating envelope: {ds.label}")})
-        env.set_x_axis({"name": f"speed [{su}]", "min": 0})
-        env.set_y_axis({"name": f"pressure [{pu}]", "min": 0})
-        env.set_legend({"position": "bottom"})
-        env.set_size({"width": 500, "height": 360})
-        charts.insert_chart(24 + 20 * (k // 2), 8 * (k % 2), env)
+        n_rows = last - first + 1
+        if n_rows <= len(PALETTE) and not duty_sheets[k]._sheetpump_binned:
+            # the duty's points coloured and shaped by segment, alike in every envelope chart (the bands are grey)
+            for i in range(n_rows):
+                env.add_series({"name": [sheet, first + i, 0], "categories": [sheet, first + i, 3, first + i, 3],
+                                "values": [sheet, first + i, 2, first + i, 2], **_points_style(i, 7)})
+        else:
+            env.add_series({"name": "duty points", "categories": [sheet, first, 3, last, 3],
+                            "values": [sheet, first, 2, last, 2], "marker": {"type": "circle", "size": 5},
+                            "line": {"none": True}})
+        env.set_title({"name": name_of(f"Speed-pressure envelope: {ds.label}"), "name_font": {"size": 12}})
+        env.set_x_axis({"name": f"speed [{su}]", "min": 0, "max": x_max})
+        env.set_y_axis({"name": f"pressure [{pu}]", "min": 0, "max": y_max})
+        # one plot area for every envelope chart, so the shared axes also have the same length on paper
+        env.set_legend({"position": "bottom", "layout": {"x": 0.05, "y": 0.75, "width": 0.9, "height": 0.24}})
+        env.set_plotarea({"layout": {"x": 0.14, "y": 0.14, "width": 0.8, "height": 0.5}})
+        env.set_size({"width": _CHART_W, "height": _CHART_H})
+        band = 2 + k // 2
+        charts.insert_chart(band * _BAND_ROWS + 1, 0, env, second if k % 2 else {})
+    bands_used = 2 + (len(cands) + 1) // 2
+    page_setup(charts, app.name, paper=paper, area=(0, 0, bands_used * _BAND_ROWS - 1, 14),
+               breaks=[b * _BAND_ROWS for b in range(1, bands_used)])
+    curves.freeze_panes(3, 0)
+    page_setup(curves, app.name, paper=paper, title_rows=(1, 2),
+               area=(0, 0, max(label_row[0], row_env + env_block * len(cands)) - 1, max(4 * len(cands), 8) - 1))
 
 
-def _findings(book: Any, comp: Comparison, units: str) -> None:
-    f = book.styles
+#: Columns of the Findings sheet: header, width [characters] (None: from content), wrapped.
+_FINDING_COLUMNS = (("candidate", 18, True), ("rule", None, False), ("severity", None, False),
+                    ("measured", None, False), ("limit", None, False), ("unit", None, False),
+                    ("margin", None, False), ("segment", 14, True), ("segments outside", 9, False),
+                    ("datasheet cell", 26, True), ("application cell", 20, True), ("message", 56, True))
+
+
+def _findings(book: Any, comp: Comparison, units: str, paper: str, base: str) -> None:
     sheet = book.add_worksheet("Findings")
-    heads = ["candidate", "rule", "what the rule checks", "severity", "measured", "limit", "unit", "margin",
-             "segment", "segments outside", "datasheet cell", "application cell", "message"]
-    for c, h in enumerate(heads):
-        sheet.write_string(0, c, h, f["header"])
-    row = 1
+    small = {"font_size": 9}
+    rows: list[list[Any]] = []
+    severities: list[str] = []
     for cand in comp.candidates:
         for fi in cand.result.findings:
             measured, limit = fi.measured, fi.limit
@@ -438,85 +724,138 @@ def _findings(book: Any, comp: Comparison, units: str) -> None:
                 measured = float(from_si(measured, fi.kind, fi.unit or None))
             if fi.kind is not None and isinstance(limit, float):
                 limit = float(from_si(limit, fi.kind, fi.unit or None))
-            values = [cand.datasheet.label, fi.rule, fi.title, fi.severity, measured, limit, fi.unit,
-                      fi.margin, fi.segment, fi.count, str(fi.where), str(fi.app_where or ""), fi.message]
-            for c, v in enumerate(values):
-                write_value(sheet, row, c, v, f[fi.severity] if c == 3 else None)
-            row += 1
-    sheet.autofilter(0, 0, max(row - 1, 1), len(heads) - 1)
-    sheet.set_column(0, 2, 26)
-    sheet.set_column(3, 9, 12)
-    sheet.set_column(10, 12, 40)
+            where = _where_text(fi.where, base)
+            app_where = _where_text(fi.app_where, base) if fi.app_where is not None else ""
+            rows.append([cand.datasheet.label, fi.rule, fi.severity, measured, limit, fi.unit, fi.margin,
+                         fi.segment, fi.count, where, app_where, fi.message])
+            severities.append(fi.severity)
+    widths = []
+    for c, (head, width, _wrap) in enumerate(_FINDING_COLUMNS):
+        values = [r[c] for r in rows]
+        widths.append(width or column_width(head, values, SIGNED_PCT if head == "margin" else "#,##0.00", most=24))
+    write_header(sheet, 0, [h for h, _w, _x in _FINDING_COLUMNS], widths, cell_format(book, "header", **small))
+    text = cell_format(book, "wrap", indent=1, **small)  # indented: never runs into a number on its left
+    for i, (values, severity) in enumerate(zip(rows, severities, strict=True), start=1):
+        lines = 1
+        # measured and limit share a format: three significant digits of the larger
+        num = number_format([v for v in values[3:5] if isinstance(v, float)])
+        for c, v in enumerate(values):
+            head, width, wrap = _FINDING_COLUMNS[c]
+            if head == "severity":
+                fmt = cell_format(book, severity, **small)
+            elif head == "margin":
+                fmt = cell_format(book, num_format=SIGNED_PCT, **small)
+            elif isinstance(v, (int, float)) and not isinstance(v, bool):
+                fmt = cell_format(book, num_format="0" if head == "segments outside" else num, **small)
+            else:
+                fmt = text
+                if wrap:
+                    lines = max(lines, text_lines(v, widths[c] * 1.15))
+            write_value(sheet, i, c, v, fmt)
+        if lines > 1:
+            sheet.set_row(i, 12.0 * lines)
+    last = max(len(rows), 1)
+    sheet.autofilter(0, 0, last, len(_FINDING_COLUMNS) - 1)
     sheet.freeze_panes(1, 0)
+    page_setup(sheet, comp.application.name, paper=paper, title_rows=(0, 0),
+               area=(0, 0, last, len(_FINDING_COLUMNS) - 1))
 
 
-def _assumptions(book: Any, comp: Comparison, inputs: Sequence[str | os.PathLike[str]]) -> None:
+def _where_text(where: Where, base: str) -> str:
+    """A place as text, its file relative to the output's folder (never an absolute path)."""
+    if where.file:
+        where = dataclasses.replace(where, file=display_path(where.file, base))
+    return str(where)
+
+
+def _assumptions(book: Any, comp: Comparison, inputs: Sequence[str | os.PathLike[str]], paper: str,
+                 base: str) -> None:
     f = book.styles
     sheet = book.add_worksheet("Assumptions")
     app, oil = comp.application, comp.application.oil
-    overload = drive.IEC_OVERLOAD_FACTOR if app.motor_standard == "IEC" else drive.NEMA_OVERLOAD_FACTOR
-    rows: list[tuple[str, Any]] = [
-        ("application", app.name),
-        ("relief-valve setting [bar]", float(from_si(app.relief_setting, PRESSURE, "bar"))),
-        ("overshoot allowed", app.overshoot),
-        ("cycles per hour", app.cycles_per_hour),
-        ("hours per year", app.hours_per_year),
-        (f"energy price [{app.currency}/kWh]", app.energy_price),
-        ("evaluation period [years]", app.evaluation_years),
-        ("flow margin required", app.flow_margin),
-        ("pressure margin required", app.pressure_margin),
-        ("speed margin required", app.speed_margin),
-        ("oil", oil.name or (f"ISO VG {oil.grade}" if oil.grade else "two viscosity points")),
+    settings = comp.settings
+    # label, value, number format (settings entered as a share show as a percentage)
+    rows: list[tuple[str, Any, str | None]] = [
+        ("application", app.name, None),
+        ("relief-valve setting [bar]", float(from_si(app.relief_setting, PRESSURE, "bar")), "#,##0.#"),
+        ("overshoot allowed", app.overshoot, "0.#%"),
+        ("cycles per hour", app.cycles_per_hour, "#,##0.##"),
+        ("hours per year", app.hours_per_year, "#,##0"),
+        (f"energy price [{app.currency}/kWh]", app.energy_price, "#,##0.00##"),
+        ("evaluation period [years]", app.evaluation_years, "#,##0.#"),
+        ("flow margin required", app.flow_margin, "0.#%"),
+        ("pressure margin required", app.pressure_margin, "0.#%"),
+        ("speed margin required", app.speed_margin, "0.#%"),
+        ("oil", oil.name or (f"ISO VG {oil.grade}" if oil.grade else "two viscosity points"), None),
         ("oil viscosity point 1 [mm^2/s at degC]",
-         f"{from_si(oil.nu1, VISCOSITY):.4g} at {from_si(oil.t1, TEMPERATURE):.4g}"),
+         f"{from_si(oil.nu1, VISCOSITY):.4g} at {from_si(oil.t1, TEMPERATURE):.4g}", None),
         ("oil viscosity point 2 [mm^2/s at degC]",
-         f"{from_si(oil.nu2, VISCOSITY):.4g} at {from_si(oil.t2, TEMPERATURE):.4g}"),
-        ("oil viscosity index", oil.viscosity_index),
-        ("oil density at 15 degC [kg/m^3]", oil.density_15),
-        ("viscosity against temperature", "Walther relation, ASTM D341"),
-        ("motor standard", app.motor_standard),
-        ("motor sizing rule", "smallest standard rating >= RMS input power and rating x overload factor >= peak"),
-        ("overload factor", f"{overload:g} x rating for short peaks: IEC 60034-1 occasional excess torque "
-         "(60 % for 15 s), from memory"),
+         f"{from_si(oil.nu2, VISCOSITY):.4g} at {from_si(oil.t2, TEMPERATURE):.4g}", None),
+        ("oil viscosity index", oil.viscosity_index, "0.#"),
+        ("oil density at 15 degC [kg/m^3]", oil.density_15, "#,##0.#"),
+        ("viscosity against temperature", "Walther relation, ASTM D341", None),
+        ("motor standard", app.motor_standard, None),
+        ("motor sizing rule", "smallest standard rating with rating x service factor >= RMS input power (over "
+         "the cycle, or over the worst thermal window of a longer one) and rating x overload factor >= peak, "
+         "each size tried in turn; how long a peak lasts does not enter (heating follows the RMS, "
+         "IEC 60034-1 S6; its 60 % for 15 s is a stall test)", None),
+        ("overload factor", f"{settings.overload_factor:g} x rating: the peak torque the motor carries without "
+         "stalling, IEC 60034-1 momentary excess torque (60 %), from memory", None),
+        ("service factor", f"{settings.service_factor:g} (1: sized to the nameplate rating; NEMA's 1.15 kept "
+         "as a reserve, common practice)", None),
+        ("motor thermal time [min]", settings.thermal_window / 60.0, "#,##0.#"),
         ("motor series", "IEC 60072-1 rated outputs (kW)" if app.motor_standard == "IEC"
-         else "NEMA MG 1 horsepower ratings"),
+         else "NEMA MG 1 horsepower ratings", None),
         ("motor efficiency table", "IEC 60034-30-1 IE3, 4-pole 50 Hz (full load)" if app.motor_standard == "IEC"
-         else "NEMA MG 1 Table 12-12, NEMA Premium, 4-pole enclosed (full load)"),
-        ("electrical energy", "shaft energy / full-load motor efficiency (part-load efficiency not modelled)"),
-        ("settings not given (defaults used)", ", ".join(app.defaulted) or "none"),
-        ("sheetpump version", __version__),
+         else "NEMA MG 1 Table 12-12, NEMA Premium, 4-pole enclosed (full load)", None),
+        ("electrical energy", "shaft energy + motor losses at the part load: a constant third of the "
+         "full-load losses plus two thirds times the load squared (efficiency at half load = full-load "
+         "efficiency, from memory)", None),
+        ("heat into the oil", "pump power loss + surplus flow x the pressure it crosses (see the Summary's "
+         "'surplus flow crosses')", None),
+        ("settings not given (defaults used)", ", ".join(app.defaulted) or "none", None),
+        ("sheetpump version", __version__, None),
     ]
+    label_w, value_w = 40, 70
+    sheet.set_column(0, 0, label_w)
+    sheet.set_column(1, 1, value_w)
     sheet.write_string(0, 0, "Assumptions and inputs", f["title"])
-    sheet.write_string(1, 0, SAFETY_CAUTION, f["caution"])
-    sheet.set_row(1, 48)
+    sheet.merge_range(1, 0, 1, 1, SAFETY_CAUTION, f["caution"])
+    sheet.set_row(1, LINE_HEIGHT * text_lines(SAFETY_CAUTION, (label_w + value_w) * 0.85))
+    label = cell_format(book, "header", text_wrap=False)
+    left = cell_format(book, "wrap", align="left")
     r = 3
-    for label, value in rows:
-        sheet.write_string(r, 0, label, f["header"])
-        write_value(sheet, r, 1, value)
+    for text, value, num in rows:
+        sheet.write_string(r, 0, text, label)
+        write_value(sheet, r, 1, value, cell_format(book, num_format=num, align="left") if num else left)
+        if isinstance(value, str) and len(value) > value_w:
+            sheet.set_row(r, LINE_HEIGHT * text_lines(value, value_w))
         r += 1
     r += 1
-    sheet.write_string(r, 0, "input file", f["header"])
-    sheet.write_string(r, 1, "SHA-256", f["header"])
+    sheet.write_string(r, 0, "input file (relative to this workbook)", label)
+    sheet.write_string(r, 1, "SHA-256", label)
     for path in inputs:
         r += 1
-        write_value(sheet, r, 0, Path(path).name)
-        write_value(sheet, r, 1, sha256(path))
+        write_value(sheet, r, 0, display_path(path, base), left)
+        write_value(sheet, r, 1, sha256(path), left)
     r += 2
     series = drive.IEC_RATINGS_KW if app.motor_standard == "IEC" else drive.NEMA_RATINGS_HP
     unit = "kW" if app.motor_standard == "IEC" else "hp"
-    sheet.write_string(r, 0, f"standard motor ratings [{unit}]", f["header"])
-    sheet.write_string(r, 1, "full-load efficiency", f["header"])
+    sheet.write_string(r, 0, f"standard motor ratings [{unit}]", label)
+    sheet.write_string(r, 1, "full-load efficiency", label)
+    rating_fmt = cell_format(book, num_format="#,##0.###", align="left")
+    eff_fmt = cell_format(book, num_format=PCT, align="left")
     for rating in series:
         r += 1
-        write_value(sheet, r, 0, rating)
+        write_value(sheet, r, 0, rating, rating_fmt)
         watts = rating * (1000.0 if unit == "kW" else drive.HP)
-        write_value(sheet, r, 1, float(drive.motor_efficiency(watts, app.motor_standard)))
-    sheet.set_column(0, 0, 44)
-    sheet.set_column(1, 1, 90)
+        write_value(sheet, r, 1, float(drive.motor_efficiency(watts, app.motor_standard)), eff_fmt)
+    page_setup(sheet, app.name, paper=paper, landscape=False, area=(0, 0, r, 1))
 
 
 def write_comparison(target: str | os.PathLike[str], comp: Comparison,
-                     inputs: Sequence[str | os.PathLike[str]] = (), units: str = "metric") -> Path:
+                     inputs: Sequence[str | os.PathLike[str]] = (), units: str = "metric",
+                     paper: str | None = None) -> Path:
     """Write the comparison workbook for ``comp`` to ``target`` (atomically).
 
     Parameters
@@ -526,26 +865,33 @@ def write_comparison(target: str | os.PathLike[str], comp: Comparison,
     comp : Comparison
         From :func:`sheetpump.comparison.compare`.
     inputs : sequence of paths
-        The input files, listed with their SHA-256 on the Assumptions sheet.
+        The input files, listed (relative to ``target``'s folder) with their SHA-256 on the Assumptions
+        sheet.
     units : str
         ``"metric"`` or ``"imperial"`` display units.
+    paper : str, optional
+        ``"A4"`` or ``"Letter"``; default the application's ``paper_size``, else A4.
     """
     if units not in DISPLAY_UNITS:
         raise ValueError(f"units must be one of {sorted(DISPLAY_UNITS)}")
+    paper = paper or getattr(comp.application, "paper_size", None) or "A4"
+    if paper not in PAPER_SIZES:
+        raise ValueError(f"paper must be one of {sorted(PAPER_SIZES)}")
+    base = str(Path(target).resolve().parent)
     with open_book(target, title=f"Pump comparison: {comp.application.name}") as book:
         summary_placeholder = book.add_worksheet("Summary")
-        names = [_sheet_name(i, c.datasheet.label) for i, c in enumerate(comp.candidates)]
-        refs = [_duty_sheet(book, n, c, units) for n, c in zip(names, comp.candidates, strict=True)]
+        names = [f"Duty {i + 1}" for i in range(len(comp.candidates))]
+        refs = [_duty_sheet(book, n, c, units, paper) for n, c in zip(names, comp.candidates, strict=True)]
         duty_sheets = [book.get_worksheet_by_name(n) for n in names]
         # XlsxWriter keeps sheet order of creation: fill the placeholder in place
         book.worksheets_objs.remove(summary_placeholder)
         del book.sheetnames["Summary"]
-        _summary(book, comp, units, refs)
+        _summary(book, comp, units, refs, paper, base)
         summary = book.worksheets_objs.pop()
         book.worksheets_objs.insert(0, summary)
-        _curves_and_charts(book, comp, units, duty_sheets)
-        _findings(book, comp, units)
-        _assumptions(book, comp, inputs)
+        _curves_and_charts(book, comp, units, duty_sheets, paper)
+        _findings(book, comp, units, paper, base)
+        _assumptions(book, comp, inputs, paper, base)
         for i, ws in enumerate(book.worksheets_objs):
             ws.index = i
         summary.activate()

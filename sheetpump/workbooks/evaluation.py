@@ -49,13 +49,26 @@ from ..units import (
     Kind,
     from_si,
 )
-from .writer import STYLES, open_book, write_formula, write_value
+from .writer import (
+    LINE_HEIGHT,
+    MARKERS,
+    PALETTE,
+    PCT,
+    SIGNED_PCT,
+    STYLES,
+    as_stored,
+    display_path,
+    open_book,
+    page_setup,
+    text_lines,
+    write_formula,
+    write_header,
+    write_value,
+)
 
 __all__ = ["PALETTE", "write_evaluation"]
 
-#: Series colours of the charts, one per speed (and viscosity): our own, distinct in print and for
-#: the common colour-vision deficiencies.
-PALETTE = ("#1F5A96", "#C2571A", "#2E7D4F", "#8A3B8F", "#9C7A00", "#3F8FA8", "#A23B3B", "#555555")
+# PALETTE (one colour per speed and viscosity) is the writer's: Okabe and Ito's colour-blind-safe set.
 
 SUMMARY, POINTS, CHARTS, CURVES = "Summary", "Points", "Charts", "Curves"
 #: Most points written to the Points sheet (and drawn in the charts); a larger table is sampled evenly.
@@ -63,6 +76,11 @@ POINTS_SHEET_LIMIT = 10_000
 #: Most speed and viscosity groups drawn in the charts and listed on the Curves sheet (by rising speed).
 CHART_GROUPS_LIMIT = 24
 _HEADER_ROW = 3  # 0-based row of the Points header
+_CHARTS = (("ev", 1, "Volumetric efficiency η_v"), ("ehm", 2, "Hydro-mechanical efficiency η_hm"),
+           ("et", 3, "Total efficiency η_t"))
+# a printed page of the Charts sheet: 30 rows; a chart of this size [pixels] fits a landscape page, also where
+# LibreOffice draws the cells the chart is anchored to ~1.2 x wider for want of the Calibri font
+_BAND_ROWS, _CHART_W, _CHART_H = 30, 794, 540
 _TITLE = "Measured performance evaluation"
 
 
@@ -97,8 +115,8 @@ class _Formats:
         self.input = {d: fmt("input", num_format=f"0.{'0' * d}") for d in (1, 2, 3, 4)}
         self.value = {d: book.add_format({"num_format": f"0.{'0' * d}"}) for d in (1, 2, 3, 4)}
         self.sci = book.add_format({"num_format": "0.000E+00"})
-        self.pct = book.add_format({"num_format": "0.00%"})
-        self.eff = book.add_format({"num_format": "0.0000"})
+        self.pct = book.add_format({"num_format": SIGNED_PCT})
+        self.eff = book.add_format({"num_format": PCT})
         self.fail = fmt("fail", text_wrap=True)
         self.ok = fmt("pass")
         self.warn = fmt("warn", text_wrap=True)
@@ -140,12 +158,17 @@ def _group_label(e: Evaluation, k: int) -> str:
     return label
 
 
-def write_evaluation(e: Evaluation, target: str | os.PathLike[str], *, source: str | None = None) -> Path:
+def write_evaluation(e: Evaluation, target: str | os.PathLike[str], *, source: str | None = None,
+                     paper: str = "A4") -> Path:
     """Write the evaluation workbook of ``e`` to ``target`` (atomically) and return its path.
 
-    ``source`` is the input file's name as the user gave it (shown as text).
+    ``source`` is the input file's name as the user gave it (shown as text); an absolute one, or none,
+    is shown relative to ``target``'s folder. ``paper`` is ``"A4"`` or ``"Letter"``.
     """
     target = Path(target)
+    if source is None or Path(source).is_absolute():  # never an absolute path of this machine
+        given = source or e.table.file
+        source = display_path(given, target.resolve().parent) if given else ""
     with open_book(target, title=_TITLE) as book:
         f = _Formats(book)
         summary = book.add_worksheet(SUMMARY)
@@ -156,6 +179,15 @@ def write_evaluation(e: Evaluation, target: str | os.PathLike[str], *, source: s
         rows, columns = _write_points(points, e, f, v_cell)
         curve_cols = _write_curves(curves, e, f)
         _write_charts(book, charts, e, f, rows, columns, curve_cols)
+        # print: the header names the table, the footer the version and the caution
+        name = f"Measured performance: {source}"
+        page_setup(summary, name, paper=paper, landscape=False, area=(0, 0, summary._sheetpump_last, 4))
+        page_setup(points, name, paper=paper, title_rows=(_HEADER_ROW, _HEADER_ROW), title_columns=(0, 0),
+                   area=(0, 0, _HEADER_ROW + max(len(rows), 1), len(columns) - 1))
+        bands = len(_CHARTS)
+        page_setup(charts, name, paper=paper, area=(0, 0, bands * _BAND_ROWS - 1, 14),
+                   breaks=[b * _BAND_ROWS for b in range(1, bands)])
+        page_setup(curves, name, paper=paper, title_rows=(1, 2))
         summary.activate()
     return target
 
@@ -170,7 +202,7 @@ def _write_summary(sheet: Any, e: Evaluation, f: _Formats, source: str | None) -
     sheet.set_column(4, 4, 60)
     write_value(sheet, 0, 0, _TITLE, f.title)
     sheet.merge_range(1, 0, 1, 4, SAFETY_CAUTION, f.caution)
-    sheet.set_row(1, 62)
+    sheet.set_row(1, LINE_HEIGHT * text_lines(SAFETY_CAUTION, (40 + 16 + 12 + 16 + 60) * 0.85))
     r = 3
 
     def section(title: str, *heads: str) -> None:
@@ -183,6 +215,12 @@ def _write_summary(sheet: Any, e: Evaluation, f: _Formats, source: str | None) -
             write_value(sheet, r, i, None, f.section)
         r += 1
 
+    def tall(row: int, label: str, note: str) -> None:
+        """Give a row the height its wrapped label (column A) and note (column E) need."""
+        lines = max(text_lines(label, 40), text_lines(note, 60 * 1.1))
+        if lines > 1:
+            sheet.set_row(row, LINE_HEIGHT * lines)
+
     def line(label: str, value: Any, unit: str = "", fmt: Any = None, note: str = "") -> int:
         nonlocal r
         write_value(sheet, r, 0, label, f.label)
@@ -190,12 +228,13 @@ def _write_summary(sheet: Any, e: Evaluation, f: _Formats, source: str | None) -
         write_value(sheet, r, 2, unit)
         if note:
             write_value(sheet, r, 4, note, f.note)
+        tall(r, label, note)
         r += 1
         return r - 1
 
     t = e.table
     section("Source", "value", "unit", "", "")
-    line("table file", source if source is not None else t.file)
+    line("table file", source)
     line("sheet", t.sheet if t.sheet else "(CSV file)")
     line("points", t.size)
     shown, step = shown_points(e)
@@ -223,11 +262,14 @@ def _write_summary(sheet: Any, e: Evaluation, f: _Formats, source: str | None) -
     if e.derived is not None and e.nominal_displacement is not None:
         write_value(sheet, r, 0, "derived less nominal, relative", f.label)
         nom, der = xl_rowcol_to_cell(nominal_row, 1), xl_rowcol_to_cell(derived_row, 1)
-        write_formula(sheet, r, 1, f"=({der}-{nom})/{nom}", e.displacement_difference, f.pct)
+        # the values a spreadsheet computes from the cells as stored: a difference of two nearly equal
+        # displacements depends on the last digits kept
+        v_nom, v_der = (as_stored(_si_to(x, DISPLACEMENT)) for x in (e.nominal_displacement, e.derived.value))
+        write_formula(sheet, r, 1, f"=({der}-{nom})/{nom}", (v_der - v_nom) / v_nom, f.pct)
         if e.derived.uncertainty > 0:
             unc = xl_rowcol_to_cell(derived_row, 3)
             write_formula(sheet, r, 3, f"=ABS({der}-{nom})/{unc}",
-                          abs(e.derived.value - e.nominal_displacement) / e.derived.uncertainty, f.value[2])
+                          abs(v_der - v_nom) / as_stored(_si_to(e.derived.uncertainty, DISPLACEMENT)), f.value[2])
             write_value(sheet, r, 2, "× std. unc.")
         flag = bool(e.table_flags)
         write_value(sheet, r, 4, TABLE_FLAG_TEXT[e.table_flags[0]] if flag else
@@ -265,7 +307,7 @@ def _write_summary(sheet: Any, e: Evaluation, f: _Formats, source: str | None) -
     section("Notes", "", "", "", "")
     for note in all_notes(e):
         sheet.merge_range(r, 0, r, 4, note, f.note)
-        sheet.set_row(r, 30 if len(note) > 110 else None)
+        sheet.set_row(r, LINE_HEIGHT * text_lines(note, (40 + 16 + 12 + 16 + 60) * 0.95))
         r += 1
 
     section("Plausibility flags", "points", "", "", "meaning")
@@ -276,13 +318,16 @@ def _write_summary(sheet: Any, e: Evaluation, f: _Formats, source: str | None) -
     for code, text in FLAG_TEXT.items():
         row = line(code, counts.get(code, 0), "", f.fail if counts.get(code) else f.ok)
         write_value(sheet, row, 4, text, f.note)
+        tall(row, code, text)
     for code, text in TABLE_FLAG_TEXT.items():
         row = line(code, 1 if code in e.table_flags else 0, "", f.fail if code in e.table_flags else f.ok)
         write_value(sheet, row, 4, text, f.note)
+        tall(row, code, text)
     r += 1
     sheet.merge_range(r, 0, r, 4, "Exit code of `sheetpump evaluate`: 0 no flag, 1 a plausibility flag fired, "
                       "2 bad input.", f.note)
     sheet.freeze_panes(2, 0)
+    sheet._sheetpump_last = r
     return v_cell
 
 
@@ -324,10 +369,7 @@ def _write_points(sheet: Any, e: Evaluation, f: _Formats, v_cell: str
     write_value(sheet, 1, 0, "Shaded: measured. Formulas use the displacement on the Summary sheet "
                 "(" + v_cell.replace("'", "") + "). Rows grouped by speed and viscosity, by rising pressure.",
                 f.note_line)
-    for i, (_, header, width) in enumerate(cols):
-        write_value(sheet, _HEADER_ROW, i, header, f.header)
-        sheet.set_column(i, i, width)
-    sheet.set_row(_HEADER_ROW, 45)
+    write_header(sheet, _HEADER_ROW, [h for _, h, _ in cols], [w for _, _, w in cols], f.header)
     shown, step = shown_points(e)
     if step > 1:
         write_value(sheet, 2, 0, f"The table has {t.size:,} points; this sheet shows {shown.size:,} of them, every "
@@ -427,15 +469,10 @@ def _write_charts(book: Any, sheet: Any, e: Evaluation, f: _Formats, rows: np.nd
                   curve_cols: list[int]) -> None:
     write_value(sheet, 0, 0, "Efficiencies against pressure: measured points (markers) and the model (lines)",
                 f.title)
-    sheet.set_column(0, 11, 9)
-    sheet.merge_range(1, 0, 1, 11, SAFETY_CAUTION, f.caution)
-    sheet.set_row(1, 48)
     if len(e.groups) > CHART_GROUPS_LIMIT:
-        write_value(sheet, 2, 0, f"The first {CHART_GROUPS_LIMIT} of {len(e.groups)} speed and viscosity groups are "
+        write_value(sheet, 0, 8, f"The first {CHART_GROUPS_LIMIT} of {len(e.groups)} speed and viscosity groups are "
                     "drawn (by rising speed); the Points sheet holds the others.", f.note_line)
-    charts = (("ev", 1, "Volumetric efficiency η_v"), ("ehm", 2, "Hydro-mechanical efficiency η_hm"),
-              ("et", 3, "Total efficiency η_t"))
-    for place, (key, offset, title) in enumerate(charts):
+    for place, (key, offset, title) in enumerate(_CHARTS):
         chart = book.add_chart({"type": "scatter"})
         chart.set_title({"name": title, "name_font": {"size": 12}})
         chart.set_x_axis({"name": "pressure [bar]", "major_gridlines": {"visible": True,
@@ -444,7 +481,7 @@ def _write_charts(book: Any, sheet: Any, e: Evaluation, f: _Formats, rows: np.nd
                           "major_gridlines": {"visible": True, "line": {"color": "#E0E0E0"}}})
         values: list[float] = []
         for k, g in enumerate(e.groups[:CHART_GROUPS_LIMIT]):
-            colour = PALETTE[k % len(PALETTE)]
+            colour, marker = PALETTE[k % len(PALETTE)], MARKERS[k % len(MARKERS)]
             on_sheet = g.index[rows[g.index] >= 0]
             label = _group_label(e, k)
             if on_sheet.size:
@@ -453,7 +490,7 @@ def _write_charts(book: Any, sheet: Any, e: Evaluation, f: _Formats, rows: np.nd
                     "name": f"{label} measured",
                     "categories": [POINTS, lo, col["pressure"], hi, col["pressure"]],
                     "values": [POINTS, lo, col[key], hi, col[key]],
-                    "marker": {"type": "circle", "size": 6, "fill": {"color": colour}, "border": {"color": colour}},
+                    "marker": {"type": marker, "size": 6, "fill": {"color": colour}, "border": {"color": colour}},
                     "line": {"none": True},
                 })
             arr = {"ev": e.points.volumetric, "ehm": e.points.hydromechanical, "et": e.points.total}[key]
@@ -476,5 +513,5 @@ def _write_charts(book: Any, sheet: Any, e: Evaluation, f: _Formats, rows: np.nd
             chart.set_y_axis({"name": f"{title.split()[-1]} [-]", "num_format": "0.00", "min": low, "max": high,
                               "major_gridlines": {"visible": True, "line": {"color": "#E0E0E0"}}})
         chart.set_legend({"position": "right"})
-        chart.set_size({"width": 760, "height": 380})
-        sheet.insert_chart(3 + place * 20, 0, chart)
+        chart.set_size({"width": _CHART_W, "height": _CHART_H})
+        sheet.insert_chart(1 + place * _BAND_ROWS, 0, chart)  # one chart a printed page

@@ -125,6 +125,20 @@ def _numbers(values: Any, key: str, file: str, sheet: str | None, letter: str, r
     return out
 
 
+def _check_span(si: np.ndarray, key: str, file: str, sheet: str | None, letter: str, rows: np.ndarray) -> None:
+    """Refuse the first value outside its kind's span (empty cells, NaN here, are allowed), naming its cell."""
+    kind = next(c.kind for c in MEASURED_COLUMNS if c.key == key)
+    if kind is None:
+        return
+    filled = np.flatnonzero(~np.isnan(si))
+    i = u.outside_span(si[filled], kind)
+    if i is not None:
+        j = int(filled[i])
+        raise InputError(f"{u.from_si(float(si[j]), kind):g} {kind.default} is outside the range sheetpump reads "
+                         f"for a {kind.name}, {u.span_text(kind)}", Where(file, sheet, f"{letter}{rows[j]}", key),
+                         "check the value and the unit in the header")
+
+
 def _grid_xlsx(path: Path, sheet: str | None) -> tuple[str, list[list[Any]], int, int]:
     """(sheet name, rows of cells, 1-based row of the first row, 0-based first column)."""
     name, headers, table, first_row, first_col = read_xlsx_table(path, sheet)
@@ -229,6 +243,7 @@ def read_measured(path: str | os.PathLike[str], *, sheet: str | None = None,
         letter = column_letter(first_col + index)
         raw = _numbers(columns[index][keep], key, file, sheet_name, letter, row_numbers)
         values[key] = raw * factor + offset
+        _check_span(values[key], key, file, sheet_name, letter, row_numbers)
         letters[key] = letter
         units[key] = parse_header(headers[index])[1] or ""
     # A column with a header but no value in any row (the template's spare torque or power column) is

@@ -31,7 +31,7 @@ import numpy as np
 from ..datasheet import Datasheet, PerformanceTable
 from ..duty import Application, Duty, Oil
 from ..errors import InputError, Where
-from ..units import Kind, unit_factor
+from ..units import Kind, check_span, physical_unit, split_number, unit_factor
 from .safe import open_workbook
 from .series import column_letter, match_columns, parse_header, read_series
 from .templates import (
@@ -69,7 +69,6 @@ _MAX_HEADER_SCAN = 60  # rows searched for a header row
 _MAX_ROWS = 20_000  # rows read below a header: a field sheet or a table of segments is far smaller
 _EXCEL_ERRORS = ("#NULL!", "#DIV/0!", "#VALUE!", "#REF!", "#NAME?", "#NUM!", "#N/A", "#GETTING_DATA",
                  "#SPILL!", "#CALC!")
-_NUMBER = re.compile(r"^\s*([+-]?(?:\d+\.?\d*|\.\d+)(?:[eE][+-]?\d+)?)\s*(.*?)\s*$")
 _ISO4406 = re.compile(r"^(?:(\d{1,2}|-)\s*/\s*)?(\d{1,2})\s*/\s*(\d{1,2})$")
 _ROTATION_WORDS = {
     "clockwise": "clockwise", "cw": "clockwise", "right": "clockwise", "right-hand": "clockwise",
@@ -216,6 +215,7 @@ class _Fields:
         lower = [str(c).strip().lower() if c is not None else "" for c in cells]
         key_col, value_col, unit_col = (lower.index(w) + 1 for w in words)
         self.cells: dict[str, tuple[str, str]] = {}
+        self.notes: dict[str, str] = {}
         seen: dict[str, str] = {}
         last = min(sheet.max_row, header + _MAX_ROWS)
         for r, row in enumerate(sheet.iter_rows(min_row=header + 1, max_row=last,
@@ -252,7 +252,7 @@ class _Fields:
 
     def where(self, key: str) -> Where:
         if key in self.cells:
-            return self.book.where(self.sheet, self.cells[key][0], key)
+            return Where(self.book.file, self.sheet.title, self.cells[key][0], key, self.notes.get(key))
         return Where(self.book.file, self.sheet.title, None, key)
 
     def raw(self, key: str) -> tuple[Any, Any]:
@@ -274,7 +274,11 @@ class _Fields:
                                  f"enter the {field.help.rstrip('.').lower()}")
             return None
         unit_where = Where(where.file, where.sheet, self.cells[key][1], key)
-        return convert(field, value, unit, where, unit_where)
+        si = convert(field, value, unit, where, unit_where)
+        note = _reading_note(field, value, unit)
+        if note:
+            self.notes[key] = note
+        return si
 
     def sources(self, got: dict[str, Any]) -> dict[str, Where]:
         return {self.fields[k].name: self.where(k) for k, v in got.items() if v is not None}
@@ -324,22 +328,18 @@ def convert(field: Field, value: Any, unit: Any, where: Where, unit_where: Where
             raise InputError(f"{text!r} is not one of {', '.join(field.choices)}", where, "use the drop-down")
         return chosen
     number, unit_text = _split(value, unit, field, where, unit_where)
+    if isinstance(value, str) and not _unit_text(unit):
+        unit_where = where  # the unit was typed in the value cell: blame that cell, not the empty unit cell
+    if kind in (INTEGER, COUNT):
+        _unitless(field, unit_text, unit_where)
     if kind == INTEGER:
         if not float(number).is_integer() or number < 1:
             raise InputError(f"{number:g} is not a whole number of at least 1", where)
-        return int(number)
-    if kind == COUNT:
-        if unit_text and field.label not in ("currency",) and unit_text.lower() != field.label.lower():
-            raise InputError(f"unit {unit_text!r} where {field.label!r} belongs", unit_where,
-                             f"give the value in {field.label}")
+        si = int(number)
+    elif kind == COUNT:
         si = number
     elif kind == FRACTION:
-        if unit_text.lower() in ("", "fraction", "1", "-"):
-            si = number
-        elif unit_text in ("%", "percent"):
-            si = number / 100.0
-        else:
-            raise InputError(f"unit {unit_text!r} is not '%' or 'fraction'", unit_where)
+        si = _fraction(field, number, unit_text, where, unit_where)
     else:
         assert isinstance(kind, Kind)
         try:
@@ -348,6 +348,60 @@ def convert(field: Field, value: Any, unit: Any, where: Where, unit_where: Where
             raise exc.at(**vars(unit_where)) from None
         si = number * factor + offset
     return _checked(field, si, where, f"{number:g} {unit_text}".strip())
+
+
+# --- value and unit validation (issue: values and units that crash or pass) -------------------------
+
+_NO_UNIT = ("", "-", "1")
+_PERCENT = ("%", "percent", "pct")
+
+
+def _unitless(field: Field, unit_text: str, unit_where: Where) -> None:
+    """A count takes its fixed label (``1/h``, ``dB(A)``) or nothing; a price a currency, never a unit."""
+    text = unit_text.strip()
+    if text.lower() in _NO_UNIT or text.lower() in (field.label.lower(), field.key.lower()):
+        return
+    if field.label == "currency":
+        measures = physical_unit(text)
+        if measures is None:
+            return  # a currency code or sign: EUR, USD, €
+        raise InputError(f"unit {text!r} is {measures}; a price takes a currency", unit_where,
+                         "write the currency (e.g. EUR) or leave the unit cell empty")
+    if field.label == "dB(A)" and text.replace(" ", "").lower() in ("db", "dba", "db(a)"):
+        return
+    expected = f"{field.label!r}" if field.label else "no unit"
+    raise InputError(f"unit {text!r} where {expected} belongs", unit_where,
+                     f"give the value in {field.label}" if field.label else "leave the unit cell empty")
+
+
+def _fraction(field: Field, number: float, unit_text: str, where: Where, unit_where: Where) -> float:
+    """A share in % or as a fraction; a share or efficiency of at most 1 in a % cell is a slip."""
+    text = unit_text.strip().lower()
+    if text in (*_NO_UNIT, "fraction"):
+        return number
+    if text not in _PERCENT:
+        raise InputError(f"unit {unit_text!r} is not '%' or 'fraction'", unit_where)
+    if field.check == "share" and 0 < number <= 1:
+        raise InputError(f"{number:g} % is hardly meant: did you mean {number * 100:g} %?", where,
+                         f"write {number * 100:g} with unit '%', or {number:g} with unit 'fraction'; "
+                         f"for {number:g} % itself write {number / 100:g} with unit 'fraction'")
+    return number / 100.0
+
+
+def _reading_note(field: Field, value: Any, unit: Any) -> str | None:
+    """How a number with a unit was read, for the field's source: the default unit, or the unit typed."""
+    kind = field.kind
+    if not isinstance(kind, Kind) or not kind.default:
+        return None
+    parts = split_number(value) if isinstance(value, str) else (float(value), "")
+    if parts is None:
+        return None
+    number, unit_text = parts[0], parts[1] or _unit_text(unit)
+    if not unit_text:
+        return f"read as {kind.default} (the default unit)"
+    if unit_factor(unit_text, kind) != unit_factor(kind.default, kind):
+        return f"typed as {number:g} {unit_text}"
+    return None
 
 
 def _kind_name(field: Field) -> str:
@@ -362,14 +416,14 @@ def _split(value: Any, unit: Any, field: Field, where: Where, unit_where: Where)
         text_unit = ""
     else:
         text = str(value).strip()
-        if "," in text:
-            raise InputError(f"{text!r} is ambiguous", where,
-                             "write numbers without thousands separators and with a point for decimals")
-        match = _NUMBER.match(text)
-        if not match:
+        try:
+            parts = split_number(text)
+        except InputError as exc:
+            raise exc.at(**vars(where)) from None
+        if parts is None:
             raise InputError(f"{text!r} is text where a {_kind_name(field)} belongs", where,
                              f"enter a number{' (unit in the unit column)' if field.units else ''}")
-        number, text_unit = float(match.group(1)), match.group(2)
+        number, text_unit = parts
     if not math.isfinite(number):
         raise InputError(f"{number!r} is not a finite number", where)
     if text_unit:
@@ -398,6 +452,15 @@ def _checked(field: Field, si: float, where: Where, shown: str = "") -> float:
         raise InputError(f"{shown} is not a finite number", where)
     if field.kind is not None and isinstance(field.kind, Kind) and field.kind.offset and si <= 0:
         raise InputError(f"{shown} is at or below absolute zero", where, "check the temperature and its unit")
+    if isinstance(field.kind, Kind):
+        try:
+            check_span(si, field.kind, shown)
+        except InputError as exc:
+            raise exc.at(**vars(where)) from None
+    elif field.span and not field.span[0] <= si <= field.span[1]:
+        lo, hi = field.span
+        raise InputError(f"{shown} is outside the range sheetpump reads for {field.key}, {lo:g} to {hi:g}", where,
+                         "check the value and its unit")
     if field.check == "positive" and not si > 0:
         raise InputError(f"must be greater than zero, not {shown}", where)
     if field.check == "non_negative" and si < 0:
@@ -455,9 +518,18 @@ def _read_table(book: _Book, sheet: Any, columns: Sequence[Column]) -> tuple[
                 row[key] = number * factor + offset
             if not math.isfinite(row[key]):
                 raise InputError("not a finite number", where)
+            _in_span(row[key], column.kind, number, unit_text or parse_header(cells[found[key][0]])[1] or "",
+                     where)
         if any(v is not None for v in row.values()):
             out.append((r, row))
     return out, letters, header
+
+
+def _in_span(si: float, kind: Kind, number: float, unit_text: str, where: Where) -> None:
+    try:
+        check_span(si, kind, f"{number:g} {unit_text}".strip())
+    except InputError as exc:
+        raise exc.at(**vars(where)) from None
 
 
 def _span(letters: dict[str, str]) -> tuple[str, str]:
@@ -487,6 +559,11 @@ def _column(rows: list[tuple[int, dict[str, Any]]], key: str, default: float | N
 # --- datasheet ---------------------------------------------------------------------------------------
 
 
+#: What to write when a supplier states an intermittent pressure without its time limits.
+_NO_INTERMITTENT_LIMITS = ("if the supplier states none, ask for them; until then leave pressure_intermittent "
+                           "empty, so the continuous rating applies everywhere (the safe reading)")
+
+
 def read_datasheet(path: str | os.PathLike[str]) -> Datasheet:
     """Read a datasheet workbook into a :class:`~sheetpump.datasheet.Datasheet` (SI units).
 
@@ -513,9 +590,9 @@ def check_datasheet_fields(got: dict[str, Any], w: Callable[[str], Where]) -> No
     """The checks of a datasheet beyond each value (see :func:`read_datasheet`), on the converted
     values ``got`` (field key -> SI value or ``None``); ``w(key)`` is where a field was read."""
 
-    def need(a: str, b: str, text: str) -> None:
+    def need(a: str, b: str, text: str, hint: str = "") -> None:
         if got[a] is not None and got[b] is None:
-            raise InputError(text, w(b))
+            raise InputError(text, w(b), hint)
 
     def order(low: str, high: str, text: str, strict: bool = True) -> None:
         lo, hi = got[low], got[high]
@@ -523,9 +600,9 @@ def check_datasheet_fields(got: dict[str, Any], w: Callable[[str], Where]) -> No
             raise InputError(text, w(high))
 
     need("pressure_intermittent", "intermittent_max_duration",
-         "an intermittent pressure needs the longest single stretch allowed at it")
+         "an intermittent pressure needs the longest single stretch allowed at it", _NO_INTERMITTENT_LIMITS)
     need("pressure_intermittent", "intermittent_max_share",
-         "an intermittent pressure needs the largest share of the cycle allowed at it")
+         "an intermittent pressure needs the largest share of the cycle allowed at it", _NO_INTERMITTENT_LIMITS)
     for limit in ("intermittent_max_duration", "intermittent_max_share"):
         need(limit, "pressure_intermittent", f"{limit} is given without an intermittent pressure")
     order("pressure_continuous", "pressure_peak", "the peak pressure is below the continuous pressure",
@@ -674,9 +751,9 @@ _DEFAULTED = ("overshoot", "cycles_per_hour", "hours_per_year", "evaluation_year
 
 
 _APP_ATTRS = {
-    "name", "relief_setting", "overshoot", "rotation", "cleanliness", "cycles_per_hour", "hours_per_year",
-    "energy_price", "currency", "motor_standard", "flow_margin", "pressure_margin", "speed_margin",
-    "evaluation_years", "cold_start_temperature",
+    "name", "relief_setting", "overshoot", "surplus_pressure", "rotation", "cleanliness", "cycles_per_hour",
+    "hours_per_year", "energy_price", "currency", "motor_standard", "flow_margin", "pressure_margin", "speed_margin",
+    "evaluation_years", "cold_start_temperature", "paper_size",
 }
 
 

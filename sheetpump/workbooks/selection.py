@@ -24,7 +24,7 @@ from pathlib import Path
 from typing import Any
 
 from .. import SAFETY_CAUTION, __version__
-from ..checks import DISPLAY_UNITS, INFO
+from ..checks import DISPLAY_UNITS, INFO, NOT_CHECKED
 from ..comparison import Candidate
 from ..files import sha256
 from ..selection import SLIP, STANDARD_POLES, Selection, worst
@@ -40,6 +40,8 @@ _PRESSURE_RULES = (("pressure.continuous", "continuous"), ("pressure.intermitten
 def _margin(c: Candidate, rule: str) -> float | str | None:
     for f in c.result.findings:
         if f.rule == rule:
+            if f.severity == NOT_CHECKED:
+                return "not checked"
             if f.severity == INFO:
                 return "intermittent" if rule == "pressure.continuous" else None
             return f.margin if f.margin is not None and math.isfinite(f.margin) else None

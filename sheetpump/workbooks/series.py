@@ -22,6 +22,7 @@ from __future__ import annotations
 
 import csv
 import datetime as _dt
+import math
 import os
 import re
 from collections.abc import Mapping, Sequence
@@ -32,7 +33,7 @@ import numpy as np
 
 from ..duty import Duty
 from ..errors import InputError, Where
-from ..units import Kind, unit_factor
+from ..units import DURATION, Kind, decimal_comma, from_si, outside_span, span_text, unit_factor
 from .safe import check_file, check_sheet_extent, sheet_members
 from .templates import SERIES_COLUMNS, Column
 
@@ -171,7 +172,13 @@ def _time_column(values: np.ndarray) -> np.ndarray:
 
 def read_csv_table(path: Path) -> tuple[list[str], dict[int, np.ndarray]]:
     """A CSV file's header texts and its columns by position (comma or semicolon; decimal commas with
-    semicolons), for every reader of tables with a ``word [unit]`` header row."""
+    semicolons), for every reader of tables with a ``word [unit]`` header row.
+
+    Commas in numbers follow :func:`sheetpump.units.decimal_comma`: in a semicolon-separated file a
+    comma is a decimal comma, and a number that could group thousands (``1,250``) is refused naming its
+    row and column; in a comma-separated file a row with more values than the header (a decimal comma
+    splitting a number) is refused naming its row and column.
+    """
     import pandas as pd
 
     with open(path, "rb") as handle:
@@ -194,11 +201,90 @@ def read_csv_table(path: Path) -> tuple[list[str], dict[int, np.ndarray]]:
         # through Python's codec), and its number parser skips leading spaces: both options cost time.
         frame = pd.read_csv(path, sep=sep, decimal=decimal, encoding="utf-8" if encoding == "utf-8-sig" else encoding,
                             keep_default_na=False, na_values=[""])
-    except (ValueError, pd.errors.ParserError, UnicodeDecodeError) as exc:
-        raise InputError(f"the CSV file cannot be read ({exc})", Where(file=str(path))) from None
+    except pd.errors.ParserError as exc:
+        _refuse_ragged(path, sep, encoding, exc)
+        raise InputError(f"the CSV file cannot be read ({str(exc).strip().splitlines()[-1]})",
+                         Where(file=str(path))) from None
+    except (ValueError, UnicodeDecodeError) as exc:
+        raise InputError(f"the CSV file cannot be read ({str(exc).strip().splitlines()[-1]})",
+                         Where(file=str(path))) from None
+    if not frame.index.equals(pd.RangeIndex(len(frame))):  # more values than headers in every row: pandas
+        _refuse_ragged(path, sep, encoding, None)     # would quietly take the first as an index
+    if decimal == ",":
+        _refuse_thousands(path, encoding)
     headers = [str(c) for c in frame.columns]
     data = {i: frame.iloc[:, i].to_numpy() for i in range(len(headers))}
     return headers, data
+
+
+def _refuse_ragged(path: Path, sep: str, encoding: str, exc: Exception | None) -> None:
+    """Name the first row whose number of values differs from the header's (error path only)."""
+    with open(path, newline="", encoding=encoding, errors="replace") as handle:
+        rows = csv.reader(handle, delimiter=sep)
+        header = next(rows, [])
+        good: list[list[str]] = []
+        for number, row in enumerate(rows, 2):
+            if len(row) == len(header) or not any(c.strip() for c in row):
+                if len(good) < 1000:
+                    good.append(row)
+                continue
+            split = _decimal_split(row, good)
+            col = split if split is not None else min(len(row), len(header)) - 1
+            name = header[col].strip() if col < len(header) else ""
+            decimal = (f": is {row[split].strip()},{row[split + 1].strip()} a number with a decimal comma?"
+                       if split is not None and sep == "," else "")
+            raise InputError(f"row {number} has {len(row)} values where the header names {len(header)} "
+                             f"columns{decimal}", Where(str(path), None, f"{column_letter(col)}{number}",
+                                                        name or None),
+                             "write decimal points in a comma-separated file, or separate the columns by "
+                             "semicolons" if sep == "," else "give every row one value per column")
+    if exc is not None:
+        return
+    raise InputError("the rows have more values than the header names columns", Where(file=str(path)),
+                     "give every column a header")
+
+
+def _decimal_split(row: list[str], good: list[list[str]]) -> int | None:
+    """Where a decimal comma most likely split a number: of the places where two whole numbers meet, the
+    one whose mended row lies nearest (in ratio, column by column) the well-formed rows read so far."""
+    places = [i for i in range(len(row) - 1)
+              if re.fullmatch(r"\s*[+-]?\d+", row[i]) and re.fullmatch(r"\d+\s*", row[i + 1])]
+    if len(places) <= 1 or not good:
+        return places[0] if places else None
+    typical = []
+    for col in range(len(good[0])):
+        numbers = [abs(float(r[col])) for r in good if col < len(r) and _is_number_text(r[col]) and float(r[col])]
+        typical.append(float(np.median(numbers)) if numbers else None)
+
+    def cost(i: int) -> float:
+        mended = [*row[:i], f"{row[i].strip()}.{row[i + 1].strip()}", *row[i + 2:]]
+        total = 0.0
+        for value, ref in zip(mended, typical, strict=False):
+            if ref and _is_number_text(value) and float(value):
+                total += abs(math.log(abs(float(value)) / ref))
+        return total
+
+    return min(places, key=cost)
+
+
+_THOUSANDS_FIELD = re.compile(r'(?m)(?:^|;)[ \t]*"?([+-]?[1-9]\d{0,2},\d{3})"?[ \t]*(?=;|\r?$)')
+
+
+def _refuse_thousands(path: Path, encoding: str) -> None:
+    """In a file with decimal commas, refuse a number that could group thousands (1,250), by row and column."""
+    text = path.read_text(encoding=encoding, errors="replace")
+    match = _THOUSANDS_FIELD.search(text)
+    if match is None:
+        return
+    start = text.rfind("\n", 0, match.start(1)) + 1
+    row = text.count("\n", 0, match.start(1)) + 1
+    col = text.count(";", start, match.start(1))
+    header = text.split("\n", 1)[0].split(";")
+    name = header[col].strip().lstrip("\ufeff") if col < len(header) else None
+    try:
+        decimal_comma(match.group(1))
+    except InputError as exc:
+        raise exc.at(file=str(path), cell=f"{column_letter(col)}{row}", field=name or None) from None
 
 
 def read_xlsx_table(path: Path, sheet: str | None) -> tuple[str, list[Any], np.ndarray, int, int]:
@@ -315,7 +401,8 @@ def read_series(path: str | os.PathLike[str], *, sheet: str | None = None,
     t = signals["time"]
     # durations in one array: step i = t[i+1] - t[i], the last one filled with the median step below
     duration = np.empty_like(t)
-    step = np.subtract(t[1:], t[:-1], out=duration[:-1])
+    with np.errstate(over="ignore", invalid="ignore"):  # 1e308 - (-1e308): refused below as a step too long
+        step = np.subtract(t[1:], t[:-1], out=duration[:-1])
     bad = np.flatnonzero(step <= 0)
     if bad.size:
         i = int(bad[0])
@@ -323,6 +410,12 @@ def read_series(path: str | os.PathLike[str], *, sheet: str | None = None,
         raise InputError(f"time {what} from row {row0 + i} to row {row0 + i + 1}",
                          Where(file, sheet_name, f"{letters['time']}{row0 + i + 1}", "time"),
                          "sort the log by time and remove repeated samples")
+    long = outside_span(step, DURATION)
+    if long is not None:
+        raise InputError(f"a step of {step[long]:g} s from row {row0 + long} to row {row0 + long + 1} is outside the "
+                         f"range sheetpump reads for a duration, {span_text(DURATION)}",
+                         Where(file, sheet_name, f"{letters['time']}{row0 + long + 1}", "time"),
+                         "check the time column and its unit")
     median = float(np.median(step))
     limit = DEFAULT_GAP_FACTOR * median if max_step is None else float(max_step)
     gaps = np.flatnonzero(step > limit)
@@ -340,6 +433,19 @@ def read_series(path: str | os.PathLike[str], *, sheet: str | None = None,
                 columns=letters, where=where)
 
 
+def _check_span(values: np.ndarray, column: Column, file: str, sheet: str | None, letter: str, row0: int) -> None:
+    """Refuse the first value outside its kind's span (:func:`sheetpump.units.outside_span`), by cell."""
+    kind = column.kind
+    if kind is None:
+        return
+    i = outside_span(values, kind)
+    if i is not None:
+        shown = f"{from_si(float(values[i]), kind):g} {kind.default}"
+        raise InputError(f"{column.words[0]} {shown} is outside the range sheetpump reads for a "
+                         f"{kind.name}, {span_text(kind)}", Where(file, sheet, f"{letter}{row0 + i}", column.key),
+                         "check the value and the unit in the header")
+
+
 _DEFAULT_FIELD = {"speed": "drive_speed", "temperature": "oil_temperature", "inlet_pressure": "inlet_pressure",
                   "pressure": "-", "flow": "-", "time": "-"}
 
@@ -350,6 +456,7 @@ def _check_signal(column: Column, values: np.ndarray, file: str, sheet: str | No
     kind: Kind | None = column.kind
     if column.key == "time":
         return
+    _check_span(values, column, file, sheet, letter, row0)
     if column.key in ("temperature", "inlet_pressure"):
         bad = values <= 0.0
         rule = "at or below absolute zero" if column.key == "temperature" else "not above zero (absolute)"

@@ -30,7 +30,7 @@ from .. import SAFETY_CAUTION
 from .. import units as u
 from ..errors import InputError
 from ..units import Kind
-from .writer import STYLES, open_book, write_value
+from .writer import PAPER_SIZES, STYLES, open_book, write_value
 
 __all__ = [
     "APPLICATION_FIELDS",
@@ -82,6 +82,7 @@ FRACTION_UNITS = ("%", "fraction")
 ROTATIONS = ("clockwise", "counter-clockwise", "either")
 MOTOR_STANDARDS = ("IEC", "NEMA")
 YES_NO = ("yes", "no")
+PAPER_CHOICES = tuple(PAPER_SIZES)  # the paper sizes the writers know
 VG_GRADES = ("10", "15", "22", "32", "46", "68", "100", "150")
 
 
@@ -92,7 +93,9 @@ class Field:
     ``key`` is the text in the ``field`` column and the defined-name suffix; ``attr`` the dataclass
     attribute it fills (and the key of ``sources``); ``kind`` a :class:`~sheetpump.units.Kind` or one of
     the strings text/choice/fraction/integer/count; ``label`` the fixed unit label of a count;
-    ``check`` one of "positive", "non_negative", "share" (0 < x ≤ 1), "" (any finite value).
+    ``check`` one of "positive", "non_negative", "share" (0 < x ≤ 1), "" (any finite value);
+    ``span`` the range read for a count or whole number (a unit kind declares its own, see
+    :attr:`sheetpump.units.Kind.span`).
     """
 
     key: str
@@ -104,6 +107,7 @@ class Field:
     label: str = ""
     section: str = ""
     attr: str = ""
+    span: tuple[float, float] | None = None
 
     @property
     def name(self) -> str:
@@ -181,11 +185,12 @@ DATASHEET_FIELDS: tuple[Field, ...] = (
     _f("Shaft", "torque_max", u.TORQUE, "Shaft torque limit."),
     _f("Other", "volumetric_efficiency", FRACTION, "A single stated volumetric efficiency.", check="share"),
     _f("Other", "total_efficiency", FRACTION, "A single stated total (overall) efficiency.", check="share"),
-    _f("Other", "teeth", INTEGER, "Number of teeth on one gear (for the pulsation frequency)."),
+    _f("Other", "teeth", INTEGER, "Number of teeth on one gear (for the pulsation frequency).",
+       span=(3, 100)),
     _f("Other", "price", COUNT, "Price, in the application's currency.", check="non_negative",
-       label="currency"),
+       label="currency", span=(0, 1e9)),
     _f("Other", "mass", u.MASS, "Mass of the pump."),
-    _f("Other", "noise", COUNT, "Sound pressure level as stated.", label="dB(A)"),
+    _f("Other", "noise", COUNT, "Sound pressure level as stated.", label="dB(A)", span=(0, 200)),
     _f("Performance table", "performance_speed", u.SPEED,
        "Speed the Performance sheet was measured at (unless it has a speed column)."),
     _f("Performance table", "performance_viscosity", u.VISCOSITY,
@@ -206,10 +211,14 @@ APPLICATION_FIELDS: tuple[Field, ...] = (
     _f("Relief valve", "relief_setting", u.PRESSURE, "Relief-valve setting.", required=True),
     _f("Relief valve", "overshoot", FRACTION, "Pressure overshoot of the relief valve to allow. Empty: 10 %.",
        check="non_negative"),
+    _f("Relief valve", "surplus_pressure", u.PRESSURE, "Pressure at which the surplus flow goes to tank, "
+       "when a throttle or bypass takes it. Empty: each segment's pump pressure (the relief setting where "
+       "the duty runs at it)."),
     _f("Oil", "oil_name", TEXT, "Name of the oil."),
     _f("Oil", "oil_grade", CHOICE, "ISO 3448 viscosity grade (VG); give the viscosity index too.",
        choices=VG_GRADES),
-    _f("Oil", "oil_viscosity_index", COUNT, "Viscosity index (ASTM D2270), with the grade.", label="-"),
+    _f("Oil", "oil_viscosity_index", COUNT, "Viscosity index (ASTM D2270), with the grade.", label="-",
+       span=(-100, 500)),
     _f("Oil", "oil_viscosity_1", u.VISCOSITY, "Or two points: viscosity at the first temperature."),
     _f("Oil", "oil_temperature_1", u.TEMPERATURE, "First temperature (e.g. 40 degC).", check=""),
     _f("Oil", "oil_viscosity_2", u.VISCOSITY, "Viscosity at the second temperature."),
@@ -228,12 +237,16 @@ APPLICATION_FIELDS: tuple[Field, ...] = (
        "Longest step between samples accepted. Empty: 10 times the median step."),
     _f("Duty", "duty_repeats", CHOICE, "Does the duty cycle repeat (its end runs into its start)? Empty: yes.",
        choices=YES_NO),
-    _f("Use", "cycles_per_hour", COUNT, "Duty cycles per hour. Empty: 1.", label="1/h"),
-    _f("Use", "hours_per_year", COUNT, "Operating hours per year. Empty: 2000.", label="h"),
-    _f("Use", "evaluation_years", COUNT, "Period for the cost over life. Empty: 10.", label="years"),
+    _f("Use", "cycles_per_hour", COUNT, "Duty cycles per hour. Empty: 1.", label="1/h",
+       span=(0, 36000)),
+    _f("Use", "hours_per_year", COUNT, "Operating hours per year. Empty: 2000.", label="h",
+       span=(0, 8784)),  # 366 days x 24 h
+    _f("Use", "evaluation_years", COUNT, "Period for the cost over life. Empty: 10.", label="years",
+       span=(0, 100)),
     _f("Use", "energy_price", COUNT, "Price of electrical energy per kWh. Empty: 0.", check="non_negative",
-       label="per kWh"),
+       label="per kWh", span=(0, 1000)),
     _f("Use", "currency", TEXT, "Currency of the prices. Empty: EUR."),
+    _f("Use", "paper_size", CHOICE, "Paper the reports print on. Empty: A4.", choices=PAPER_CHOICES),
     _f("Margins", "flow_margin", FRACTION, "Required surplus of delivered over required flow. Empty: 0.",
        check="non_negative"),
     _f("Margins", "pressure_margin", FRACTION, "Required headroom below each pressure rating. Empty: 0.",

@@ -5,13 +5,15 @@ units (bar, L/min, kW), that is ``p * q / (600 * eta)`` (DESIGN §4: P[kW] = Δp
 
 Arrays (1,000,000 values per argument):
 
-* numbers: numpy arrays in the default units, through :meth:`Calculation.evaluate` (the numpy path a
-  cell function takes: convert each argument to SI, validate, compute, convert the result). The list a
-  spreadsheet gets from :meth:`Calculation.cell` (``tolist()`` of a million floats) is the spreadsheet's
-  transfer cost, not the formula's; it is timed separately and given in the row's note.
+* numbers: numpy arrays in the default units, through the function a Python user calls,
+  ``sheetpump.cells.SP_INPUT_POWER(p, q, eta)`` (numpy arrays in, a numpy array out: convert, validate,
+  compute, convert the result). The 2-D list a spreadsheet range gets (``tolist()`` of a million floats,
+  for nested-list arguments) is the spreadsheet's transfer cost, not the formula's; it is timed
+  separately and given in the row's note.
 * with units: each argument a pint Quantity array of the one registry, ``ureg.Quantity(values, "psi")``
-  (the values of a range plus one unit string per argument), efficiency a plain array, result in hp.
-  The reference is the formula by hand with the conversion factors written in: raw numpy.
+  (the values of a range plus one unit string per argument), efficiency a plain array, result in hp,
+  through the same cell function. The reference is the formula by hand with the conversion factors
+  written in: raw numpy.
 
 Scalars: one call of the cell function ``sheetpump.cells.SP_INPUT_POWER`` (what the spreadsheet calls),
 timed as :mod:`timeit` times a statement, against the bare float expression timed the same way; with unit
@@ -65,22 +67,25 @@ def run() -> list[dict[str, Any]]:
     p, q, eta = _arrays()
 
     # -- arrays of numbers ------------------------------------------------------------------------
-    ours, ref = compare(lambda: calc.evaluate(p, q, eta), lambda: p * q / (600.0 * eta), repeat=15)
-    got = calc.evaluate(p, q, eta)
+    f = cells.SP_INPUT_POWER
+    ours, ref = compare(lambda: f(p, q, eta), lambda: p * q / (600.0 * eta), repeat=15)
+    got = f(p, q, eta)
+    assert type(got) is np.ndarray and got.shape == p.shape
     np.testing.assert_allclose(got, p * q / (600.0 * eta), rtol=1e-12)
     small = slice(0, 100_000)
-    as_list = median_time(lambda: calc.cell(p[small], q[small], eta[small]), repeat=5) * 10
-    rows.append(row("SP_INPUT_POWER, 1e6-value arrays of numbers", ours, ref, "raw numpy", at_most=1.3,
-                    note=f"Calculation.evaluate; cell() with the result as a 2-D list takes "
+    as_list = median_time(lambda: calc.cell(p[small].reshape(1, -1).tolist(), q[small], eta[small]),
+                          repeat=5) * 10
+    rows.append(row("cells.SP_INPUT_POWER, 1e6-value numpy arrays", ours, ref, "raw numpy", at_most=1.5,
+                    note=f"numpy array out; a spreadsheet range (nested lists in, 2-D list out) takes "
                          f"{as_list * 1e3:.0f} ms (timed on 1e5 values, scaled)"))
 
     # -- arrays with units ------------------------------------------------------------------------
     pq, qq = ureg.Quantity(p, "psi"), ureg.Quantity(q, "gpm")
-    ours, ref = compare(lambda: calc.evaluate(pq, qq, eta, "hp"), lambda: (p * _PSI) * (q * _GPM) / eta / _HP,
+    ours, ref = compare(lambda: f(pq, qq, eta, "hp"), lambda: (p * _PSI) * (q * _GPM) / eta / _HP,
                         repeat=15)
-    np.testing.assert_allclose(calc.evaluate(pq, qq, eta, "hp"), (p * _PSI) * (q * _GPM) / eta / _HP,
-                               rtol=1e-9)
-    rows.append(row("SP_INPUT_POWER, 1e6-value arrays in psi, gpm -> hp", ours, ref, "raw numpy", at_most=1.5,
+    np.testing.assert_allclose(f(pq, qq, eta, "hp"), (p * _PSI) * (q * _GPM) / eta / _HP, rtol=1e-9)
+    rows.append(row("cells.SP_INPUT_POWER, 1e6-value arrays in psi, gpm -> hp", ours, ref, "raw numpy",
+                    at_most=1.5,
                     note="each argument a pint Quantity array (values + one unit); reference: the same "
                          "conversion factors written into the numpy expression"))
 
