@@ -45,7 +45,7 @@ def main() -> None:
         target.parent.mkdir(parents=True, exist_ok=True)
         write(target)
         print(target.relative_to(ROOT))
-    for path in demo.write_inputs(ROOT / "workbooks" / "demo"):
+    for path in [*demo.write_inputs(ROOT / "workbooks" / "demo"), *demo.write_series(ROOT / "workbooks" / "demo")]:
         print(path.relative_to(ROOT))
     update_readme()
 

@@ -16,10 +16,10 @@ What the demo is meant to show:
 * **Sandlow SL-32** — passes with room to spare, at a higher price and more energy.
 
 Two invented series for the same press (:data:`SERIES`, one in inch-pound units) show ``sheetpump select``:
-the demo writes the selection of their sizes beside the comparison, and the comparison takes each
-series' proposed size.
+the demo writes the selection of their sizes beside the comparison of the four pumps
+(``sheetpump compare`` also takes series workbooks: each stands for its proposed size).
 
-:func:`write_inputs` writes the workbooks (the same generator writes the committed copies under
+:func:`write_inputs` and :func:`write_series` write the workbooks (the same generator writes the committed copies under
 ``workbooks/demo/``); :func:`run` checks and compares them into a folder.
 """
 
@@ -34,7 +34,7 @@ from . import SAFETY_CAUTION
 from .physics.losses import WilsonModel
 from .units import FLOW, POWER, PRESSURE, TORQUE, from_si, to_si
 
-__all__ = ["APPLICATION_FILE", "PUMPS", "SERIES", "DemoResult", "run", "write_inputs"]
+__all__ = ["APPLICATION_FILE", "PUMPS", "SERIES", "DemoResult", "run", "write_inputs", "write_series"]
 
 APPLICATION_FILE = "baling-press.xlsx"
 
@@ -269,10 +269,8 @@ def _series_table(series: _Series) -> list[list[Any]]:
 
 
 def write_inputs(folder: str | os.PathLike[str]) -> list[Path]:
-    """Write the demo's application, datasheet and series workbooks into ``folder``; returns their paths
-    (the application first, the series last)."""
+    """Write the demo's application and datasheet workbooks into ``folder``; returns their paths."""
     from .files import make_folder
-    from .workbooks.sizes import write_series_template
     from .workbooks.templates import DUTY_COLUMNS, write_template
 
     folder = make_folder(folder)
@@ -281,9 +279,16 @@ def write_inputs(folder: str | os.PathLike[str]) -> list[Path]:
     for pump in PUMPS:
         headers, rows = _table(pump)
         paths.append(write_template("datasheet", folder / pump.file, pump.values, rows, headers))
-    for series in SERIES:
-        paths.append(write_series_template(folder / series.file, series.values, _series_table(series)))
     return paths
+
+
+def write_series(folder: str | os.PathLike[str]) -> list[Path]:
+    """Write the demo's series workbooks (:data:`SERIES`) into ``folder``; returns their paths."""
+    from .files import make_folder
+    from .workbooks.sizes import write_series_template
+
+    folder = make_folder(folder)
+    return [write_series_template(folder / s.file, s.values, _series_table(s)) for s in SERIES]
 
 
 @dataclass(frozen=True)
@@ -323,7 +328,7 @@ def run(folder: str | os.PathLike[str] | None = None) -> DemoResult:
     inputs = write_inputs(out / "inputs")
     comparison = out / "comparison.xlsx"
     comp = build(str(inputs[0]), [str(p) for p in inputs[1:]], str(comparison))
-    series_paths = inputs[-len(SERIES):]
+    series_paths = write_series(out / "inputs")
     sel = select([read_series(str(p)) for p in series_paths], comp.application)
     selection = write_selection(out / "selection.xlsx", sel, inputs=[inputs[0], *series_paths])
     report = out / "report.txt"

@@ -50,7 +50,7 @@ def inputs(tmp_path_factory) -> dict[str, Path]:
     log.write_text("time [s],pressure [bar],flow [L/min]\n0,100,40\n0.5,150,38\n1.5,200,36\n1.7,120,38\n")
     app_log = write_template("application", folder / "app-log.xlsx", {**demo.MACHINE, "duty_series": ("log.csv",)})
     return {"app": paths[0], "datasheet": paths[1], "log": log, "app_log": app_log, "folder": folder,
-            "series": paths[-1]}
+            "series": demo.write_series(folder)[-1]}
 
 
 @pytest.fixture(scope="module")

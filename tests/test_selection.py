@@ -362,6 +362,17 @@ def test_demo_series_and_compare_takes_the_proposed_size(tmp_path, capsys):
     assert "proposed size of the series Brannock Fluidtechnik BG2" in notes[1] and "an assumption" in notes[1]
 
 
+def test_committed_demo_series_match_the_generator(tmp_path):
+    from sheetpump import demo
+
+    for fresh in demo.write_series(tmp_path):
+        committed = ROOT / "workbooks" / "demo" / fresh.name
+        assert committed.exists(), f"{committed} missing: run scripts/regenerate.py"
+        for a, b in zip(openpyxl.load_workbook(fresh), openpyxl.load_workbook(committed), strict=True):
+            assert [[c.value for c in r] for r in a.iter_rows()] == [[c.value for c in r] for r in b.iter_rows()], \
+                f"{fresh.name} differs: run scripts/regenerate.py"
+
+
 def test_series_template_command(tmp_path):
     out = tmp_path / "s.xlsx"
     assert main(["template", "series", "-o", str(out)]) == 0

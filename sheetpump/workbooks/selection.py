@@ -29,7 +29,17 @@ from ..comparison import Candidate
 from ..files import sha256
 from ..selection import SLIP, STANDARD_POLES, Selection, worst
 from ..units import DISPLACEMENT, POWER, from_si
-from .writer import open_book, write_value
+from .writer import (
+    LINE_HEIGHT,
+    PAPER_SIZES,
+    SIGNED_PCT,
+    display_path,
+    open_book,
+    page_setup,
+    text_lines,
+    write_header,
+    write_value,
+)
 
 __all__ = ["write_selection"]
 
@@ -48,23 +58,8 @@ def _margin(c: Candidate, rule: str) -> float | str | None:
     return None
 
 
-def _lines(text: str, width: float) -> int:
-    """Lines a wrapped text takes in a column ``width`` characters wide (spreadsheets do not all grow
-    the row on their own)."""
-    return max(1, math.ceil(len(text) / max(width - 2, 1)))
-
-
-def _page(sheet: Any, header_row: int) -> None:
-    sheet.set_landscape()
-    sheet.set_paper(9)  # A4
-    sheet.fit_to_pages(1, 0)  # one page wide, as many long as needed
-    sheet.repeat_rows(header_row)
-    sheet.set_margins(left=0.4, right=0.4, top=0.6, bottom=0.6)
-    sheet.set_footer("&L&8sheetpump selection&R&8page &P of &N")
-
-
 def write_selection(target: str | os.PathLike[str], sel: Selection, inputs: Sequence[str | os.PathLike[str]] = (),
-                    units: str = "metric") -> Path:
+                    units: str = "metric", paper: str | None = None) -> Path:
     """Write the selection workbook for ``sel`` to ``target`` (atomically).
 
     Parameters
@@ -74,20 +69,27 @@ def write_selection(target: str | os.PathLike[str], sel: Selection, inputs: Sequ
     sel : Selection
         From :func:`sheetpump.selection.select`.
     inputs : sequence of paths
-        The input files, listed with their SHA-256 on the Assumptions sheet.
+        The input files, listed (relative to ``target``'s folder) with their SHA-256 on the Assumptions
+        sheet.
     units : str
         ``"metric"`` or ``"imperial"`` display units.
+    paper : str, optional
+        ``"A4"`` or ``"Letter"``; default the application's ``paper_size``, else A4.
     """
     if units not in DISPLAY_UNITS:
         raise ValueError(f"units must be one of {sorted(DISPLAY_UNITS)}")
     app = sel.application
+    paper = paper or getattr(app, "paper_size", None) or "A4"
+    if paper not in PAPER_SIZES:
+        raise ValueError(f"paper must be one of {sorted(PAPER_SIZES)}")
+    base = str(Path(target).resolve().parent)
     disp_unit = "cm^3/rev" if units == "metric" else "in^3/rev"
     power_unit = DISPLAY_UNITS[units][POWER]
     with open_book(target, title=f"Size selection: {app.name}") as book:
         f = book.styles
         bold = book.add_format({"bold": True, "bg_color": "#E8EEF5", "valign": "top"})
         specs: dict[str, dict[str, Any]] = {
-            "pct": {"num_format": "+0.0%;-0.0%;0.0%"}, "disp": {"num_format": "0.00" if units == "metric" else "0.000"},
+            "pct": {"num_format": SIGNED_PCT}, "disp": {"num_format": "0.00" if units == "metric" else "0.000"},
             "kw": {"num_format": "0.0"}, "n0": {"num_format": "#,##0"}, "text": {"text_wrap": True, "valign": "top"}}
         formats = {name: book.add_format(spec) for name, spec in specs.items()}
         proposed_fmt = {name: book.add_format({**spec, "bold": True, "bg_color": "#E8EEF5"})
@@ -113,10 +115,7 @@ def write_selection(target: str | os.PathLike[str], sel: Selection, inputs: Sequ
             ("why", 50, None),
         ]
         header_row = 4
-        for c, (text, width, _) in enumerate(heads):
-            sheet.write_string(header_row, c, text, f["header"])
-            sheet.set_column(c, c, width, f["wrap"] if text == "why" else None)
-        sheet.set_row(header_row, 58)
+        write_header(sheet, header_row, [h[0] for h in heads], [h[1] for h in heads], f["header"])
         row = header_row + 1
         for ch in sel.choices:
             for i, (cand, why) in enumerate(zip(ch.candidates, ch.reasons, strict=True)):
@@ -138,37 +137,37 @@ def write_selection(target: str | os.PathLike[str], sel: Selection, inputs: Sequ
                     if c == 4:
                         fmt = f[cand.result.verdict] if cand.result.verdict in f else None
                     elif isinstance(value, str) or kind is None:
-                        fmt = proposed_fmt["text"] if mine else None
+                        fmt = (proposed_fmt if mine else formats)["text"]
                     else:
                         fmt = (proposed_fmt if mine else formats)[kind]
                     if isinstance(value, float) and not math.isfinite(value):
                         value = None
                     write_value(sheet, row, c, value, fmt)
-                sheet.set_row(row, 15 * _lines(why, heads[-1][1]))
+                sheet.set_row(row, LINE_HEIGHT * text_lines(why, heads[-1][1]))
                 row += 1
             row += 1  # a blank row between series
         sheet.freeze_panes(header_row + 1, 2)
         sheet.autofilter(header_row, 0, max(row - 2, header_row + 1), len(heads) - 1)
-        _page(sheet, header_row)
+        page_setup(sheet, app.name, paper=paper, title_rows=(header_row, header_row), title_columns=(0, 1))
 
         series = book.add_worksheet("Series")
         series.write_string(0, 0, "The proposal of each series", f["title"])
         for c, (text, width) in enumerate((("series", 24), ("file", 24), ("proposed size", 14),
                                            ("drive speed [rpm]", 10), ("why", 90), ("assumptions", 60))):
             series.write_string(2, c, text, f["header"])
-            series.set_row(2, 30)
+            series.set_row(2, 2 * LINE_HEIGHT)
             series.set_column(c, c, width, f["wrap"])
         for r, ch in enumerate(sel.choices, start=3):
             write_value(series, r, 0, ch.series.name)
-            write_value(series, r, 1, Path(ch.series.file).name if ch.series.file else "")
+            write_value(series, r, 1, display_path(ch.series.file, base) if ch.series.file else "")
             write_value(series, r, 2, ch.choice.datasheet.model if ch.choice else "none passes",
                         bold if ch.choice else f["fail"])
             write_value(series, r, 3, round(ch.speed * 60) if ch.speed is not None else "as the duty")
             write_value(series, r, 4, ch.summary, f["wrap"])
             assumptions = "; ".join(ch.series.assumptions) or "none"
             write_value(series, r, 5, assumptions, f["wrap"])
-            series.set_row(r, 15 * max(_lines(ch.summary, 90), _lines(assumptions, 60)))
-        _page(series, 2)
+            series.set_row(r, LINE_HEIGHT * max(text_lines(ch.summary, 90), text_lines(assumptions, 60)))
+        page_setup(series, app.name, paper=paper, title_rows=(2, 2))
 
         notes = book.add_worksheet("Assumptions")
         notes.write_string(0, 0, "Assumptions and inputs", f["title"])
@@ -192,14 +191,14 @@ def write_selection(target: str | os.PathLike[str], sel: Selection, inputs: Sequ
             write_value(notes, r, 1, value)
             r += 1
         r += 1
-        notes.write_string(r, 0, "input file", f["header"])
+        notes.write_string(r, 0, "input file (relative to this workbook)", f["header"])
         notes.write_string(r, 1, "SHA-256", f["header"])
         for path in inputs:
             r += 1
-            write_value(notes, r, 0, Path(path).name)
+            write_value(notes, r, 0, display_path(path, base))
             write_value(notes, r, 1, sha256(path))
         notes.set_column(0, 0, 44)
         notes.set_column(1, 1, 90)
-        _page(notes, 0)
+        page_setup(notes, app.name, paper=paper, landscape=False)
         sheet.activate()
     return Path(target)
