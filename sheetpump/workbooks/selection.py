@@ -33,6 +33,7 @@ from .writer import (
     LINE_HEIGHT,
     PAPER_SIZES,
     SIGNED_PCT,
+    cell_format,
     display_path,
     open_book,
     page_setup,
@@ -88,12 +89,12 @@ def write_selection(target: str | os.PathLike[str], sel: Selection, inputs: Sequ
     with open_book(target, title=f"Size selection: {app.name}") as book:
         f = book.styles
         bold = book.add_format({"bold": True, "bg_color": "#E8EEF5", "valign": "top"})
-        specs: dict[str, dict[str, Any]] = {
-            "pct": {"num_format": SIGNED_PCT}, "disp": {"num_format": "0.00" if units == "metric" else "0.000"},
-            "kw": {"num_format": "0.0"}, "n0": {"num_format": "#,##0"}, "text": {"text_wrap": True, "valign": "top"}}
-        formats = {name: book.add_format(spec) for name, spec in specs.items()}
-        proposed_fmt = {name: book.add_format({**spec, "bold": True, "bg_color": "#E8EEF5"})
-                        for name, spec in specs.items()}
+        # every cell of a row stands on the first line of its wrapped "why" (cell_format: valign top)
+        numbers = {"pct": SIGNED_PCT, "disp": "0.00" if units == "metric" else "0.000", "kw": "0.0", "n0": "#,##0",
+                   "text": None}
+        formats = {k: cell_format(book, "wrap" if k == "text" else None, num_format=nf) for k, nf in numbers.items()}
+        proposed_fmt = {k: cell_format(book, "wrap" if k == "text" else None, num_format=nf, bold=True,
+                                       bg_color="#E8EEF5") for k, nf in numbers.items()}
         sheet = book.add_worksheet("Sizes")
         sheet.write_string(0, 0, f"Size selection: {app.name}", f["title"])
         sheet.merge_range(1, 0, 1, 12, SAFETY_CAUTION, f["caution"])
@@ -135,7 +136,7 @@ def write_selection(target: str | os.PathLike[str], sel: Selection, inputs: Sequ
                 ]
                 for c, (value, (_, _, kind)) in enumerate(zip(values, heads, strict=True)):
                     if c == 4:
-                        fmt = f[cand.result.verdict] if cand.result.verdict in f else None
+                        fmt = cell_format(book, cand.result.verdict if cand.result.verdict in f else None)
                     elif isinstance(value, str) or kind is None:
                         fmt = (proposed_fmt if mine else formats)["text"]
                     else:
