@@ -17,12 +17,14 @@ sys.path.insert(0, str(ROOT))
 from sheetpump import demo  # noqa: E402
 from sheetpump.cli import functions, rules  # noqa: E402
 from sheetpump.workbooks.example import write_worked_example  # noqa: E402
+from sheetpump.workbooks.sizes import write_series_template  # noqa: E402
 from sheetpump.workbooks.templates import write_template  # noqa: E402
 
 GENERATED = {
     "worked-example.xlsx": write_worked_example,
     "datasheet-template.xlsx": lambda path: write_template("datasheet", path),
     "application-template.xlsx": lambda path: write_template("application", path),
+    "series-template.xlsx": write_series_template,
 }
 
 
@@ -43,7 +45,7 @@ def main() -> None:
         target.parent.mkdir(parents=True, exist_ok=True)
         write(target)
         print(target.relative_to(ROOT))
-    for path in demo.write_inputs(ROOT / "workbooks" / "demo"):
+    for path in [*demo.write_inputs(ROOT / "workbooks" / "demo"), *demo.write_series(ROOT / "workbooks" / "demo")]:
         print(path.relative_to(ROOT))
     update_readme()
 

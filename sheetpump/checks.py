@@ -78,6 +78,7 @@ __all__ = [
     "Finding",
     "check",
     "parse_cleanliness",
+    "prepare",
     "stretches",
 ]
 
@@ -1167,8 +1168,20 @@ def _validate(app: Application) -> None:
             raise InputError(f"duty {name} must not be negative", duty.rows[i] if duty.rows else where)
 
 
+def prepare(application: Application) -> np.ndarray:
+    """Validate the application's duty and return the oil's kinematic viscosity at each segment [m²/s].
+
+    What :func:`check` does first for every pump; a caller checking many pumps on one application (a
+    series of sizes) does it once and passes the result as ``check(..., viscosity=...)``.
+    """
+    _validate(application)
+    oil = application.oil
+    return np.asarray(fluid.viscosity_at(application.duty.temperature, oil.nu1, oil.t1, oil.nu2, oil.t2), float)
+
+
 def check(datasheet: Datasheet, application: Application,
-          settings: CheckSettings | None = None) -> CheckResult:
+          settings: CheckSettings | None = None, *, viscosity: np.ndarray | None = None,
+          estimate: performance.Estimate | None = None) -> CheckResult:
     """Check one pump's datasheet against an application's duty cycle (rules of DESIGN §6).
 
     Parameters
@@ -1179,6 +1192,10 @@ def check(datasheet: Datasheet, application: Application,
         The machine's settings and duty cycle, SI.
     settings : CheckSettings, optional
         Display units, strictness, how many segments a finding names.
+    viscosity : array, optional
+        :func:`prepare`'s result for this application (the duty is then taken as validated).
+    estimate : Estimate, optional
+        :func:`sheetpump.performance.estimate` of this pump at the duty's points, when already known.
 
     Returns
     -------
@@ -1197,14 +1214,14 @@ def check(datasheet: Datasheet, application: Application,
     (viscosity against temperature); IEC 60034-1 (duty types, RMS power; from memory).
     """
     settings = settings or CheckSettings()
-    _validate(application)
+    nu = prepare(application) if viscosity is None else viscosity
     duty = application.duty
     ctx = _Context(datasheet, application, duty, settings, duty.cycle_time)
     oil = application.oil
-    nu = np.asarray(fluid.viscosity_at(duty.temperature, oil.nu1, oil.t1, oil.nu2, oil.t2), float)
     # The supplier's test oil is rarely stated: its kinematic viscosities and the duty's are turned into
     # dynamic ones with one density, so the loss model sees the ratio of kinematic viscosities.
-    est = performance.estimate(datasheet, duty.pressure, duty.speed, nu, oil.density_15, oil.density_15)
+    est = estimate if estimate is not None else \
+        performance.estimate(datasheet, duty.pressure, duty.speed, nu, oil.density_15, oil.density_15)
     findings: list[Finding] = []
     findings += _speed(ctx)
     findings += _pressure(ctx)

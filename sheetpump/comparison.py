@@ -37,7 +37,7 @@ from .errors import InputError, Where
 from .physics import drive
 from .physics.pump import PhysicsError
 
-__all__ = ["Candidate", "Comparison", "compare"]
+__all__ = ["Candidate", "Comparison", "compare", "compare_results"]
 
 _J_PER_KWH = 3.6e6
 
@@ -190,7 +190,13 @@ def compare(datasheets: Sequence[Datasheet], application: Application,
         raise InputError(f"{application.cycles_per_hour:g} cycles per hour of {application.duty.cycle_time:g} s "
                          f"take {busy / 3600:.2f} hours each hour", application.where("cycles_per_hour"),
                          "check the cycles per hour against the duty's cycle time")
-    results = [_checked(ds, application, settings) for ds in datasheets]
+    return compare_results([_checked(ds, application, settings) for ds in datasheets], application, settings)
+
+
+def compare_results(results: Sequence[CheckResult], application: Application,
+                    settings: CheckSettings | None = None) -> Comparison:
+    """:func:`compare` of pumps already checked on ``application`` (one :class:`CheckResult` each)."""
+    settings = settings or CheckSettings()
     candidates = [_candidate(r, application, settings) for r in results]
     passing = [i for i, c in enumerate(candidates)
                if c.result.verdict != FAIL and c.cost_over_period is not None]

@@ -15,7 +15,11 @@ What the demo is meant to show:
   approach stroke needs.
 * **Sandlow SL-32** — passes with room to spare, at a higher price and more energy.
 
-:func:`write_inputs` writes the workbooks (the same generator writes the committed copies under
+Two invented series for the same press (:data:`SERIES`, one in inch-pound units) show ``sheetpump select``:
+the demo writes the selection of their sizes beside the comparison of the four pumps
+(``sheetpump compare`` also takes series workbooks: each stands for its proposed size).
+
+:func:`write_inputs` and :func:`write_series` write the workbooks (the same generator writes the committed copies under
 ``workbooks/demo/``); :func:`run` checks and compares them into a folder.
 """
 
@@ -30,7 +34,7 @@ from . import SAFETY_CAUTION
 from .physics.losses import WilsonModel
 from .units import FLOW, POWER, PRESSURE, TORQUE, from_si, to_si
 
-__all__ = ["APPLICATION_FILE", "PUMPS", "DemoResult", "run", "write_inputs"]
+__all__ = ["APPLICATION_FILE", "PUMPS", "SERIES", "DemoResult", "run", "write_inputs", "write_series"]
 
 APPLICATION_FILE = "baling-press.xlsx"
 
@@ -186,6 +190,91 @@ def _table(pump: _Pump) -> tuple[list[str], list[list[Any]]]:
     return headers, rows
 
 
+@dataclass(frozen=True)
+class _Series:
+    """An invented series: Series-sheet values (key -> (unit, per-size values; one value: every size)) and
+    the frames whose reference size has a generated performance table (model -> Wilson model)."""
+
+    file: str
+    values: dict[str, tuple[str | None, list[Any]]]
+    tables: dict[str, WilsonModel]
+
+
+#: Two invented series for the same press (see the module docstring of :mod:`sheetpump.selection`).
+#:
+#: * **Brannock BG2** (metric, 6 sizes in two frames, a performance table per frame scaled to its other
+#:   sizes): 16, 20 and 25 cm³/rev deliver too little (25 x 1.47 = 36.8 L/min even without leakage, below
+#:   37.8 L/min); 36 cm³/rev is rated lower (a wider gear in the same frame); 28 cm³/rev is proposed;
+#:   32 cm³/rev, next up, draws more flow through the press's suction line than its inlet allows at the
+#:   5 °C cold start (bigger is not safer on the suction side).
+#: * **Tollbridge TX** (inch-pound, 8 sizes, stated efficiencies): up to 1.5 in³/rev too little flow;
+#:   1.75 in³/rev delivers enough but its frame allows only 10 % of the cycle above its continuous rating
+#:   (the press spends 17.5 % there); 2.0 in³/rev, in the stronger frame, is proposed; 2.5 in³/rev
+#:   starves at the cold start.
+SERIES: tuple[_Series, ...] = (
+    _Series(
+        "series-brannock-bg2.xlsx",
+        {"supplier": (None, ["Brannock Fluidtechnik"]), "series": (None, ["BG2"]),
+         "model": (None, ["BG2-16", "BG2-20", "BG2-25", "BG2-28", "BG2-32", "BG2-36"]),
+         "frame": (None, ["2A", "2A", "2A", "2B", "2B", "2B"]),
+         "source_note": (None, ["invented demo data (series catalogue, invented)"]),
+         "displacement": ("cm^3/rev", [16, 20, 25, 28, 32, 36]),
+         "speed_min": ("rpm", [500]), "speed_max": ("rpm", [3500, 3300, 3000, 3000, 2800, 2500]),
+         "speed_rated": ("rpm", [1500]),
+         "pressure_continuous": ("bar", [250, 250, 250, 250, 250, 210]),
+         "pressure_intermittent": ("bar", [275, 275, 275, 275, 275, 230]),
+         "intermittent_max_duration": ("s", [15]), "intermittent_max_share": ("%", [20]),
+         "pressure_peak": ("bar", [290, 290, 290, 290, 290, 250]),
+         "inlet_pressure_min": ("bara", [0.8]), "inlet_pressure_max": ("bara", [3]),
+         "viscosity_min": ("mm^2/s", [10]), "viscosity_max": ("mm^2/s", [300]),
+         "viscosity_min_short": ("mm^2/s", [8]), "viscosity_max_cold_start": ("mm^2/s", [1000]),
+         "temperature_min": ("degC", [-20]), "temperature_max": ("degC", [80]),
+         "cleanliness": (None, ["19/17/14"]), "rotation": (None, ["clockwise"]),
+         "teeth": (None, [12]), "price": ("currency", [280, 300, 320, 360, 390, 420]),
+         "mass": ("kg", [4.1, 4.5, 5.0, 6.0, 6.5, 7.0]), "noise": ("dB(A)", [64, 65, 66, 66, 67, 68])},
+        {"BG2-20": WilsonModel(20e-6, c_s=1.2e-8, c_f=0.045, c_v=9.0e4, t_c=0.7),
+         "BG2-32": WilsonModel(32e-6, c_s=1.2e-8, c_f=0.045, c_v=9.0e4, t_c=1.0)},
+    ),
+    _Series(
+        "series-tollbridge-tx.xlsx",
+        {"supplier": (None, ["Tollbridge Pump Co."]), "series": (None, ["TX"]),
+         "model": (None, ["TX-060", "TX-080", "TX-100", "TX-125", "TX-150", "TX-175", "TX-200", "TX-250"]),
+         "frame": (None, ["1", "1", "1", "2", "2", "2", "3", "3"]),
+         "source_note": (None, ["invented demo data (inch-pound catalogue, invented)"]),
+         "displacement": ("in^3/rev", [0.6, 0.8, 1.0, 1.25, 1.5, 1.75, 2.0, 2.5]),
+         "speed_min": ("rpm", [600]), "speed_max": ("rpm", [3600, 3600, 3400, 3400, 3200, 3000, 3000, 2800]),
+         "pressure_continuous": ("psi", [3600, 3600, 3600, 3600, 3600, 3300, 3600, 3600]),
+         "pressure_intermittent": ("psi", [3900, 3900, 3900, 3900, 3900, 3700, 3900, 3900]),
+         "intermittent_max_duration": ("s", [10, 10, 10, 10, 10, 10, 20, 20]),
+         "intermittent_max_share": ("%", [10, 10, 10, 10, 10, 10, 20, 20]),
+         "pressure_peak": ("psi", [4200, 4200, 4200, 4200, 4200, 4100, 4300, 4300]),
+         "inlet_pressure_min": ("psia", [11.0]),
+         "viscosity_min": ("cSt", [10]), "viscosity_max": ("cSt", [400]), "viscosity_min_short": ("cSt", [7]),
+         "viscosity_max_cold_start": ("cSt", [1600]),
+         "temperature_min": ("degF", [-4]), "temperature_max": ("degF", [180]),
+         "cleanliness": (None, ["18/16/13"]), "rotation": (None, ["either"]),
+         "volumetric_efficiency": ("%", [90]), "total_efficiency": ("%", [80]),
+         "price": ("currency", [230, 250, 275, 300, 330, 360, 420, 470]),
+         "mass": ("lb", [7.5, 8.2, 9.0, 10.8, 11.9, 13.0, 16.5, 18.8])},
+        {},
+    ),
+)
+
+
+def _series_table(series: _Series) -> list[list[Any]]:
+    """Performance rows (model, pressure [bar], flow [L/min], input power [kW], -, speed, viscosity) of each
+    frame's reference size, rounded as a printed catalogue would round them."""
+    rows: list[list[Any]] = []
+    for model, wilson in series.tables.items():
+        for nu_cst in (20.0, 46.0):
+            for n_rpm in (1000.0, 1500.0, 2000.0):
+                for p_bar in (10, 50, 100, 150, 200, 250):
+                    pred = wilson.predict(n_rpm / 60.0, p_bar * 1e5, nu_cst * 1e-6 * 870.0)
+                    rows.append([model, p_bar, round(float(pred.flow) * 60000, 2),
+                                 round(float(pred.input_power) / 1000, 2), None, n_rpm, nu_cst])
+    return rows
+
+
 def write_inputs(folder: str | os.PathLike[str]) -> list[Path]:
     """Write the demo's application and datasheet workbooks into ``folder``; returns their paths."""
     from .files import make_folder
@@ -200,6 +289,15 @@ def write_inputs(folder: str | os.PathLike[str]) -> list[Path]:
     return paths
 
 
+def write_series(folder: str | os.PathLike[str]) -> list[Path]:
+    """Write the demo's series workbooks (:data:`SERIES`) into ``folder``; returns their paths."""
+    from .files import make_folder
+    from .workbooks.sizes import write_series_template
+
+    folder = make_folder(folder)
+    return [write_series_template(folder / s.file, s.values, _series_table(s)) for s in SERIES]
+
+
 @dataclass(frozen=True)
 class DemoResult:
     """Where the demo wrote its files."""
@@ -209,6 +307,8 @@ class DemoResult:
     comparison: Path
     report: Path
     verdicts: dict[str, str]
+    selection: Path | None = None
+    proposals: dict[str, str | None] | None = None  # series -> proposed model (None: no size passes)
 
 
 def _new_folder(base: Path) -> Path:
@@ -225,18 +325,25 @@ def run(folder: str | os.PathLike[str] | None = None) -> DemoResult:
     Without ``folder`` a new folder ``sheetpump-demo`` (or ``-2``, ``-3`` …) in the current directory.
     """
     from .cli.compare import build
+    from .cli.select import read_series
     from .files import atomic_write
     from .report import text_report
+    from .selection import select
+    from .workbooks.selection import write_selection
 
     out = Path(folder) if folder is not None else _new_folder(Path.cwd() / "sheetpump-demo")
     inputs = write_inputs(out / "inputs")
     comparison = out / "comparison.xlsx"
     comp = build(str(inputs[0]), [str(p) for p in inputs[1:]], str(comparison))
+    series_paths = write_series(out / "inputs")
+    sel = select([read_series(str(p)) for p in series_paths], comp.application)
+    selection = write_selection(out / "selection.xlsx", sel, inputs=[inputs[0], *series_paths])
     report = out / "report.txt"
     text = text_report(comp, strict=False)
     if SAFETY_CAUTION not in text:
         text += "\n" + SAFETY_CAUTION + "\n"
     atomic_write(report, text)
     return DemoResult(out, inputs, comparison, report,
-                      {c.datasheet.label: c.result.verdict for c in comp.candidates})
+                      {c.datasheet.label: c.result.verdict for c in comp.candidates}, selection,
+                      {ch.series.name: ch.choice.datasheet.model if ch.choice else None for ch in sel.choices})
 

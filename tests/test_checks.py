@@ -657,15 +657,16 @@ def test_every_rule_appears_for_every_pump_even_with_blank_ratings():
 def test_a_rule_not_checked_that_matters_makes_the_verdict_at_best_warn():
     from sheetpump.comparison import compare
 
-    ds = metric_pump()
+    # a stated breakaway torque (20 N·m): the cold start's torque rule can be judged too
+    ds = metric_pump(starting_torque=20.0)
     app = app_for(duty(quiet(ds, pressure=150e5, speed=25.0)), cold_start_temperature=283.15)
     ok = check(ds, app)
     assert all(f.severity != "not checked" for f in ok.findings)
     # cleanliness and rotation not stated: shown as not checked, but they do not judge the duty
-    side = metric_pump(cleanliness=None, rotation=None)
+    side = metric_pump(starting_torque=20.0, cleanliness=None, rotation=None)
     assert check(side, app).verdict == ok.verdict
     # the torque limit not stated: torque matters for the duty, so at best a warning; --strict fails
-    blank = metric_pump(torque_max=None)
+    blank = metric_pump(starting_torque=20.0, torque_max=None)
     r = check(blank, app)
     assert [f.effect for f in r.findings if f.rule == "torque.max"] == [WARN]
     assert r.verdict == WARN

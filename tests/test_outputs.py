@@ -49,7 +49,8 @@ def inputs(tmp_path_factory) -> dict[str, Path]:
     # an invented press cycle as a logger would write it
     log.write_text("time [s],pressure [bar],flow [L/min]\n0,100,40\n0.5,150,38\n1.5,200,36\n1.7,120,38\n")
     app_log = write_template("application", folder / "app-log.xlsx", {**demo.MACHINE, "duty_series": ("log.csv",)})
-    return {"app": paths[0], "datasheet": paths[1], "log": log, "app_log": app_log, "folder": folder}
+    return {"app": paths[0], "datasheet": paths[1], "log": log, "app_log": app_log, "folder": folder,
+            "series": demo.write_series(folder)[-1]}
 
 
 @pytest.fixture(scope="module")
@@ -84,6 +85,8 @@ OUTPUTS = (
     Output("evaluate", "--output", lambda i, out: ["evaluate", str(i["datasheet"]), "-o", out], ("datasheet",)),
     Output("recalc", "--output", lambda i, out: ["recalc", str(i["datasheet"]), "-o", out], ("datasheet",)),
     Output("template", "--output", lambda i, out: ["template", "datasheet", "-o", out], ()),
+    *(Output("select", option, lambda i, out, o=option: ["select", "--app", str(i["app"]), str(i["series"]), o, out],
+             ("app", "series")) for option in ("--output", "--junit", "--report")),
     Output("demo", "--output", lambda i, out: ["demo", "-o", out], (), folder=True),
 )
 

@@ -10,7 +10,9 @@ from __future__ import annotations
 
 import argparse
 import sys
+from dataclasses import replace
 from pathlib import Path
+from typing import Any
 
 from ..checks import FAIL, WARN, CheckSettings
 from ..errors import InputError, Where
@@ -63,21 +65,54 @@ def build(app_path: str, datasheets: list[str], out: str, units: str = "metric",
     ``settings`` (when given) replaces ``units`` and ``strict``, with the motor settings."""
     from ..comparison import compare
     from ..workbooks.comparison import write_comparison
+    from ..workbooks.sizes import is_series_workbook
 
     app = _check._read(_check._read_application, app_path, "application workbook")
     paths = datasheet_paths(datasheets, app_path)
     progress = _Progress(len(paths))
-    sheets = []
+    sheets: list = []
     for i, path in enumerate(paths, start=1):
         progress.step(i, Path(path).name)
-        sheets.append(_check._read(_check._read_datasheet, path, "datasheet workbook"))
+        if is_series_workbook(path):
+            from .select import read_series
+
+            sheets.append(read_series(path))
+        else:
+            sheets.append(_check._read(_check._read_datasheet, path, "datasheet workbook"))
     progress.done()
     settings = settings or CheckSettings(units=units, strict=strict)
     inputs = _check.inputs_of(app, app_path, paths)
     check_outputs([("--output", out)], inputs)
+    sheets, notes = proposed_sizes(sheets, app, settings)
     comp = compare(sheets, app, settings)
+    if any(notes):
+        comp = replace(comp, candidates=[replace(c, notes=c.notes + n) for c, n in zip(comp.candidates, notes,
+                                                                                       strict=True)])
     write_comparison(out, comp, inputs=[path for _, path in inputs], units=settings.units)
     return comp
+
+
+def proposed_sizes(items: list, app: Any, settings: CheckSettings) -> tuple[list, list[tuple[str, ...]]]:
+    """Datasheets for the comparison: a series stands for its proposed size (its largest, failing, where
+    none passes), with notes saying so and what was assumed; a datasheet stands for itself."""
+    from ..selection import SizeSeries, select
+
+    series = [x for x in items if isinstance(x, SizeSeries)]
+    chosen = iter(select(series, app, settings).choices if series else [])
+    sheets, notes = [], []
+    for item in items:
+        if not isinstance(item, SizeSeries):
+            sheets.append(item)
+            notes.append(())
+            continue
+        ch = next(chosen)
+        pick = ch.choice or ch.candidates[-1]
+        sheets.append(pick.datasheet)
+        scaled = [a for a in item.assumptions if a.startswith(f"{pick.datasheet.model}:")]
+        head = (f"proposed size of the series {item.name}" if ch.choice else
+                f"no size of the series {item.name} passes: its largest shown")
+        notes.append((f"{head} ({ch.summary})", *scaled))
+    return sheets, notes
 
 
 def exit_code(verdicts: list[str], strict: bool) -> int:
@@ -99,7 +134,7 @@ def register(sub: argparse._SubParsersAction) -> argparse.ArgumentParser:
     parser = sub.add_parser("compare", help="write the comparison workbook of several candidate pumps")
     parser.add_argument("--app", required=True, metavar="APPLICATION.xlsx", help="the application workbook")
     parser.add_argument("datasheets", nargs="+", metavar="DATASHEET",
-                        help="datasheet workbooks, or folders of them")
+                        help="datasheet or series workbooks, or folders of them (a series: its proposed size)")
     parser.add_argument("-o", "--output", required=True, metavar="COMPARISON.xlsx", help="the workbook to write")
     parser.add_argument("--units", choices=("metric", "imperial"), default="metric",
                         help="units shown in the comparison (default metric)")

@@ -22,6 +22,10 @@ def run(args: argparse.Namespace) -> int:
         print(f"  {verdict:4}  {label}")
     print(f"inputs:      {result.folder / 'inputs'}")
     print(f"comparison:  {result.comparison}")
+    if result.selection is not None:
+        for name, model in (result.proposals or {}).items():
+            print(f"  series {name}: {'proposed ' + model if model else 'no size passes'}")
+        print(f"selection:   {result.selection}")
     print(f"report:      {result.report}")
     print(SAFETY_CAUTION)
     return 0

@@ -1,4 +1,4 @@
-"""``sheetpump template datasheet|application -o FILE``: write a blank workbook to fill in."""
+"""``sheetpump template datasheet|application|series -o FILE``: write a blank workbook to fill in."""
 
 from __future__ import annotations
 
@@ -10,6 +10,7 @@ from ..files import check_outputs
 
 
 def run(args: argparse.Namespace) -> int:
+    from ..workbooks.sizes import write_series_template
     from ..workbooks.templates import write_template
 
     target = Path(args.output)
@@ -20,14 +21,17 @@ def run(args: argparse.Namespace) -> int:
     if target.exists() and not args.force:
         raise InputError("the file exists (a filled-in workbook is never overwritten by accident)",
                          Where(file=str(target)), "choose another name, or add --force")
-    write_template(args.kind, target)
+    if args.kind == "series":
+        write_series_template(target)
+    else:
+        write_template(args.kind, target)
     print(f"wrote the blank {args.kind} template to {target}")
     return 0
 
 
 def register(sub: argparse._SubParsersAction) -> argparse.ArgumentParser:
-    parser = sub.add_parser("template", help="write a blank datasheet or application workbook to fill in")
-    parser.add_argument("kind", choices=("datasheet", "application"), help="which workbook")
+    parser = sub.add_parser("template", help="write a blank datasheet, application or series workbook to fill in")
+    parser.add_argument("kind", choices=("datasheet", "application", "series"), help="which workbook")
     parser.add_argument("-o", "--output", required=True, metavar="FILE", help="the .xlsx file to write")
     parser.add_argument("--force", action="store_true", help="overwrite FILE if it exists")
     parser.set_defaults(run=run)

@@ -58,7 +58,16 @@ from .templates import (
     Field,
 )
 
-__all__ = ["read_application", "read_datasheet"]
+__all__ = [
+    "Book",
+    "check_datasheet_fields",
+    "convert",
+    "datasheet_from_fields",
+    "performance_table",
+    "read_application",
+    "read_datasheet",
+    "read_table",
+]
 
 _MAX_HEADER_SCAN = 60  # rows searched for a header row
 _MAX_ROWS = 20_000  # rows read below the header of a field sheet: one row per field is far smaller
@@ -636,7 +645,15 @@ def read_datasheet(path: str | os.PathLike[str]) -> Datasheet:
     book = _Book(path)
     fields = _Fields(book, PUMP_SHEET, DATASHEET_FIELDS)
     got = {key: fields.get(key) for key in fields.fields}
-    w = fields.where
+    check_datasheet_fields(got, fields.where)
+    sources = fields.sources(got)
+    performance = _performance(book, got["performance_speed"], got["performance_viscosity"], fields)
+    return datasheet_from_fields(got, sources, performance, book.file)
+
+
+def check_datasheet_fields(got: dict[str, Any], w: Callable[[str], Where]) -> None:
+    """The checks of a datasheet beyond each value (see :func:`read_datasheet`), on the converted
+    values ``got`` (field key -> SI value or ``None``); ``w(key)`` is where a field was read."""
 
     def need(a: str, b: str, text: str, hint: str = "") -> None:
         if got[a] is not None and got[b] is None:
@@ -682,13 +699,16 @@ def read_datasheet(path: str | os.PathLike[str]) -> Datasheet:
     if ve is not None and te is not None and te > ve:
         raise InputError("the total efficiency exceeds the volumetric efficiency (it cannot: "
                          "total = volumetric × hydro-mechanical)", w("total_efficiency"))
-    sources = fields.sources(got)
-    performance = _performance(book, got["performance_speed"], got["performance_viscosity"], fields)
+
+
+def datasheet_from_fields(got: dict[str, Any], sources: dict[str, Where], performance: PerformanceTable | None,
+                          file: str) -> Datasheet:
+    """The :class:`~sheetpump.datasheet.Datasheet` of checked field values (key -> SI value or ``None``)."""
     if performance is not None:
         sources["performance"] = performance.where
     keep = {f.name for f in DATASHEET_FIELDS} - {"performance_speed", "performance_viscosity"}
     return Datasheet(**{k: v for k, v in got.items() if k in keep and v is not None},
-                     performance=performance, file=book.file, sources=sources)
+                     performance=performance, file=file, sources=sources)
 
 
 def _performance(book: _Book, speed: float | None, viscosity: float | None,
@@ -699,6 +719,13 @@ def _performance(book: _Book, speed: float | None, viscosity: float | None,
     rows, letters, header = _read_table(book, sheet, PERFORMANCE_COLUMNS)
     if not rows:
         return None
+    return performance_table(book, sheet, rows, letters, header, speed, viscosity)
+
+
+def performance_table(book: _Book, sheet: Any, rows: list[tuple[int, dict[str, Any]]], letters: dict[str, str],
+                      header: int, speed: float | None, viscosity: float | None) -> PerformanceTable:
+    """A :class:`~sheetpump.datasheet.PerformanceTable` from rows read by :func:`read_table` (speed and
+    viscosity [SI]: the values of points that give none)."""
     first, last = _span(letters)
     where = Where(book.file, sheet.title, f"{first}{header}:{last}{rows[-1][0]}")
     pressure = _column(rows, "pressure", None, book, sheet, letters, "give the pressure of each point")
@@ -858,3 +885,11 @@ def _segments(book: _Book, sheet: Any, defaults: dict[str, float | None], wraps:
     return Duty(duration=duration, pressure=pressure, flow=flow, speed=speed, temperature=temperature,
                 inlet_pressure=inlet, names=names, wraps=wraps, source="segments", rows=where_rows,
                 columns=letters, where=Where(book.file, sheet.title))
+
+
+# --- shared with the other readers that follow the same cell rules (sheetpump.workbooks.sizes) ---------
+
+#: A workbook opened with the cell rules of every reader (cached values, formulas evaluated, errors named).
+Book = _Book
+#: Rows of a table sheet: ``(rows, column letters, header row)``.
+read_table = _read_table

@@ -46,6 +46,7 @@ __all__ = [
     "Column",
     "Field",
     "write_template",
+    "write_top",
 ]
 
 PUMP_SHEET = "Pump"
@@ -324,10 +325,15 @@ NAME_PREFIX = {PUMP_SHEET: "pump", MACHINE_SHEET: "machine"}
 
 
 def _top(sheet: Any, book: Any, name: str, width: int) -> None:
-    sheet.write_string(0, 0, f"sheetpump {name.lower()} sheet", book.styles["title"])
+    write_top(sheet, book, f"sheetpump {name.lower()} sheet", _INSTRUCTIONS[name], width)
+
+
+def write_top(sheet: Any, book: Any, title: str, instructions: str, width: int) -> None:
+    """The three top rows of a sheet to fill in: title, the safety caution, the instructions."""
+    sheet.write_string(0, 0, title, book.styles["title"])
     sheet.merge_range(1, 0, 1, width - 1, SAFETY_CAUTION, book.styles["caution"])
     sheet.set_row(1, 62)
-    sheet.merge_range(2, 0, 2, width - 1, _INSTRUCTIONS[name], book.styles["note"])
+    sheet.merge_range(2, 0, 2, width - 1, instructions, book.styles["note"])
     sheet.set_row(2, 32)
 
 

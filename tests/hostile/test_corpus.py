@@ -48,6 +48,8 @@ def commands(case: Case, x: Path, good: dict[str, Path], out: Path) -> list[list
         c += [["check", "--app", a, str(x), "--annotate", str(out / "annotated.xlsx"), "--junit",
                str(out / "junit.xml"), "--format", "json", "-o", str(out / "report.json")],
               ["compare", "--app", a, str(x), "-o", str(out / "comparison.xlsx")]]
+    if case.role == "file":  # the same file as a series workbook
+        c += [["select", "--app", a, str(x), "-o", str(out / "selection.xlsx"), "--junit", str(out / "junit.xml")]]
     if case.role in ("file", "application"):
         c += [["check", "--app", str(x), d, "-o", str(out / "report.txt")],
               ["compare", "--app", str(x), d, "-o", str(out / "comparison.xlsx")]]

@@ -1,0 +1,78 @@
+"""``sheetpump select``: which size of each supplier's series the machine needs.
+
+    sheetpump select --app APPLICATION.xlsx SERIES.xlsx [...] [-o SELECTION.xlsx] [--format text|json]
+                     [--junit FILE] [--mains-frequency HZ]
+
+Every size of every series is checked with the rules of ``check``; per series the smallest displacement
+that passes every rule is proposed. Exit code 0: every series has a passing size; 1: a series has none;
+2: bad input or usage.
+"""
+
+from __future__ import annotations
+
+import argparse
+import sys
+from typing import Any
+
+from ..checks import CheckSettings
+from ..files import atomic_write, check_outputs
+from . import check as _check
+
+EXIT_OK, EXIT_FAIL = 0, 1
+
+
+def read_series(path: str) -> Any:
+    """Read one series workbook with the command line's error handling."""
+    from ..workbooks.sizes import read_size_series
+
+    return _check._read(read_size_series, path, "series workbook")
+
+
+def run(args: argparse.Namespace) -> int:
+    from ..selection import select
+    from ..selection_report import json_selection, junit_selection, text_selection
+    from ..workbooks.selection import write_selection
+
+    app = _check._read(_check._read_application, args.app, "application workbook")
+    paths = list(args.series)
+    series = [read_series(path) for path in paths]
+    inputs = _check.inputs_of(app, args.app, []) + [("a series workbook", p) for p in paths]
+    outputs = [("--output", args.output), ("--junit", args.junit), ("--report", args.report)]
+    check_outputs([(option, path) for option, path in outputs if path], inputs)
+    sel = select(series, app, CheckSettings(units=args.units, strict=args.strict), args.mains_frequency)
+    if args.output:
+        write_selection(args.output, sel, inputs=[p for _, p in inputs], units=args.units)
+    if args.junit:
+        atomic_write(args.junit, junit_selection(sel))
+    text = json_selection(sel) if args.format == "json" else text_selection(sel)
+    if args.report:
+        atomic_write(args.report, text)
+    else:
+        sys.stdout.write(text)
+    if args.output and args.format == "text" and not args.report:
+        print(f"selection written to {args.output}")
+    return EXIT_OK if all(ch.proposed is not None for ch in sel.choices) else EXIT_FAIL
+
+
+def register(sub: argparse._SubParsersAction) -> argparse.ArgumentParser:
+    parser = sub.add_parser(
+        "select", help="propose the size of each supplier's series for the machine",
+        description="Check every size of each series workbook against the application and propose, per "
+                    "series, the smallest displacement that passes every rule. Exit code 0: every series has "
+                    "a passing size; 1: a series has none; 2: bad input or usage.")
+    parser.add_argument("--app", required=True, metavar="APPLICATION.xlsx", help="the application workbook")
+    parser.add_argument("series", nargs="+", metavar="SERIES.xlsx",
+                        help="series workbooks (`sheetpump template series`)")
+    parser.add_argument("-o", "--output", metavar="SELECTION.xlsx", help="write the selection workbook")
+    parser.add_argument("--format", choices=("text", "json"), default="text", help="report format (default: text)")
+    parser.add_argument("--report", metavar="FILE", help="write the report to FILE instead of standard output")
+    parser.add_argument("--junit", metavar="FILE", help="also write JUnit XML (a series without a passing size "
+                        "fails)")
+    parser.add_argument("--mains-frequency", type=float, metavar="HZ",
+                        help="mains frequency for the standard motor speeds tried where the application gives a "
+                             "speed range (default: 50 Hz for IEC motors, 60 Hz for NEMA)")
+    parser.add_argument("--strict", action="store_true", help="a warning makes a size fail")
+    parser.add_argument("--units", choices=("metric", "imperial"), default="metric",
+                        help="units of the selection workbook (default: metric)")
+    parser.set_defaults(run=run)
+    return parser

@@ -1,0 +1,205 @@
+"""The selection workbook: every size of every series on the machine, the proposed sizes marked.
+
+Sheets:
+
+* **Sizes** — one row per size and series: verdict, worst rule and margin, flow margin, the pressure
+  margins (continuous, intermittent, peak, relief), motor, RMS power, energy, cost, and why the size
+  fails or what its margin is. The proposed size of each series says ``proposed`` in its own column (and
+  is bold), so the mark survives printing in black and white.
+* **Series** — per series the proposal in one sentence, the drive speed where one was chosen, and the
+  assumptions (frame tables scaled by displacement).
+* **Assumptions** — the application's settings, the standard motor speeds, the input files and their
+  SHA-256, and the safety caution.
+
+Printed landscape, fit to the page width, the header row repeated on every page. Written with
+:mod:`sheetpump.workbooks.writer`: deterministic, atomic, text from inputs stays text.
+"""
+
+from __future__ import annotations
+
+import math
+import os
+from collections.abc import Sequence
+from pathlib import Path
+from typing import Any
+
+from .. import SAFETY_CAUTION, __version__
+from ..checks import DISPLAY_UNITS, INFO, NOT_CHECKED
+from ..comparison import Candidate
+from ..files import sha256
+from ..selection import SLIP, STANDARD_POLES, Selection, worst
+from ..units import DISPLACEMENT, POWER, from_si
+from .writer import (
+    LINE_HEIGHT,
+    PAPER_SIZES,
+    SIGNED_PCT,
+    cell_format,
+    display_path,
+    open_book,
+    page_setup,
+    text_lines,
+    write_header,
+    write_value,
+)
+
+__all__ = ["write_selection"]
+
+_PRESSURE_RULES = (("pressure.continuous", "continuous"), ("pressure.intermittent", "intermittent"),
+                   ("pressure.peak", "peak"), ("pressure.relief", "relief"))
+
+
+def _margin(c: Candidate, rule: str) -> float | str | None:
+    for f in c.result.findings:
+        if f.rule == rule:
+            if f.severity == NOT_CHECKED:
+                return "not checked"
+            if f.severity == INFO:
+                return "intermittent" if rule == "pressure.continuous" else None
+            return f.margin if f.margin is not None and math.isfinite(f.margin) else None
+    return None
+
+
+def write_selection(target: str | os.PathLike[str], sel: Selection, inputs: Sequence[str | os.PathLike[str]] = (),
+                    units: str = "metric", paper: str | None = None) -> Path:
+    """Write the selection workbook for ``sel`` to ``target`` (atomically).
+
+    Parameters
+    ----------
+    target : path
+        The ``.xlsx`` to write.
+    sel : Selection
+        From :func:`sheetpump.selection.select`.
+    inputs : sequence of paths
+        The input files, listed (relative to ``target``'s folder) with their SHA-256 on the Assumptions
+        sheet.
+    units : str
+        ``"metric"`` or ``"imperial"`` display units.
+    paper : str, optional
+        ``"A4"`` or ``"Letter"``; default the application's ``paper_size``, else A4.
+    """
+    if units not in DISPLAY_UNITS:
+        raise ValueError(f"units must be one of {sorted(DISPLAY_UNITS)}")
+    app = sel.application
+    paper = paper or getattr(app, "paper_size", None) or "A4"
+    if paper not in PAPER_SIZES:
+        raise ValueError(f"paper must be one of {sorted(PAPER_SIZES)}")
+    base = str(Path(target).resolve().parent)
+    disp_unit = "cm^3/rev" if units == "metric" else "in^3/rev"
+    power_unit = DISPLAY_UNITS[units][POWER]
+    with open_book(target, title=f"Size selection: {app.name}") as book:
+        f = book.styles
+        bold = book.add_format({"bold": True, "bg_color": "#E8EEF5", "valign": "top"})
+        # every cell of a row stands on the first line of its wrapped "why" (cell_format: valign top)
+        numbers = {"pct": SIGNED_PCT, "disp": "0.00" if units == "metric" else "0.000", "kw": "0.0", "n0": "#,##0",
+                   "text": None}
+        formats = {k: cell_format(book, "wrap" if k == "text" else None, num_format=nf) for k, nf in numbers.items()}
+        proposed_fmt = {k: cell_format(book, "wrap" if k == "text" else None, num_format=nf, bold=True,
+                                       bg_color="#E8EEF5") for k, nf in numbers.items()}
+        sheet = book.add_worksheet("Sizes")
+        sheet.write_string(0, 0, f"Size selection: {app.name}", f["title"])
+        sheet.merge_range(1, 0, 1, 12, SAFETY_CAUTION, f["caution"])
+        sheet.set_row(1, 40)
+        sheet.merge_range(2, 0, 2, 12, "One row per size; per series the proposed size is the smallest displacement "
+                          "that passes every rule (ties: lower price, then lower drive power). Margins are fractions "
+                          "of the limit, positive inside.", f["note"])
+        sheet.set_row(2, 28)
+        heads = [
+            ("series", 25, None), ("size", 10, None), ("proposed", 9, None),
+            (f"displacement [{disp_unit}]", 13, "disp"), ("verdict", 7, None), ("worst rule", 24, None),
+            ("worst margin", 9, "pct"), ("flow margin", 9, "pct"),
+            *((f"{label} pressure margin" if rule != "pressure.relief" else "relief + overshoot vs peak",
+               11, "pct") for rule, label in _PRESSURE_RULES),
+            ("motor", 9, None), (f"RMS input power [{power_unit}]", 10, "kw"),
+            ("electrical energy per year [kWh]", 11, "n0"), (f"energy cost per year [{app.currency}]", 10, "n0"),
+            (f"price [{app.currency}]", 9, "n0"),
+            (f"cost over {app.evaluation_years:g} years [{app.currency}]", 11, "n0"),
+            ("why", 50, None),
+        ]
+        header_row = 4
+        write_header(sheet, header_row, [h[0] for h in heads], [h[1] for h in heads], f["header"])
+        row = header_row + 1
+        for ch in sel.choices:
+            for i, (cand, why) in enumerate(zip(ch.candidates, ch.reasons, strict=True)):
+                mine = i == ch.proposed
+                ds, w = cand.datasheet, worst(cand)
+                values: list[Any] = [
+                    ch.series.name, ds.model, "proposed" if mine else "",
+                    float(from_si(ds.displacement, DISPLACEMENT, disp_unit)), cand.result.verdict,
+                    w.rule if w else "", w.margin if w and w.margin is not None and math.isfinite(w.margin) else None,
+                    cand.flow_margin if cand.flow_margin is not None and math.isfinite(cand.flow_margin) else None,
+                    *(_margin(cand, rule) for rule, _ in _PRESSURE_RULES),
+                    cand.motor.label if cand.motor else "none",
+                    float(from_si(cand.result.drive.rms_power, POWER, power_unit))
+                    if math.isfinite(cand.result.drive.rms_power) else None,
+                    cand.electrical_energy_per_year / 3.6e6, cand.energy_cost_per_year, ds.price,
+                    cand.cost_over_period, why,
+                ]
+                for c, (value, (_, _, kind)) in enumerate(zip(values, heads, strict=True)):
+                    if c == 4:
+                        fmt = cell_format(book, cand.result.verdict if cand.result.verdict in f else None)
+                    elif isinstance(value, str) or kind is None:
+                        fmt = (proposed_fmt if mine else formats)["text"]
+                    else:
+                        fmt = (proposed_fmt if mine else formats)[kind]
+                    if isinstance(value, float) and not math.isfinite(value):
+                        value = None
+                    write_value(sheet, row, c, value, fmt)
+                sheet.set_row(row, LINE_HEIGHT * text_lines(why, heads[-1][1]))
+                row += 1
+            row += 1  # a blank row between series
+        sheet.freeze_panes(header_row + 1, 2)
+        sheet.autofilter(header_row, 0, max(row - 2, header_row + 1), len(heads) - 1)
+        page_setup(sheet, app.name, paper=paper, title_rows=(header_row, header_row), title_columns=(0, 1))
+
+        series = book.add_worksheet("Series")
+        series.write_string(0, 0, "The proposal of each series", f["title"])
+        for c, (text, width) in enumerate((("series", 24), ("file", 24), ("proposed size", 14),
+                                           ("drive speed [rpm]", 10), ("why", 90), ("assumptions", 60))):
+            series.write_string(2, c, text, f["header"])
+            series.set_row(2, 2 * LINE_HEIGHT)
+            series.set_column(c, c, width, f["wrap"])
+        for r, ch in enumerate(sel.choices, start=3):
+            write_value(series, r, 0, ch.series.name)
+            write_value(series, r, 1, display_path(ch.series.file, base) if ch.series.file else "")
+            write_value(series, r, 2, ch.choice.datasheet.model if ch.choice else "none passes",
+                        bold if ch.choice else f["fail"])
+            write_value(series, r, 3, round(ch.speed * 60) if ch.speed is not None else "as the duty")
+            write_value(series, r, 4, ch.summary, f["wrap"])
+            assumptions = "; ".join(ch.series.assumptions) or "none"
+            write_value(series, r, 5, assumptions, f["wrap"])
+            series.set_row(r, LINE_HEIGHT * max(text_lines(ch.summary, 90), text_lines(assumptions, 60)))
+        page_setup(series, app.name, paper=paper, title_rows=(2, 2))
+
+        notes = book.add_worksheet("Assumptions")
+        notes.write_string(0, 0, "Assumptions and inputs", f["title"])
+        notes.write_string(1, 0, SAFETY_CAUTION, f["caution"])
+        notes.set_row(1, 48)
+        rows: list[tuple[str, Any]] = [
+            ("application", app.name), ("motor standard", app.motor_standard),
+            ("mains frequency [Hz]", sel.mains_frequency),
+            ("standard motor speeds tried for a speed range",
+             f"{'/'.join(f'{p}-pole' for p in STANDARD_POLES)}, synchronous speed 120·f/p less {SLIP:.0%} slip "
+             "(common practice, an assumption)"),
+            ("flow margin required", app.flow_margin), ("pressure margin required", app.pressure_margin),
+            ("rules", "those of sheetpump check, on every size"),
+            ("motor, energy and cost", "as in the comparison workbook (sheetpump compare)"),
+            ("settings not given (defaults used)", ", ".join(app.defaulted) or "none"),
+            ("sheetpump version", __version__),
+        ]
+        r = 3
+        for label, value in rows:
+            notes.write_string(r, 0, label, f["header"])
+            write_value(notes, r, 1, value)
+            r += 1
+        r += 1
+        notes.write_string(r, 0, "input file (relative to this workbook)", f["header"])
+        notes.write_string(r, 1, "SHA-256", f["header"])
+        for path in inputs:
+            r += 1
+            write_value(notes, r, 0, display_path(path, base))
+            write_value(notes, r, 1, sha256(path))
+        notes.set_column(0, 0, 44)
+        notes.set_column(1, 1, 90)
+        page_setup(notes, app.name, paper=paper, landscape=False)
+        sheet.activate()
+    return Path(target)
