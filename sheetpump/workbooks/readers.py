@@ -22,6 +22,7 @@ from __future__ import annotations
 
 import datetime as _dt
 import difflib
+import functools
 import math
 import os
 import re
@@ -84,15 +85,21 @@ def _is_error_text(value: Any) -> bool:
 
 
 class _Book:
-    """A workbook opened twice (cached values and formulas), with the cell rules of every reader."""
+    """A workbook opened twice (cached values and formulas), with the cell rules of every reader.
+
+    The formulas are opened only when a cell has no cached value (most workbooks never need them).
+    """
 
     def __init__(self, path: str | os.PathLike[str]) -> None:
         self.path = Path(path)
         self.file = str(path)
         self.values = open_workbook(self.path, data_only=True, max_uncompressed=64 * 1024**2)
-        self.formulas = open_workbook(self.path, data_only=False, max_uncompressed=64 * 1024**2)
         self._evaluated: dict[tuple[str, str], Any] | None = None
         self._merged: dict[str, list[Any]] = {}
+
+    @functools.cached_property
+    def formulas(self) -> Any:
+        return open_workbook(self.path, data_only=False, max_uncompressed=64 * 1024**2)
 
     def sheet(self, name: str, *, required: bool = True) -> Any:
         names = self.values.sheetnames
