@@ -256,21 +256,17 @@ def _relative_text(text: str, row0: int, col0: int) -> str | None:
     """
     if '"' in text:
         return None
-    out: list[str] = []
-    pos = 0
-    for m in _REF_IN_TEXT_RE.finditer(text):
-        cabs, letters, rabs, digits = m.groups()
+    pieces = _REF_IN_TEXT_RE.split(text)  # text, then ($, letters, $, digits, text) per reference
+    for k in range(1, len(pieces), 5):
+        cabs, letters, rabs, digits = pieces[k:k + 4]
         col = _COLUMNS.get(letters)
         if col is None:
             col = _COLUMNS[letters] = _split_ref(f"{letters.upper()}1")[1]
         row = int(digits)
         if row > _MAX_ROW or col > _MAX_COL:
             return None
-        out.append(text[pos:m.start()])
-        out.append(f"\0{rabs}{row if rabs else row - row0},{cabs}{col if cabs else col - col0}\0")
-        pos = m.end()
-    out.append(text[pos:])
-    return "".join(out)
+        pieces[k:k + 4] = "\0", f"{rabs}{row if rabs else row - row0}", f"{cabs}{col if cabs else col - col0}", "\0"
+    return ",".join(pieces)
 
 
 def _parse_cached(text: str, row0: int, col0: int, cache: dict[str, tuple[tuple, str]]) -> tuple[tuple, str]:
