@@ -37,7 +37,6 @@ import datetime as _dt
 import math
 import os
 import re
-import shutil
 import tokenize
 from dataclasses import dataclass
 from functools import cache, lru_cache
@@ -113,16 +112,23 @@ def build_registry(cache_folder: Path | None = None) -> pint.UnitRegistry:
     """pint's full default registry plus sheetpump's units (:data:`_DEFINITIONS`).
 
     ``cache_folder`` (see :func:`registry_cache_folder`) lets pint load its parsed definitions instead
-    of parsing them again; the registry is the same either way (tests/test_units_registry.py compares
-    every unit). A cache that cannot be read (e.g. half written by a process that was killed) is
-    removed and the registry built without it.
+    of parsing them again; the registry is the same either way (tests/test_startup.py compares
+    every unit). A cache that cannot be read (e.g. half written by a process that was killed) has its
+    files (pint's ``*.pickle`` and ``*.json``, nothing else) removed and the registry is built without it.
+    One difference, pint's own: a registry loaded from the cache (pint 0.25) does not restore pint's table
+    of dimensionally equivalent units, so ``get_compatible_units`` answers an empty set; sheetpump never
+    asks it (it converts through ``parse_units``, ``get_root_units`` and ``Quantity.to``).
     """
     try:
         registry = pint.UnitRegistry(autoconvert_offset_to_baseunit=True, cache_folder=cache_folder)
     except Exception:
         if cache_folder is None:
             raise
-        shutil.rmtree(cache_folder, ignore_errors=True)
+        for part in (*Path(cache_folder).glob("*.pickle"), *Path(cache_folder).glob("*.json")):
+            try:
+                part.unlink(missing_ok=True)
+            except OSError:  # another process's file, or read-only: the build below still works
+                pass
         registry = pint.UnitRegistry(autoconvert_offset_to_baseunit=True)
     for definition in _DEFINITIONS:
         registry.define(definition)
