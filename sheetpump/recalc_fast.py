@@ -237,6 +237,52 @@ def _parse(text: str, row0: int, col0: int) -> tuple:
     return node
 
 
+#: A cell reference as the tokenizer reads one (``$B$2``, ``c15``), not part of a longer word, a sheet
+#: name (``Q1!``) or a function name (``LOG10(``).
+_REF_IN_TEXT_RE = re.compile(r"(?<![\w.$])(\$?)([A-Za-z]{1,3})(\$?)(\d+)(?![\w.(!])")
+
+
+def _relative_text(text: str, row0: int, col0: int) -> str | None:
+    """The formula with each reference written as its offset from (row0, col0); None if not sure.
+
+    Two formulas with the same relative text have the same tree: outside the references the texts are
+    equal, and each reference has the same offsets (or the same absolute row or column). A script that
+    writes ``=A2*B2/600``, ``=A3*B3/600`` ... cell by cell thus costs one parse per column. Formulas
+    with text in quotes (which may look like a reference) or a reference outside the sheet are parsed
+    one by one.
+
+    >>> _relative_text('MAX(C2,$D$2)*0.9', 2, 5) == _relative_text('MAX(C7,$D$2)*0.9', 7, 5)
+    True
+    """
+    if '"' in text:
+        return None
+    pieces = _REF_IN_TEXT_RE.split(text)  # text, then ($, letters, $, digits, text) per reference
+    for k in range(1, len(pieces), 5):
+        cabs, letters, rabs, digits = pieces[k:k + 4]
+        col = _COLUMNS.get(letters)
+        if col is None:
+            col = _COLUMNS[letters] = _split_ref(f"{letters.upper()}1")[1]
+        row = int(digits)
+        if row > _MAX_ROW or col > _MAX_COL:
+            return None
+        pieces[k:k + 4] = "\0", f"{rabs}{row if rabs else row - row0}", f"{cabs}{col if cabs else col - col0}", "\0"
+    return ",".join(pieces)
+
+
+def _parse_cached(text: str, row0: int, col0: int, cache: dict[str, tuple[tuple, str]]) -> tuple[tuple, str]:
+    """(tree, its repr) of a formula, parsed once per relative text (:func:`_relative_text`)."""
+    key = _relative_text(text, row0, col0)
+    if key is not None:
+        known = cache.get(key)
+        if known is not None:
+            return known
+    node = _parse(text, row0, col0)
+    parsed = (node, repr(node))  # repr: TRUE and 1 are equal as tuples, not as formulas
+    if key is not None:
+        cache[key] = parsed
+    return parsed
+
+
 def _check(node: tuple, top: bool = False, in_aggregate: bool = False) -> None:
     """Reject the constructs whose engine semantics the fast path does not reproduce."""
     kind = node[0]
@@ -550,7 +596,8 @@ def _read(path: Path) -> tuple[Recalculation, _Book, list[_Group]]:
 
         groups: dict[tuple[int, int, str], _Group] = {}
         f_cache: dict[str, dict[str, str]] = {}
-        shared: dict[tuple[int, str], tuple[tuple, int, int]] = {}  # (sheet, si) -> tree, anchor
+        shared: dict[tuple[int, str], tuple[tuple, str]] = {}  # (sheet, si) -> tree, its repr
+        parses: dict[str, tuple[tuple, str]] = {}  # relative text -> tree, its repr
         pending: list[tuple[int, str, int, int]] = []  # shared children met before their anchor
         for number, sheet in enumerate(sheets):
             book.names.append(sheet.name)
@@ -587,20 +634,19 @@ def _read(path: Path) -> tuple[Recalculation, _Book, list[_Group]]:
                 if kind == "shared":
                     si = f_attrs.get("si", "")
                     if formula.strip():
-                        node = _parse(formula, row, col)
-                        shared[(number, si)] = (node, row, col)
-                        _add(groups, number, node, row, col)
+                        parsed = _parse_cached(formula, row, col, parses)
+                        shared[(number, si)] = parsed
+                        _add(groups, number, parsed, row, col)
                     else:
                         pending.append((number, si, row, col))
                 elif kind == "normal":
-                    _add(groups, number, _parse(formula, row, col), row, col)
+                    _add(groups, number, _parse_cached(formula, row, col, parses), row, col)
                 else:
                     raise UnsupportedError(f"{kind} formula")
         for number, si, row, col in pending:
             if (number, si) not in shared:
                 raise UnsupportedError("a shared formula without its first cell")
-            node = shared[(number, si)][0]
-            _add(groups, number, node, row, col)
+            _add(groups, number, shared[(number, si)], row, col)
     return result, book, list(groups.values())
 
 
@@ -612,8 +658,10 @@ def _unescape(text: str) -> str:
     return html.unescape(text)
 
 
-def _add(groups: dict[tuple[int, int, str], _Group], sheet: int, node: tuple, row: int, col: int) -> None:
-    key = (sheet, col, repr(node))  # repr: TRUE and 1 are equal as tuples, not as formulas
+def _add(groups: dict[tuple[int, int, str], _Group], sheet: int, parsed: tuple[tuple, str], row: int,
+         col: int) -> None:
+    node, shape = parsed
+    key = (sheet, col, shape)
     group = groups.get(key)
     if group is None:
         group = groups[key] = _Group(sheet, node)
@@ -852,6 +900,10 @@ class _Column:
     def aggregate(self, name: str, args: tuple) -> Any:
         book, group = self.book, self.group
         constant = all(_fixed(a) for a in args)
+        if not constant and name in ("MIN", "MAX") and all(a[0] != "range" for a in args):
+            fast = self.extreme(name, args)
+            if fast is not None:
+                return fast
         cells = self.cells[:1] if constant else self.cells
         out = []
         for row, col in cells:
@@ -868,11 +920,29 @@ class _Column:
                     parts.append([values.get((r, c)) for r in range(r1, r2 + 1) for c in range(c1, c2 + 1)])
                 else:
                     v = _Column(book, _single(group, a, row, col)).eval(a)
+                    if isinstance(v, (list, np.ndarray)):  # one cell's column: its one value
+                        v = v[0].item() if isinstance(v, np.ndarray) else v[0]
                     if not (type(v) is float or v is None or isinstance(v, CellError)):
                         raise UnsupportedError(f"{name} of a text or TRUE/FALSE value")
                     parts.append([v])
             out.append(_aggregate(name, parts))
         return out[0] if constant else out
+
+
+    def extreme(self, name: str, args: tuple) -> np.ndarray | None:
+        """MIN or MAX of single values (references, expressions) for the whole column, when every
+        argument is a finite number in every cell; else None (the cell-by-cell path decides).
+
+        Taken in argument order, a later value replacing the kept one only when strictly smaller
+        (larger), as :func:`min` and :func:`max` do in :func:`_aggregate`.
+        """
+        values = [self.eval(a) for a in args]
+        if not all(isinstance(v, np.ndarray) or (type(v) is float and math.isfinite(v)) for v in values):
+            return None
+        kept = np.broadcast_to(np.asarray(values[0], dtype=float), (self.n,))
+        for v in values[1:]:
+            kept = np.where(v < kept if name == "MIN" else v > kept, v, kept)
+        return np.array(kept, dtype=float)
 
 
 def _concat_op(op: str, x: Any, y: Any) -> Any:

@@ -35,14 +35,17 @@ from __future__ import annotations
 
 import datetime as _dt
 import math
+import os
 import re
 import tokenize
 from dataclasses import dataclass
 from functools import cache, lru_cache
+from pathlib import Path
 from typing import Any
 
 import numpy as np
 import pint
+import platformdirs
 
 from .errors import InputError, Where
 
@@ -51,6 +54,7 @@ __all__ = [
     "KINDS",
     "Kind",
     "all_finite",
+    "build_registry",
     "check_span",
     "check_unit",
     "decimal_comma",
@@ -58,6 +62,7 @@ __all__ = [
     "from_si",
     "outside_span",
     "physical_unit",
+    "registry_cache_folder",
     "span_text",
     "spelling",
     "split_number",
@@ -66,9 +71,8 @@ __all__ = [
     "ureg",
 ]
 
-#: The one unit registry of sheetpump. Quantities exist only at the edges.
-ureg = pint.UnitRegistry(autoconvert_offset_to_baseunit=True)
-for _definition in (
+#: sheetpump's own units, defined on top of pint's default definitions.
+_DEFINITIONS = (
     "rev = revolution",
     "gpm = gallon / minute",
     "lpm = liter / minute",
@@ -78,8 +82,61 @@ for _definition in (
     "psig = psi",
     "kPaa = kPa",
     "kPag = kPa",
-):
-    ureg.define(_definition)
+)
+
+
+def registry_cache_folder() -> Path | None:
+    """The per-user folder where pint keeps its parsed definitions for sheetpump, or ``None``.
+
+    Parsing pint's definitions file costs a few tenths of a second on every start; pint can keep the
+    parsed result on disk (``UnitRegistry(cache_folder=...)``, keyed by the file's content, pint's and
+    Python's versions). The folder is the platform's per-user cache folder (``platformdirs``:
+    ``~/.cache/sheetpump/pint-VERSION`` on Linux, honouring ``XDG_CACHE_HOME``), never the installed
+    package. It is used only if it can be made, is writable and (on POSIX) belongs to the user and is
+    not writable by others, since pint reads it back with ``pickle``; otherwise ``None`` (no cache).
+    """
+    folder = platformdirs.user_cache_path("sheetpump", appauthor=False) / f"pint-{pint.__version__}"
+    try:
+        folder.mkdir(mode=0o700, parents=True, exist_ok=True)
+        info = folder.stat()
+    except OSError:
+        return None
+    if not os.access(folder, os.W_OK | os.X_OK):
+        return None
+    if hasattr(os, "getuid") and (info.st_uid != os.getuid() or info.st_mode & 0o022):
+        return None
+    return folder
+
+
+def build_registry(cache_folder: Path | None = None) -> pint.UnitRegistry:
+    """pint's full default registry plus sheetpump's units (:data:`_DEFINITIONS`).
+
+    ``cache_folder`` (see :func:`registry_cache_folder`) lets pint load its parsed definitions instead
+    of parsing them again; the registry is the same either way (tests/test_startup.py compares
+    every unit). A cache that cannot be read (e.g. half written by a process that was killed) has its
+    files (pint's ``*.pickle`` and ``*.json``, nothing else) removed and the registry is built without it.
+    One difference, pint's own: a registry loaded from the cache (pint 0.25) does not restore pint's table
+    of dimensionally equivalent units, so ``get_compatible_units`` answers an empty set; sheetpump never
+    asks it (it converts through ``parse_units``, ``get_root_units`` and ``Quantity.to``).
+    """
+    try:
+        registry = pint.UnitRegistry(autoconvert_offset_to_baseunit=True, cache_folder=cache_folder)
+    except Exception:
+        if cache_folder is None:
+            raise
+        for part in (*Path(cache_folder).glob("*.pickle"), *Path(cache_folder).glob("*.json")):
+            try:
+                part.unlink(missing_ok=True)
+            except OSError:  # another process's file, or read-only: the build below still works
+                pass
+        registry = pint.UnitRegistry(autoconvert_offset_to_baseunit=True)
+    for definition in _DEFINITIONS:
+        registry.define(definition)
+    return registry
+
+
+#: The one unit registry of sheetpump. Quantities exist only at the edges.
+ureg = build_registry(registry_cache_folder())
 
 _TWO_PI = 2.0 * math.pi
 _ATMOSPHERE = 101325.0  # Pa, standard atmosphere (ISO 2533)

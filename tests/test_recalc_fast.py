@@ -244,3 +244,55 @@ def test_written_copy_holds_the_fast_values(tmp_path: Path, capsys: pytest.Captu
             assert shown == value, cell
     assert main(["recalc", str(out), "--verify"]) == 0
     assert "agree" in capsys.readouterr().out
+
+
+def test_cell_by_cell_columns_equal_the_engine(tmp_path: Path) -> None:
+    # As a script writes them (openpyxl, one formula per cell, no shared formulas): four columns of
+    # arithmetic and MIN/MAX of expressions. Rows 5-7 hold text, an empty cell and TRUE in column A, so
+    # those columns take the cell-by-cell path; the other workbook below is all numbers (vectorised).
+    def book(name: str, odd: bool) -> Path:
+        wb = openpyxl.Workbook()
+        ws = wb.active
+        ws.title = "Duty"
+        for i in range(60):
+            r = i + 1  # append fills rows 1, 2, ...
+            a: Any = 50.0 + (i * 37) % 300
+            if odd and r in (5, 6, 7):
+                a = {5: "text", 6: None, 7: True}[r]
+            ws.append([a, 5.0 + (i * 13) % 160 / 2, f"=A{r}*B{r}/600", f"=C{r}*0.9+B{r}",
+                       f"=MAX(C{r},D{r}/2,$B$2)", f"=MIN(A{r}-B{r},C{r}*2)", f"=max(c{r},-D{r})",
+                       f"=MIN(B{r},B{r})"])
+        path = tmp_path / name
+        wb.save(path)
+        return path
+
+    values = _assert_same_as_engine(book("numbers.xlsx", odd=False))
+    # From the definition of MIN (the smaller of its arguments): row 1, A=50, B=5, C=50*5/600.
+    assert values[("Duty", "F1")] == pytest.approx(min(50.0 - 5.0, 50 * 5 / 600 * 2), rel=1e-12)
+    _assert_same_as_engine(book("odd.xlsx", odd=True))
+
+
+def test_one_parse_per_relative_formula_gives_the_same_trees() -> None:
+    # Self-consistency: the parse shared through the relative text equals a parse of each formula.
+    from sheetpump.recalc_fast import UnsupportedError, _parse, _parse_cached
+
+    rng = random.Random(7)
+    shapes = ["A{r}*B{r}/600", "MAX(C{r},$D$2)*0.9+Data!C{r}", "Q1!A{r}+1", "'My sheet'!b{r}^2",
+              "SUM(A{r}:B{s})", "A0{r}+$A{r}", "A{r}&\"A{r}\"", "SP_HYDRAULIC_POWER(A{r},B$1)", "XFD{r}+1",
+              "XFE{r}+1", "A1048576+A{r}", "LOG10(A{r})", "A{r}1+TRUE"]
+
+    def outcome(parse: Any, *args: Any) -> Any:
+        try:
+            return parse(*args)
+        except UnsupportedError as exc:
+            return str(exc)
+
+    cache: dict[str, Any] = {}
+    for _ in range(400):
+        shape = rng.choice(shapes)
+        row, col = rng.randint(1, 3000), rng.randint(1, 30)
+        text = shape.format(r=row + rng.choice([-1, 0, 0, 1]) if row > 1 else row, s=row + 2)
+        direct = outcome(_parse, text, row, col)
+        cached = outcome(_parse_cached, text, row, col, cache)
+        cached = cached[0] if isinstance(cached, tuple) else cached
+        assert cached == direct, (text, row, col)

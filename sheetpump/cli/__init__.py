@@ -23,21 +23,31 @@ def _commands() -> list[str]:
 EXIT_OK, EXIT_FAIL, EXIT_INPUT = 0, 1, 2
 
 
-def build_parser() -> argparse.ArgumentParser:
+def build_parser(argv: Sequence[str] | None = None) -> argparse.ArgumentParser:
+    """The parser of every command, or, when ``argv`` starts with a command's name, of that one only.
+
+    Each command's module imports what that command needs (the recalc engine, the workbook writer ...),
+    so naming the command imports one module instead of all of them: this is most of the start-up of a
+    command. Help, a typo or no command builds them all, so usage lists every command.
+    """
+    names = _commands()
+    if argv and argv[0] in names:
+        names = [argv[0]]
     parser = argparse.ArgumentParser(
         prog="sheetpump",
         description="Evaluate hydraulic pump datasheets against a machine's duty cycle.",
     )
     parser.add_argument("--version", action="version", version=f"sheetpump {__version__}")
     sub = parser.add_subparsers(dest="command", metavar="COMMAND")
-    for name in _commands():
+    for name in names:
         importlib.import_module(f"{__name__}.{name}").register(sub)
     return parser
 
 
 def main(argv: Sequence[str] | None = None) -> int:
     """Run the command line; returns the exit code."""
-    parser = build_parser()
+    argv = sys.argv[1:] if argv is None else list(argv)
+    parser = build_parser(argv)
     try:
         args = parser.parse_args(argv)
     except SystemExit as exc:  # argparse: usage errors are exit code 2 already

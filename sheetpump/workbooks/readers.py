@@ -22,6 +22,7 @@ from __future__ import annotations
 
 import datetime as _dt
 import difflib
+import functools
 import math
 import os
 import re
@@ -36,7 +37,7 @@ from ..duty import Application, Duty, Oil
 from ..errors import InputError, Where
 from ..suction import line_from_fields
 from ..units import Kind, check_span, physical_unit, split_number, unit_factor
-from .safe import open_workbook
+from .safe import holds_formulas, open_workbook
 from .series import column_letter, match_columns, parse_header, read_series
 from .templates import (
     APPLICATION_FIELDS,
@@ -94,15 +95,26 @@ def _is_error_text(value: Any) -> bool:
 
 
 class _Book:
-    """A workbook opened twice (cached values and formulas), with the cell rules of every reader."""
+    """A workbook opened twice (cached values and formulas), with the cell rules of every reader.
+
+    The formulas are opened only when a cell has no cached value and some worksheet holds a formula
+    (:func:`~sheetpump.workbooks.safe.holds_formulas`): a filled-in template usually holds none.
+    """
 
     def __init__(self, path: str | os.PathLike[str]) -> None:
         self.path = Path(path)
         self.file = str(path)
         self.values = open_workbook(self.path, data_only=True, max_uncompressed=64 * 1024**2)
-        self.formulas = open_workbook(self.path, data_only=False, max_uncompressed=64 * 1024**2)
         self._evaluated: dict[tuple[str, str], Any] | None = None
         self._merged: dict[str, list[Any]] = {}
+
+    @functools.cached_property
+    def formulas(self) -> Any:
+        return open_workbook(self.path, data_only=False, max_uncompressed=64 * 1024**2)
+
+    @functools.cached_property
+    def holds_formulas(self) -> bool:
+        return holds_formulas(self.path)
 
     def sheet(self, name: str, *, required: bool = True) -> Any:
         names = self.values.sheetnames
@@ -139,7 +151,7 @@ class _Book:
         if cell.data_type == "e" or _is_error_text(value):
             raise InputError(f"the cell shows the error {value}", self.where(sheet, coord, field),
                              "fix the formula or enter the value")
-        if value is None:
+        if value is None and self.holds_formulas:
             raw = self.formulas[sheet.title][coord]
             if raw.data_type == "f" or (isinstance(raw.value, str) and raw.value.startswith("=")):
                 value = self._evaluate(sheet, coord, field, raw.value)

@@ -256,6 +256,27 @@ def sheet_members(path: str | os.PathLike[str]) -> dict[str, str]:
     return out
 
 
+#: The start of a formula element (``<f>``, ``<f t="shared" .../>``, ``<x:f>``) in a worksheet's XML.
+_FORMULA_ELEMENT = re.compile(rb"<(?:[A-Za-z_][\w.-]*:)?f[\s/>]")
+
+
+def holds_formulas(path: str | os.PathLike[str]) -> bool:
+    """Whether any worksheet of a checked workbook holds a formula: a byte scan, no XML parsing.
+
+    A reader that finds a cell without a cached value opens the workbook a second time for its
+    formulas; when no worksheet holds one, that cell is simply empty and the second opening is saved.
+    ``True`` whenever unsure (no relationships, a missing part, a damaged archive).
+    """
+    try:
+        members = sheet_members(path)
+        if not members:
+            return True
+        with zipfile.ZipFile(path) as archive:
+            return any(_FORMULA_ELEMENT.search(archive.read(member)) for member in members.values())
+    except Exception:  # a damaged or hostile part: the full opening decides and says what is wrong
+        return True
+
+
 _ROW_REF = re.compile(rb'\br="(\d+)"')
 # Cell references with two or three column letters (column AA or beyond), in the form spreadsheet
 # programs and libraries write (r first); single-letter columns are counted as 26 without scanning.

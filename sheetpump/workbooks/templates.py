@@ -24,8 +24,6 @@ from dataclasses import dataclass
 from pathlib import Path
 from typing import Any
 
-from xlsxwriter.utility import xl_rowcol_to_cell
-
 from .. import SAFETY_CAUTION
 from .. import units as u
 from ..errors import InputError
@@ -339,6 +337,8 @@ def write_top(sheet: Any, book: Any, title: str, instructions: str, width: int) 
 
 def _field_sheet(book: Any, name: str, fields: Sequence[Field],
                  values: Mapping[str, tuple[Any, ...]] | None = None) -> None:
+    from xlsxwriter.utility import xl_rowcol_to_cell  # here: reading a template needs no XlsxWriter
+
     sheet = book.add_worksheet(name)
     _top(sheet, book, name, 4)
     sheet.set_column(0, 0, 28)

@@ -22,10 +22,11 @@ import textwrap
 from collections.abc import Iterable, Iterator, Sequence
 from contextlib import contextmanager
 from pathlib import Path
-from typing import Any
+from typing import TYPE_CHECKING, Any
 
-import xlsxwriter
-from xlsxwriter.worksheet import Worksheet
+if TYPE_CHECKING:  # XlsxWriter itself is imported when a workbook is written (start-up of commands)
+    import xlsxwriter
+    from xlsxwriter.worksheet import Worksheet
 
 from .. import SAFETY_CAUTION_SHORT, __version__
 from ..files import atomic_path
@@ -263,6 +264,8 @@ def open_book(target: str | os.PathLike[str], title: str = "") -> Iterator[xlsxw
     The workbook has a ``styles`` attribute: a dict of :data:`STYLES` names to XlsxWriter formats.
     """
     with atomic_path(Path(target)) as tmp:
+        import xlsxwriter
+
         book = xlsxwriter.Workbook(
             str(tmp),
             {"strings_to_formulas": False, "strings_to_urls": False, "strings_to_numbers": False,

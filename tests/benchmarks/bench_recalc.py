@@ -1,4 +1,4 @@
-"""Benchmark: ``sheetpump recalc`` against LibreOffice headless on shared-formula workbooks.
+"""Benchmark: ``sheetpump recalc`` against LibreOffice headless on filled-down workbooks.
 
 Run it as a script (``python tests/benchmarks/bench_recalc.py``) or call :func:`run`, which returns one
 row per benchmark for a runner that collects all benchmarks into one table. Not a test: it times things.
@@ -6,7 +6,9 @@ row per benchmark for a runner that collects all benchmarks into one table. Not 
 Each workbook is what a spreadsheet program or XlsxWriter-style writer makes of a filled-down sheet:
 inputs in columns A (pressure, bar) and B (flow, L/min), ``C = SP_HYDRAULIC_POWER(A2,B2)`` and
 ``D = C2*0.9+B2`` stored once per column as shared formulas (``<f t="shared" ref=.. si=..>``), and a SUM
-of column D at the bottom. Both programs run as a whole process, start-up included: ``python -m
+of column D at the bottom. The cell-by-cell workbook is what a script makes with openpyxl, one formula
+text per cell and no shared formulas (:func:`cell_by_cell_book`): four columns of arithmetic and MAX/MIN
+over two input columns. Both programs run as a whole process, start-up included: ``python -m
 sheetpump recalc BOOK -o OUT`` and ``soffice --headless --convert-to xlsx`` with a fresh profile that
 forces recalculation on load (OOXMLRecalcMode=0, see tests/libreoffice.py). Each is run once to warm the
 file cache, then ``REPEATS`` times; the table shows the medians and their ratio.
@@ -30,8 +32,10 @@ sys.path.insert(0, str(ROOT))
 
 #: Timed runs of each program after one warm-up run.
 REPEATS = 5
-#: (name, formula cells, target ratio sheetpump / LibreOffice)
-CASES = [("recalc 2,000 shared-formula cells", 2_000, 1.0), ("recalc 20,000 shared-formula cells", 20_000, 2.0)]
+#: (name, workbook maker, formula cells, target ratio sheetpump / LibreOffice)
+CASES = [("recalc 2,000 shared-formula cells", "shared", 2_000, 1.0),
+         ("recalc 20,000 shared-formula cells", "shared", 20_000, 1.0),
+         ("recalc 20,000 formula cells written cell by cell (openpyxl)", "cells", 20_000, 1.0)]
 
 _CONTENT_TYPES = (
     '<?xml version="1.0" encoding="UTF-8" standalone="yes"?>\n'
@@ -99,18 +103,54 @@ def shared_formula_book(path: str | os.PathLike[str], formula_cells: int) -> Pat
     return path
 
 
+def cell_by_cell_book(path: str | os.PathLike[str], formula_cells: int) -> Path:
+    """Write a one-sheet workbook as a script does (openpyxl, a formula text in each cell, no sharing).
+
+    Columns A (pressure, bar) and B (flow, L/min) hold invented duty points; C-F hold
+    ``=A2*B2/600`` (hydraulic power, kW), ``=C2*0.9+B2``, ``=MAX(C2,D2/2)`` and ``=MIN(A2-B2,C2*2)``.
+    """
+    import openpyxl
+
+    book = openpyxl.Workbook()
+    sheet = book.active
+    sheet.title = "Duty"
+    sheet.append(["pressure", "flow", "power", "check", "peak", "floor"])
+    for i in range(max(1, formula_cells // 4)):
+        r = i + 2
+        sheet.append([50.0 + (i * 37) % 300, 5.0 + (i * 13) % 160 / 2, f"=A{r}*B{r}/600", f"=C{r}*0.9+B{r}",
+                      f"=MAX(C{r},D{r}/2)", f"=MIN(A{r}-B{r},C{r}*2)"])
+    path = Path(path)
+    book.save(path)
+    return path
+
+
+_MAKERS = {"shared": shared_formula_book, "cells": cell_by_cell_book}
+
+
+#: Python's default bytecode caching for the timed processes (a user's install has its bytecode written
+#: by pip); this project's CI sets PYTHONDONTWRITEBYTECODE, which would compile sheetpump on every run.
+_ENV = {k: v for k, v in os.environ.items() if k != "PYTHONDONTWRITEBYTECODE"}
+
+
 def _time(command: list[str], cwd: Path | None = None) -> float:
     start = time.perf_counter()
-    done = subprocess.run(command, cwd=cwd, stdin=subprocess.DEVNULL, capture_output=True, text=True)
+    done = subprocess.run(command, cwd=cwd, env=_ENV, stdin=subprocess.DEVNULL, capture_output=True, text=True)
     elapsed = time.perf_counter() - start
     if done.returncode != 0:
         raise RuntimeError(f"{' '.join(command)} failed ({done.returncode}):\n{done.stdout}\n{done.stderr}")
     return elapsed
 
 
-def _median(command: list[str], repeats: int) -> float:
-    _time(command)  # warm-up: file cache, bytecode
-    return statistics.median(_time(command) for _ in range(repeats))
+def _medians(commands: list[list[str]], repeats: int) -> list[float]:
+    """Median wall time of each command: one warm-up run each (file cache, bytecode), then ``repeats``
+    rounds in alternation, so that every command sees the same machine load."""
+    for command in commands:
+        _time(command)
+    times: list[list[float]] = [[] for _ in commands]
+    for _ in range(repeats):
+        for command, samples in zip(commands, times, strict=True):
+            samples.append(_time(command))
+    return [statistics.median(samples) for samples in times]
 
 
 def run(repeats: int = REPEATS) -> list[dict[str, Any]]:
@@ -122,16 +162,16 @@ def run(repeats: int = REPEATS) -> list[dict[str, Any]]:
     with tempfile.TemporaryDirectory(prefix="bench-recalc-") as tmp:
         folder = Path(tmp)
         profile = _make_profile(folder / "profile", "always")
-        for name, cells, target in CASES:
-            book = shared_formula_book(folder / f"book{cells}.xlsx", cells)
-            ours = _median([sys.executable, "-m", "sheetpump", "recalc", str(book), "-o",
-                            str(folder / f"out{cells}.xlsx")], repeats)
-            reference = float("nan")
+        for name, kind, cells, target in CASES:
+            book = _MAKERS[kind](folder / f"{kind}{cells}.xlsx", cells)
+            commands = [[sys.executable, "-m", "sheetpump", "recalc", str(book), "-o",
+                         str(folder / f"out-{kind}{cells}.xlsx")]]
             if soffice:
-                out_dir = folder / f"lo{cells}"
-                reference = _median(soffice_command(soffice, profile, "xlsx", out_dir, [book]), repeats)
+                commands.append(soffice_command(soffice, profile, "xlsx", folder / f"lo-{kind}{cells}", [book]))
+            times = _medians(commands, repeats)
+            ours, reference = times[0], (times[1] if soffice else float("nan"))
             rows.append({"benchmark": name, "sheetpump": ours, "reference": reference,
-                         "ratio": ours / reference, "target": target})
+                         "reference_name": "LibreOffice headless", "ratio": ours / reference, "target": target})
     return rows
 
 
