@@ -143,3 +143,17 @@ def test_a_drive_speed_typed_in_rev_s_is_echoed_as_typed(tmp_path: Path) -> None
     finding = next(f for f in json.loads(run("check", "--app", str(own), str(PUMP), "--format", "json",
                                              cwd=tmp_path).stdout)["pumps"][0]["findings"] if f["rule"] == "speed.max")
     assert "note" not in finding["application_where"] and finding["application_where"]["field"] == "press"
+
+
+def test_a_datasheet_limit_typed_in_rev_s_is_echoed_in_the_finding_and_the_cell_note(tmp_path: Path) -> None:
+    # speed_max typed as 46 rev/s (2760 rpm; 1 rev/s = 60 rpm, definition) against a drive at 1470 rpm x
+    # 2 = 2940 rpm: the finding's cell and the annotated copy's note on that cell say how it was typed.
+    pump = edit(PUMP, tmp_path / "pump.xlsx", fields={"speed_max": (46, "rev/s")})
+    app = edit(APP, tmp_path / "app.xlsx", fields={"drive_speed": (2940,)})
+    out = tmp_path / "marked.xlsx"
+    result = run("check", "--app", str(app), str(pump), "--annotate", str(out), cwd=tmp_path)
+    assert result.returncode == 1 and result.stderr == ""
+    assert "Pump!B14 (speed_max; typed as 46 rev/s)" in result.stdout
+    assert "2760 rpm" in result.stdout  # the limit itself in the report's unit
+    note = openpyxl.load_workbook(out)["Pump"]["B14"].comment.text
+    assert "speed.max" in note and note.endswith("(this cell: typed as 46 rev/s)"), note
