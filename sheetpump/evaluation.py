@@ -282,6 +282,10 @@ def evaluate_table(
             derived_error = f"{exc.argument} {exc.reason}"
     else:
         derived_error = "no complete, possible point in the table"
+    if derived is not None and not derived.value > 0:  # flow that does not rise with speed
+        derived_error = (f"the flow does not rise with the speed at low pressure (the slope gives "
+                         f"{derived.value * 1e6:.3g} cm^3/rev)")
+        derived = None
     if displacement is not None:
         used = float(displacement)
     elif derived is not None:

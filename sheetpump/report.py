@@ -486,7 +486,8 @@ def annotate(result: CheckResult, target: str | os.PathLike[str], source: str | 
             if key not in marked:  # the worse severity (sorted first) keeps its colour
                 marked[key] = (f.severity, c, [])
                 c.fill = PatternFill(fill_type="solid", start_color=FILLS[f.severity], end_color=FILLS[f.severity])
-            marked[key][2].append(f"sheetpump {f.severity}: {f.rule}\n{f.message}")
+            note = f"\n(this cell: {w.note})" if w.note else ""  # "typed as 46.7 rev/s": the unit in the cell
+            marked[key][2].append(f"sheetpump {f.severity}: {f.rule}\n{f.message}{note}")
     for _severity, c, texts in marked.values():
         c.comment = Comment("\n\n".join(texts)[:2000], "sheetpump", width=360, height=160)
     name = FINDINGS_SHEET

@@ -29,6 +29,10 @@ from sheetpump.calc import ERROR_PREFIX
 from sheetpump.catalogue import CATALOGUE
 from sheetpump.workbooks.templates import UNITS
 
+# Any RuntimeWarning (numpy's "overflow encountered in multiply", ...) fails the test: a cell function
+# never prints a warning, whatever it is given; it answers or gives a #SP! text.
+pytestmark = pytest.mark.filterwarnings("error")
+
 CAMPAIGN = os.environ.get("SHEETPUMP_FUZZ_PROFILE") == "campaign"
 # per face: 2000 per function in the suite; the campaign profile's count in a campaign
 EXAMPLES = int(os.environ.get("SHEETPUMP_FUZZ_EXAMPLES") or (settings.default.max_examples if CAMPAIGN else 1000))
@@ -194,3 +198,47 @@ def test_one_value_arguments_are_declared() -> None:
     one = {(name, a.name) for name, calc in CATALOGUE.items() for a in calc.args if a.one_value}
     assert {("SP_DERIVED_DISPLACEMENT_U", "max_pressure"), ("SP_PREDICT_FLOW", "displacement"),
             ("SP_MOTOR_SIZE", "standard")} <= one
+
+
+# -- huge and tiny values: a #SP! text naming the problem, never a warning or a wrong number ---------------
+_EXTREMES = [1e308, 1e300, 1e-300, 1e-308, 5e-324]
+
+
+def _extreme_cases() -> list[Any]:
+    return [pytest.param(name, form, id=f"{name}-{form}")
+            for name in CATALOGUE for form in ("number", "range", "array")]
+
+
+@pytest.mark.parametrize(("name", "form"), _extreme_cases())
+def test_huge_or_tiny_values_never_warn(name: str, form: str) -> None:
+    # Every argument of the example in turn set to each extreme (as a number, a 1 x 2 range, a numpy
+    # array): a finite result or an error text, and (pytestmark) no RuntimeWarning on the way.
+    import numpy as np
+    calc = CATALOGUE[name]
+    base = list(calc.example)[:len(calc.args)]
+    for i in range(len(base)):
+        if not isinstance(base[i], (int, float, list)) or isinstance(base[i], bool):
+            continue
+        for x in _EXTREMES:
+            args = list(base)
+            args[i] = {"number": x, "range": [[x, x]], "array": np.array([x, x])}[form]
+            if isinstance(base[i], list):
+                args[i] = {"number": [x] * len(base[i]), "range": [[x] * len(base[i])],
+                           "array": np.full(len(base[i]), x)}[form]
+            out = calc.cell(*args)
+            if isinstance(out, np.ndarray):
+                assert np.isfinite(out).all(), (args, out)
+            else:
+                check_result(out)
+
+
+def test_durations_whose_sum_overflows_give_a_text_not_zero() -> None:
+    # sum(P^2 t) / sum(t) with sum(t) = 2e308 (inf in floating point): numpy would divide a finite
+    # number by infinity and show 0 kW for a cycle at 1-2 kW. Definition of the RMS (IEC 60034-1 S6,
+    # from memory): the RMS lies between the smallest and the largest power, never 0 here.
+    for name in ("SP_RMS_POWER", "SP_MEAN_POWER", "SP_CYCLE_ENERGY"):
+        args = [[1, 2], [1e308, 1e308]] + ([0.9] if name == "SP_CYCLE_ENERGY" else [])
+        out = getattr(cells, name)(*args)
+        assert isinstance(out, str) and out.startswith(ERROR_PREFIX) and "too large" in out, (name, out)
+    # and a sane cycle still computes: sqrt((1 * 10 + 4 * 30) / 40) kW (same definition)
+    assert cells.SP_RMS_POWER([1, 2], [10, 30]) == pytest.approx(math.sqrt(130 / 40), rel=1e-12)

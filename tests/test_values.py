@@ -234,3 +234,69 @@ def test_a_huge_flow_in_the_performance_table_names_its_cell(tmp_path):
         read_datasheet(path)
     assert info.value.where.cell == "B7"
     assert "0 to" not in info.value.message and "1e-06 to 100000 L/min" in info.value.message
+
+
+# --- every alias of issue 12 §1 through both faces: a cell function and a workbook field -----------------
+# (alias, pint's unambiguous spelling, a cell function computing value -> SI from it, a workbook field)
+_FACES = {
+    # hydraulic power in W of p x 60 L/min (1e-3 m³/s): p [Pa] = P / 1e-3
+    "pressure": (lambda v: cells.SP_HYDRAULIC_POWER(f"7.5 {v}", 60, "W") / 1e-3, "pressure_continuous"),
+    # hydraulic power in W of 1 bar (1e5 Pa) x q: q [m³/s] = P / 1e5
+    "flow": (lambda v: cells.SP_HYDRAULIC_POWER(1, f"7.5 {v}", "W") / 1e5, None),
+    # the result unit: 100 kW asked in the alias
+    "power": (lambda v: 1e5 / cells.SP_HYDRAULIC_POWER(100, 600, v) * 7.5, None),
+    # geometric flow in m³/s at 60 rpm (1 rev/s): V [m³/rev] = Q
+    "displacement": (lambda v: cells.SP_GEOMETRIC_FLOW(f"7.5 {v}", 60, "m^3/s"), "displacement"),
+    # shaft power in W at 60 rpm: T [N·m] = P / 2π
+    "torque": (lambda v: cells.SP_SHAFT_POWER(f"7.5 {v}", 60, "W") / (2 * 3.141592653589793), "torque_max"),
+    # dynamic viscosity in Pa·s at 1000 kg/m³: ν [m²/s] = μ / 1000
+    "viscosity": (lambda v: cells.SP_DYNAMIC_VISCOSITY(f"7.5 {v}", 1000, "Pa*s") / 1000, "viscosity_max"),
+}
+
+
+@pytest.mark.parametrize(("alias", "face", "reference"), [
+    ("PSI", "pressure", "psi"), ("psi", "pressure", "psi"), ("Bar", "pressure", "bar"), ("barg", "pressure", "bar"),
+    ("psig", "pressure", "psi"),
+    ("GPM", "flow", "gallon/minute"), ("gpm", "flow", "gallon/minute"), ("LPM", "flow", "liter/minute"),
+    ("lpm", "flow", "liter/minute"), ("l/min", "flow", "liter/minute"),
+    ("KW", "power", "kilowatt"), ("kw", "power", "kilowatt"), ("HP", "power", "horsepower"),
+    ("hp", "power", "horsepower"),
+    ("cc", "displacement", "centimeter**3"), ("ccm", "displacement", "centimeter**3"),
+    ("cc/rev", "displacement", "centimeter**3"), ("cm3/rev", "displacement", "centimeter**3"),
+    ("in3/rev", "displacement", "inch**3"), ("cu in/rev", "displacement", "inch**3"),
+    ("Nm", "torque", "newton*meter"), ("N.m", "torque", "newton*meter"), ("lb-ft", "torque", "force_pound*foot"),
+    ("lbf-ft", "torque", "force_pound*foot"), ("ft-lb", "torque", "force_pound*foot"),
+    ("lb-in", "torque", "force_pound*inch"), ("in-lb", "torque", "force_pound*inch"),
+    ("cSt", "viscosity", "centistokes"), ("mm2/s", "viscosity", "millimeter**2/second"),
+])
+def test_each_trade_alias_reads_the_same_in_a_cell_and_in_a_workbook_field(alias, face, reference):
+    # pint (an independent registry) converts the unambiguous spelling: the reference
+    expected = REF.Quantity(7.5, reference).to_base_units().magnitude
+    through_cell, field = _FACES[face]
+    assert through_cell(alias) == pytest.approx(expected, rel=1e-12), "cell"
+    if field is not None:  # the value in its cell, the alias in the unit cell beside it
+        assert convert(FIELDS[field], 7.5, alias, Where(cell="B9")) == pytest.approx(expected, rel=1e-12), "field"
+        assert convert(FIELDS[field], f"7.5 {alias}", None, Where(cell="B9")) == pytest.approx(expected, rel=1e-12)
+
+
+@pytest.mark.parametrize(("alias", "reference"), [("°C", "degC"), ("C", "degC"), ("degC", "degC"), ("°F", "degF"),
+                                                  ("F", "degF")])
+def test_temperature_aliases_in_a_workbook_field(alias, reference):
+    expected = REF.Quantity(40.0, reference).to("kelvin").magnitude  # pint, offset units
+    assert convert(FIELDS["temperature_max"], 40, alias, Where(cell="B9")) == pytest.approx(expected, abs=1e-9)
+
+
+@pytest.mark.parametrize(("alias", "reference"), [("bara", "bar"), ("psia", "psi"), ("BARA", "bar")])
+def test_absolute_pressure_aliases_in_a_workbook_field(alias, reference):
+    expected = REF.Quantity(0.8, reference).to("pascal").magnitude
+    assert convert(FIELDS["inlet_pressure_min"], 0.8, alias, Where(cell="B9")) == pytest.approx(expected, rel=1e-12)
+
+
+@pytest.mark.parametrize(("spelling", "candidates"), [("Mpa", ("'MPa' (megapascal)", "'mPa' (millipascal)")),
+                                                      ("MBAR", ("'mbar' (millibar)", "'Mbar' (megabar)"))])
+def test_an_ambiguous_spelling_is_refused_naming_the_candidates_in_both_faces(spelling, candidates):
+    out = cells.SP_HYDRAULIC_POWER(f"7.5 {spelling}", 60)
+    assert out.startswith("#SP! pressure:") and all(c in out for c in candidates), out
+    with pytest.raises(InputError) as info:
+        convert(FIELDS["pressure_continuous"], 7.5, spelling, Where(cell="B9"), Where(cell="C9"))
+    assert info.value.where.cell == "C9" and all(c in info.value.message for c in candidates)

@@ -42,4 +42,4 @@ declare(Calculation(
     (Arg("nu", VISCOSITY, "Kinematic viscosity"), Arg("density", DENSITY, "Oil density at the same temperature")),
     DYN_VISCOSITY,
     "Dynamic viscosity: kinematic viscosity x density.",
-    example=("46 cSt", 870)))
+    example=("46 cSt", 870), plain_scalars=True))

@@ -84,7 +84,7 @@ declare(Calculation(
     "SP_POWER_LOSS", pump.power_loss,
     (Arg("input_power", POWER, "Input power at the shaft"), _P, _Q), POWER,
     "Power turned into heat: input power less pressure x flow.",
-    example=(16.2, 210, 39.5)))
+    example=(16.2, 210, 39.5), plain_scalars=True))
 declare(Calculation(
     "SP_PULSATION_FREQ", pump.pulsation_frequency,
     (Arg("teeth", NUMBER, "Number of teeth on one gear"), _N,

@@ -171,6 +171,10 @@ def _lstsq(columns: list[np.ndarray], y: np.ndarray, what: str) -> tuple[np.ndar
     The covariance is s²·(AᵀA)⁻¹ with s² = RSS/(N − p); it is NaN when no point is redundant.
     """
     a = np.column_stack(columns)
+    # LAPACK given a NaN or an infinity prints its own complaint on standard output (it once made
+    # --format json invalid): such a table is refused here, before LAPACK sees it.
+    if not (np.isfinite(a).all() and np.isfinite(y).all()):
+        raise ModelError(what, "cannot be fitted: a term of the model is too large or too small to compute")
     # Columns differ by many orders of magnitude (rev/s against Pa); scale them for a sound rank.
     scale = np.abs(a).max(axis=0)
     scale[scale == 0] = 1.0

@@ -813,7 +813,13 @@ def read_application(path: str | os.PathLike[str]) -> Application:
                                  "give the path relative to this workbook") from None
             raise
     else:
-        duty = _segments(book, duty_sheet, defaults, wraps)
+        # A segment that takes a machine value says so, with how that value was typed ("speed: drive_speed,
+        # typed as 24.5 rev/s"), so a finding on the segment echoes the unit the user wrote.
+        taken = {column: f"{column.replace('_', ' ')}: {key}, {fields.notes[key]}"
+                 for column, key in (("speed", "drive_speed"), ("temperature", "oil_temperature"),
+                                     ("inlet_pressure", "inlet_pressure"))
+                 if defaults[column] is not None and fields.notes.get(key)}
+        duty = _segments(book, duty_sheet, defaults, wraps, taken)
     kw = {fields.fields[k].name: v for k, v in got.items() if v is not None and fields.fields[k].name in _APP_ATTRS}
     kw.update(speed_min=low, speed_max=high, suction=suction, motor_starting_torque=got["motor_starting_torque"])
     sources = fields.sources(got)
@@ -874,7 +880,10 @@ def _oil(got: dict[str, Any], w: Callable[[str], Where]) -> Oil:
     return Oil(nu1, t1, nu2, t2, density, None, None, name)
 
 
-def _segments(book: _Book, sheet: Any, defaults: dict[str, float | None], wraps: bool) -> Duty:
+def _segments(book: _Book, sheet: Any, defaults: dict[str, float | None], wraps: bool,
+              taken: dict[str, str] | None = None) -> Duty:
+    """The Duty sheet's segments; ``taken``: per column, the note for a row whose empty cell takes the
+    machine's value (the note goes into that row's place, shown with every finding on the segment)."""
     rows, letters, header = _read_table(book, sheet, DUTY_COLUMNS)
     if not rows:
         raise InputError("the duty is empty: no segments", Where(book.file, sheet.title, f"A{header + 1}"),
@@ -892,8 +901,10 @@ def _segments(book: _Book, sheet: Any, defaults: dict[str, float | None], wraps:
                     hints["inlet_pressure"], "positive")
     first, last = _span(letters)
     names = tuple(row.get("name") or f"row {r}" for r, row in rows)
-    where_rows = tuple(Where(book.file, sheet.title, f"{first}{r}:{last}{r}", name)
-                       for (r, _), name in zip(rows, names, strict=True))
+    taken = taken or {}
+    where_rows = tuple(Where(book.file, sheet.title, f"{first}{r}:{last}{r}", name,
+                             "; ".join(note for column, note in taken.items() if row.get(column) is None) or None)
+                       for (r, row), name in zip(rows, names, strict=True))
     return Duty(duration=duration, pressure=pressure, flow=flow, speed=speed, temperature=temperature,
                 inlet_pressure=inlet, names=names, wraps=wraps, source="segments", rows=where_rows,
                 columns=letters, where=Where(book.file, sheet.title))
