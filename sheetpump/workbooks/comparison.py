@@ -38,6 +38,7 @@ from ..files import sha256
 from ..physics import drive, fluid, pump
 from ..units import (
     DISPLACEMENT,
+    EFFICIENCY,
     ENERGY,
     FLOW,
     MASS,
@@ -369,7 +370,7 @@ def _summary_rows(comp: Comparison, units: str, duty_refs: list[dict[str, str]],
         ("rms_power", f"RMS input power [{u(POWER)}]", POWER, "rms_power"),
         ("peak_torque", f"peak torque [{u(TORQUE)}]", TORQUE, "peak_torque"),
         ("mean_loss", f"pump power loss, mean [{u(POWER)}]", POWER, "mean_power_loss"),
-        ("mean_surplus", f"surplus flow over the relief valve or a throttle, mean [{u(POWER)}]", POWER,
+        ("mean_surplus", f"surplus flow heat, mean [{u(POWER)}]", POWER,
          "mean_surplus_heat"),
         ("mean_heat", f"heat into the oil, mean [{u(POWER)}] (pump loss + surplus)", POWER, "mean_heat"),
     ):
@@ -467,6 +468,10 @@ def _summary(book: Any, comp: Comparison, units: str, duty_refs: list[dict[str, 
             edge = {"left": 1, "left_color": "#BFBFBF"}
             if isinstance(value, (int, float)) and not isinstance(value, bool):
                 fmt = cell_format(book, style, num_format=num or number_format([value]), align="right", **edge)
+            elif numeric:
+                # a text in a row of numbers ("not ranked" beside a rank) stands right like them
+                fmt = cell_format(book, style, "wrap", align="right", **edge)
+                lines = max(lines, text_lines(value, cand_w - 2))
             else:
                 fmt = cell_format(book, style, "wrap", indent=1, **edge)
                 lines = max(lines, text_lines(value, cand_w - 2))
@@ -717,8 +722,10 @@ def _findings(book: Any, comp: Comparison, units: str, paper: str, base: str) ->
     small = {"font_size": 9}
     rows: list[list[Any]] = []
     severities: list[str] = []
+    kinds: list[Kind | None] = []
     for cand in comp.candidates:
         for fi in cand.result.findings:
+            kinds.append(fi.kind)
             measured, limit = fi.measured, fi.limit
             if fi.kind is not None and isinstance(measured, float):
                 measured = float(from_si(measured, fi.kind, fi.unit or None))
@@ -745,8 +752,11 @@ def _findings(book: Any, comp: Comparison, units: str, paper: str, base: str) ->
                 fmt = cell_format(book, severity, **small)
             elif head == "margin":
                 fmt = cell_format(book, num_format=SIGNED_PCT, **small)
+            elif head == "segments outside":  # centred: never runs into the text of the next column
+                fmt = cell_format(book, num_format="0", align="center", **small)
             elif isinstance(v, (int, float)) and not isinstance(v, bool):
-                fmt = cell_format(book, num_format="0" if head == "segments outside" else num, **small)
+                # a share (of the cycle) as a percentage, like the margins
+                fmt = cell_format(book, num_format=PCT if kinds[i - 1] is EFFICIENCY else num, **small)
             else:
                 fmt = text
                 if wrap:
