@@ -245,3 +245,15 @@ def test_a_bigger_motor_on_the_same_light_load_costs_energy_in_the_comparison():
     assert bigger.electrical_energy_per_cycle > usual.electrical_energy_per_cycle
     full_load = [c.result.drive.energy_per_cycle / c.motor.efficiency for c in (usual, bigger)]
     assert full_load[1] < full_load[0]
+
+
+def test_the_rules_command_says_when_a_rule_is_not_checked(capsys):
+    # issue 14 §1: the list of rules says which can be not checked (as the README's table does)
+    from sheetpump.checks import NOT_CHECKED_WHEN
+
+    assert main(["rules"]) == 0
+    out = capsys.readouterr().out
+    for rule in RULES:
+        assert re.search(rf"^{re.escape(rule)}\s", out, re.M), rule
+    assert out.count("not checked when:") == len(NOT_CHECKED_WHEN)
+    assert "not checked when: no shaft torque limit" in out
