@@ -22,6 +22,7 @@ from sheetpump.cli import main
 from sheetpump.physics import drive
 from sheetpump.report import FILLS, FINDINGS_SHEET
 from sheetpump.workbooks.writer import STYLES
+from tests import libreoffice as lo
 
 #: The ratings the issue blanks: torque limit, inlet limits, temperature range, cleanliness, rotation.
 BLANKED = ("torque_max", "inlet_pressure_min", "inlet_pressure_max", "temperature_min", "temperature_max",
@@ -257,3 +258,56 @@ def test_the_rules_command_says_when_a_rule_is_not_checked(capsys):
         assert re.search(rf"^{re.escape(rule)}\s", out, re.M), rule
     assert out.count("not checked when:") == len(NOT_CHECKED_WHEN)
     assert "not checked when: no shaft torque limit" in out
+
+
+def test_the_duty_sheet_shows_the_heat_in_its_parts_as_live_formulas(demo_run):
+    # issue 14 §5 on the Duty sheets: surplus flow heat = (delivered − required) x the pump's pressure,
+    # P[kW] = p[bar]·Q[L/min]/600 (DESIGN §4, common practice); heat into the oil = power loss + surplus
+    formulas = openpyxl.load_workbook(demo_run.comparison)["Duty 1"]
+    values = openpyxl.load_workbook(demo_run.comparison, data_only=True)["Duty 1"]
+    head = [c.value for c in values[4]]
+    col = {h.split(" [")[0]: i for i, h in enumerate(head) if h}
+    rows = [r for r in values.iter_rows(min_row=5) if r[0].value == "hold"]
+    assert rows
+    r = rows[0]
+    p, qd, qr = (r[col[k]].value for k in ("pressure", "delivered flow", "required flow"))
+    surplus = r[col["surplus flow heat"]]
+    assert surplus.value == pytest.approx(max(qd - qr, 0.0) * p / 600, rel=1e-9)
+    assert str(formulas.cell(surplus.row, surplus.column).value).startswith("=MAX(")
+    assert r[col["heat into the oil"]].value == pytest.approx(r[col["power loss"]].value + surplus.value, rel=1e-12)
+    # and the heat never exceeds the power drawn (energy balance; the surplus leaves at the pump's pressure)
+    assert r[col["heat into the oil"]].value < r[col["input power"]].value
+
+
+@lo.needs_soffice
+@pytest.mark.libreoffice
+def test_a_throttles_surplus_heat_recomputes_in_libreoffice(tmp_path):
+    # A throttle at a stated 150 bar: the surplus flow crosses it where the duty's pressure is lower, the
+    # pump's pressure where higher. LibreOffice Calc, recomputing the duty sheet's live formulas, is the
+    # outside reference; the figures by hand: (Q_delivered − Q_required)·max(p, 150 bar)/600 [kW]
+    # (P[kW] = p[bar]·Q[L/min]/600, DESIGN §4).
+    import numpy as np
+
+    from sheetpump.comparison import compare
+    from sheetpump.datasheet import Datasheet
+    from sheetpump.duty import Application, Duty, Oil
+    from sheetpump.workbooks.comparison import write_comparison
+
+    duty = Duty(duration=np.array([20.0, 10.0]), pressure=np.array([100e5, 200e5]),
+                flow=np.array([30 / 60000, 20 / 60000]), speed=np.full(2, 25.0), temperature=np.full(2, 323.15),
+                inlet_pressure=np.full(2, 1e5), names=("approach", "press"))
+    app = Application("invented throttled press", duty, Oil(46e-6, 313.15, 6.8e-6, 373.15), relief_setting=220e5,
+                      surplus_pressure=150e5)
+    pump = Datasheet("Invented", "T-28", 28e-6, 8.0, 50.0, 250e5, 280e5, volumetric_efficiency=0.94,
+                     total_efficiency=0.85)
+    path = tmp_path / "throttled.xlsx"
+    write_comparison(path, compare([pump], app))
+    q = 28 * 1500 / 1000 * 0.94  # delivered [L/min]: V·n·η_v
+    by_hand = [(q - 30) * 150 / 600, (q - 20) * 200 / 600]
+    stored = openpyxl.load_workbook(path, data_only=True)["Duty 1"]
+    col = next(c.column for c in stored[4] if str(c.value).startswith("surplus flow heat"))
+    cells = [stored.cell(5 + i, col) for i in range(2)]
+    assert [c.value for c in cells] == pytest.approx(by_hand, rel=1e-9)
+    recomputed = lo.recalculated_values(path, formulas_only=False)
+    for c in cells:
+        assert recomputed["Duty 1", c.coordinate] == pytest.approx(c.value, rel=1e-9)

@@ -141,7 +141,7 @@ _DUTY_COLUMNS: tuple[tuple[str, str, Kind | None, str | None, bool], ...] = (
     ("flow_margin", "flow margin", None, "spct", True),
     ("energy", "energy [Wh]", None, None, True),
     # heat into the oil: the pump's loss plus the surplus flow at the pressure it crosses
-    ("surplus", "surplus flow heat [{}]", POWER, None, False),
+    ("surplus", "surplus flow heat [{}]", POWER, None, True),
     ("heat", "heat into the oil [{}]", POWER, None, True),
 )
 _DUTY_COL = {key: i for i, (key, *_rest) in enumerate(_DUTY_COLUMNS)}
@@ -173,6 +173,7 @@ def _duty_sheet(book: Any, name: str, candidate: Candidate, units: str, paper: s
         shown["flow_margin"] = np.where(shown["required"] > 0, shown["delivered"] / shown["required"] - 1.0, np.nan)
     shown["energy"] = shown["input_power"] * power_si_per_display * shown["duration"] * wh_per_j
     shown["heat"] = shown["loss"] + shown["surplus"]
+    throttle = _show(app.surplus_pressure, PRESSURE, units)
     headers, widths, formats = [], [], []
     for key, head, kind, num, _formula in _DUTY_COLUMNS:
         text = head.format(u[kind]) if kind is not None else head
@@ -214,6 +215,14 @@ def _duty_sheet(book: Any, name: str, candidate: Candidate, units: str, paper: s
             write_value(sheet, r, _DUTY_COL["flow_margin"], _NO_FLOW, cell_format(book, align="right"))
         write_formula(sheet, r, _DUTY_COL["energy"], f"={pin}*{t}*{power_si_per_display * wh_per_j!r}",
                       float(shown["energy"][i]), formats[_DUTY_COL["energy"]])
+        # the surplus flow leaves at the pump's pressure, or at a stated throttle's where the duty's is lower
+        crossing = p if throttle is None else f"MAX({p},{throttle!r})"
+        surplus = float(shown["surplus"][i])
+        if note or not math.isfinite(surplus):  # a bin's mean surplus is not its mean flows' surplus
+            write_value(sheet, r, _DUTY_COL["surplus"], surplus, formats[_DUTY_COL["surplus"]])
+        else:
+            write_formula(sheet, r, _DUTY_COL["surplus"], f"=MAX({q}-{qr},0)*{crossing}*{hyd!r}", surplus,
+                          formats[_DUTY_COL["surplus"]])
         write_formula(sheet, r, _DUTY_COL["heat"], f"={cell(r, 'loss')}+{cell(r, 'surplus')}",
                       float(shown["heat"][i]), formats[_DUTY_COL["heat"]])
         if "pressure_max" in cols:
