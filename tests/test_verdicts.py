@@ -308,6 +308,8 @@ def test_a_throttles_surplus_heat_recomputes_in_libreoffice(tmp_path):
     col = next(c.column for c in stored[4] if str(c.value).startswith("surplus flow heat"))
     cells = [stored.cell(5 + i, col) for i in range(2)]
     assert [c.value for c in cells] == pytest.approx(by_hand, rel=1e-9)
+    settings = {r[0].value: r[1].value for r in openpyxl.load_workbook(path)["Assumptions"].iter_rows() if r[0].value}
+    assert settings["surplus flow to tank over a throttle at [bar]"] == pytest.approx(150.0)
     recomputed = lo.recalculated_values(path, formulas_only=False)
     for c in cells:
         assert recomputed["Duty 1", c.coordinate] == pytest.approx(c.value, rel=1e-9)

@@ -798,6 +798,9 @@ def _assumptions(book: Any, comp: Comparison, inputs: Sequence[str | os.PathLike
         ("application", app.name, None),
         ("relief-valve setting [bar]", float(from_si(app.relief_setting, PRESSURE, "bar")), "#,##0.#"),
         ("overshoot allowed", app.overshoot, "0.#%"),
+        ("surplus flow to tank over a throttle at [bar]",
+         "none stated: at the pump's pressure" if app.surplus_pressure is None
+         else float(from_si(app.surplus_pressure, PRESSURE, "bar")), "#,##0.#"),
         ("cycles per hour", app.cycles_per_hour, "#,##0.##"),
         ("hours per year", app.hours_per_year, "#,##0"),
         (f"energy price [{app.currency}/kWh]", app.energy_price, "#,##0.00##"),
