@@ -245,7 +245,7 @@ class DriveFigures:
 
     @property
     def mean_heat(self) -> float:
-        """Heat into the oil, time mean [W]: the pump's own loss plus the surplus over the relief or throttle."""
+        """Heat into the oil, time mean [W]: the pump's own loss plus the surplus flow at the pressure it crosses."""
         return self.mean_power_loss + self.mean_surplus_heat
 
 

@@ -17,9 +17,10 @@ Ranking: candidates whose verdict is ``pass`` or ``warn`` are ranked by cost ove
 fails a rule is not ranked. A candidate without a price is ranked after those with one, and says so.
 
 Heat into the oil has one meaning everywhere: the pump's own power loss plus the surplus flow (delivered
-beyond what the machine takes) at the pressure it crosses to tank — the relief setting, or a throttle's
-stated pressure (:class:`sheetpump.checks.DriveFigures`, ``mean_heat``); a fixed pump at fixed speed has
-nowhere else to put it.
+beyond what the machine takes) at the pressure it leaves the pump at — each segment's pump pressure (the
+duty's pressure; the relief setting where the duty runs at it), or a throttle's stated pressure where the
+duty's is lower (:class:`sheetpump.checks.DriveFigures`, ``mean_heat``); a fixed pump at fixed speed has
+nowhere else to put it, and the heat never exceeds the power drawn.
 """
 
 from __future__ import annotations
@@ -69,7 +70,7 @@ class Candidate:
 
     @property
     def surplus_heat(self) -> float:
-        """The surplus flow over the relief valve or a throttle, time mean [W]."""
+        """The surplus flow to tank at the pressure it crosses (``drive.surplus_path``), time mean [W]."""
         return self.result.drive.mean_surplus_heat
 
     @property

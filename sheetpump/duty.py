@@ -78,7 +78,7 @@ class Application:
     oil: Oil
     relief_setting: float  # [Pa]
     overshoot: float = 0.1  # relief-valve pressure overshoot to allow [-], e.g. 0.1 for 10 %
-    # pressure the surplus flow crosses to tank when not the relief setting: a throttle or bypass [Pa]
+    # pressure of a throttle or bypass the surplus flow crosses to tank [Pa]; None: the pump's pressure
     surplus_pressure: float | None = None
     speed_min: float | None = None  # drive speed range [rev/s]; None: the duty's speeds
     speed_max: float | None = None

@@ -28,6 +28,8 @@ def run(args: argparse.Namespace) -> int:
         width = max(len(r) for r in RULES)
         for rule, text in RULES.items():
             print(f"{rule:<{width}}  {text}")
+            if rule in NOT_CHECKED_WHEN:  # the state a rule takes when the datasheet does not state enough
+                print(f"{'':<{width}}  not checked when: {_not_checked(rule)}")
     return 0
 
 

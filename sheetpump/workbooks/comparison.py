@@ -39,6 +39,7 @@ from ..physics import drive, fluid, pump
 from ..units import (
     ABS_PRESSURE,
     DISPLACEMENT,
+    EFFICIENCY,
     ENERGY,
     FLOW,
     MASS,
@@ -141,7 +142,7 @@ _DUTY_COLUMNS: tuple[tuple[str, str, Kind | None, str | None, bool], ...] = (
     ("flow_margin", "flow margin", None, "spct", True),
     ("energy", "energy [Wh]", None, None, True),
     # heat into the oil: the pump's loss plus the surplus flow at the pressure it crosses
-    ("surplus", "surplus flow heat [{}]", POWER, None, False),
+    ("surplus", "surplus flow heat [{}]", POWER, None, True),
     ("heat", "heat into the oil [{}]", POWER, None, True),
 )
 _DUTY_COL = {key: i for i, (key, *_rest) in enumerate(_DUTY_COLUMNS)}
@@ -173,6 +174,7 @@ def _duty_sheet(book: Any, name: str, candidate: Candidate, units: str, paper: s
         shown["flow_margin"] = np.where(shown["required"] > 0, shown["delivered"] / shown["required"] - 1.0, np.nan)
     shown["energy"] = shown["input_power"] * power_si_per_display * shown["duration"] * wh_per_j
     shown["heat"] = shown["loss"] + shown["surplus"]
+    throttle = _show(app.surplus_pressure, PRESSURE, units)
     headers, widths, formats = [], [], []
     for key, head, kind, num, _formula in _DUTY_COLUMNS:
         text = head.format(u[kind]) if kind is not None else head
@@ -214,6 +216,14 @@ def _duty_sheet(book: Any, name: str, candidate: Candidate, units: str, paper: s
             write_value(sheet, r, _DUTY_COL["flow_margin"], _NO_FLOW, cell_format(book, align="right"))
         write_formula(sheet, r, _DUTY_COL["energy"], f"={pin}*{t}*{power_si_per_display * wh_per_j!r}",
                       float(shown["energy"][i]), formats[_DUTY_COL["energy"]])
+        # the surplus flow leaves at the pump's pressure, or at a stated throttle's where the duty's is lower
+        crossing = p if throttle is None else f"MAX({p},{throttle!r})"
+        surplus = float(shown["surplus"][i])
+        if note or not math.isfinite(surplus):  # a bin's mean surplus is not its mean flows' surplus
+            write_value(sheet, r, _DUTY_COL["surplus"], surplus, formats[_DUTY_COL["surplus"]])
+        else:
+            write_formula(sheet, r, _DUTY_COL["surplus"], f"=MAX({q}-{qr},0)*{crossing}*{hyd!r}", surplus,
+                          formats[_DUTY_COL["surplus"]])
         write_formula(sheet, r, _DUTY_COL["heat"], f"={cell(r, 'loss')}+{cell(r, 'surplus')}",
                       float(shown["heat"][i]), formats[_DUTY_COL["heat"]])
         if "pressure_max" in cols:
@@ -372,7 +382,7 @@ def _summary_rows(comp: Comparison, units: str, duty_refs: list[dict[str, str]],
         ("rms_power", f"RMS input power [{u(POWER)}]", POWER, "rms_power"),
         ("peak_torque", f"peak torque [{u(TORQUE)}]", TORQUE, "peak_torque"),
         ("mean_loss", f"pump power loss, mean [{u(POWER)}]", POWER, "mean_power_loss"),
-        ("mean_surplus", f"surplus flow over the relief valve or a throttle, mean [{u(POWER)}]", POWER,
+        ("mean_surplus", f"surplus flow heat, mean [{u(POWER)}]", POWER,
          "mean_surplus_heat"),
         ("mean_heat", f"heat into the oil, mean [{u(POWER)}] (pump loss + surplus)", POWER, "mean_heat"),
     ):
@@ -470,6 +480,10 @@ def _summary(book: Any, comp: Comparison, units: str, duty_refs: list[dict[str, 
             edge = {"left": 1, "left_color": "#BFBFBF"}
             if isinstance(value, (int, float)) and not isinstance(value, bool):
                 fmt = cell_format(book, style, num_format=num or number_format([value]), align="right", **edge)
+            elif numeric:
+                # a text in a row of numbers ("not ranked" beside a rank) stands right like them
+                fmt = cell_format(book, style, "wrap", align="right", **edge)
+                lines = max(lines, text_lines(value, cand_w - 2))
             else:
                 fmt = cell_format(book, style, "wrap", indent=1, **edge)
                 lines = max(lines, text_lines(value, cand_w - 2))
@@ -766,8 +780,10 @@ def _findings(book: Any, comp: Comparison, units: str, paper: str, base: str) ->
     small = {"font_size": 9}
     rows: list[list[Any]] = []
     severities: list[str] = []
+    kinds: list[Kind | None] = []
     for cand in comp.candidates:
         for fi in cand.result.findings:
+            kinds.append(fi.kind)
             measured, limit = fi.measured, fi.limit
             if fi.kind is not None and isinstance(measured, float):
                 measured = float(from_si(measured, fi.kind, fi.unit or None))
@@ -794,8 +810,11 @@ def _findings(book: Any, comp: Comparison, units: str, paper: str, base: str) ->
                 fmt = cell_format(book, severity, **small)
             elif head == "margin":
                 fmt = cell_format(book, num_format=SIGNED_PCT, **small)
+            elif head == "segments outside":  # centred: never runs into the text of the next column
+                fmt = cell_format(book, num_format="0", align="center", **small)
             elif isinstance(v, (int, float)) and not isinstance(v, bool):
-                fmt = cell_format(book, num_format="0" if head == "segments outside" else num, **small)
+                # a share (of the cycle) as a percentage, like the margins
+                fmt = cell_format(book, num_format=PCT if kinds[i - 1] is EFFICIENCY else num, **small)
             else:
                 fmt = text
                 if wrap:
@@ -828,6 +847,9 @@ def _assumptions(book: Any, comp: Comparison, inputs: Sequence[str | os.PathLike
         ("application", app.name, None),
         ("relief-valve setting [bar]", float(from_si(app.relief_setting, PRESSURE, "bar")), "#,##0.#"),
         ("overshoot allowed", app.overshoot, "0.#%"),
+        ("surplus flow to tank over a throttle at [bar]",
+         "none stated: at the pump's pressure" if app.surplus_pressure is None
+         else float(from_si(app.surplus_pressure, PRESSURE, "bar")), "#,##0.#"),
         ("cycles per hour", app.cycles_per_hour, "#,##0.##"),
         ("hours per year", app.hours_per_year, "#,##0"),
         (f"energy price [{app.currency}/kWh]", app.energy_price, "#,##0.00##"),
