@@ -330,7 +330,8 @@ class _Fields:
         return si
 
     def sources(self, got: dict[str, Any]) -> dict[str, Where]:
-        return {self.fields[k].name: self.where(k) for k, v in got.items() if v is not None}
+        """Where each field was read; an empty field whose row exists too (the cell to fill)."""
+        return {self.fields[k].name: self.where(k) for k, v in got.items() if v is not None or k in self.cells}
 
 
 def _text(value: Any) -> str:
