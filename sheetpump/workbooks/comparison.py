@@ -925,6 +925,17 @@ def _assumptions(book: Any, comp: Comparison, inputs: Sequence[str | os.PathLike
     page_setup(sheet, app.name, paper=paper, landscape=False, area=(0, 0, r, 1))
 
 
+def print_options(units: str, paper: str | None, app: Any) -> str:
+    """The paper a workbook for ``app`` prints on (``paper``, else the application's ``paper_size``, else
+    A4), with ``units`` checked; ValueError for an unknown display system or paper."""
+    if units not in DISPLAY_UNITS:
+        raise ValueError(f"units must be one of {sorted(DISPLAY_UNITS)}")
+    paper = paper or getattr(app, "paper_size", None) or "A4"
+    if paper not in PAPER_SIZES:
+        raise ValueError(f"paper must be one of {sorted(PAPER_SIZES)}")
+    return paper
+
+
 def write_comparison(target: str | os.PathLike[str], comp: Comparison,
                      inputs: Sequence[str | os.PathLike[str]] = (), units: str = "metric",
                      paper: str | None = None) -> Path:
@@ -944,11 +955,7 @@ def write_comparison(target: str | os.PathLike[str], comp: Comparison,
     paper : str, optional
         ``"A4"`` or ``"Letter"``; default the application's ``paper_size``, else A4.
     """
-    if units not in DISPLAY_UNITS:
-        raise ValueError(f"units must be one of {sorted(DISPLAY_UNITS)}")
-    paper = paper or getattr(comp.application, "paper_size", None) or "A4"
-    if paper not in PAPER_SIZES:
-        raise ValueError(f"paper must be one of {sorted(PAPER_SIZES)}")
+    paper = print_options(units, paper, comp.application)
     base = str(Path(target).resolve().parent)
     with open_book(target, title=f"Pump comparison: {comp.application.name}") as book:
         summary_placeholder = book.add_worksheet("Summary")

@@ -29,9 +29,9 @@ from ..comparison import Candidate
 from ..files import sha256
 from ..selection import SLIP, STANDARD_POLES, Selection, worst
 from ..units import DISPLACEMENT, POWER, from_si
+from .comparison import print_options
 from .writer import (
     LINE_HEIGHT,
-    PAPER_SIZES,
     SIGNED_PCT,
     cell_format,
     display_path,
@@ -77,12 +77,8 @@ def write_selection(target: str | os.PathLike[str], sel: Selection, inputs: Sequ
     paper : str, optional
         ``"A4"`` or ``"Letter"``; default the application's ``paper_size``, else A4.
     """
-    if units not in DISPLAY_UNITS:
-        raise ValueError(f"units must be one of {sorted(DISPLAY_UNITS)}")
     app = sel.application
-    paper = paper or getattr(app, "paper_size", None) or "A4"
-    if paper not in PAPER_SIZES:
-        raise ValueError(f"paper must be one of {sorted(PAPER_SIZES)}")
+    paper = print_options(units, paper, app)
     base = str(Path(target).resolve().parent)
     disp_unit = "cm^3/rev" if units == "metric" else "in^3/rev"
     power_unit = DISPLAY_UNITS[units][POWER]
