@@ -1119,20 +1119,14 @@ def _drive(ctx: _Context, est: performance.Estimate, nu: np.ndarray) -> DriveFig
         mean_loss = float(np.dot(lo, t) / np.sum(t))
     # The flow a fixed pump delivers beyond what the machine takes goes to tank, and all of it becomes heat
     # in the oil. It leaves the pump at the pump's outlet pressure, which is the duty's pressure: the ratings
-    # and the input power are taken there too, so the heat can never exceed the power drawn. Where the
-    # surplus goes over the relief valve, the pump runs at the relief setting and the duty says so; where it
-    # runs lower, the surplus returns through an unloading or open-centre path at that pressure. A stated
-    # throttle or bypass pressure is taken where the duty's pressure is below it.
+    # and the input power are taken there too, so the heat can never exceed the power drawn (first law).
+    # Where the surplus goes over the relief valve or a throttle, the pump runs at that pressure, and the
+    # duty must say so (then the ratings see it too); where it runs lower, the surplus returns through an
+    # unloading or open-centre path at that pressure.
     app = ctx.app
-    if app.surplus_pressure is not None:
-        crossing = np.maximum(duty.pressure, app.surplus_pressure)
-        path = (f"over a throttle at {_fmt(ctx, PRESSURE, app.surplus_pressure)} (at the pump's pressure where "
-                "the duty's is higher)")
-    else:
-        crossing = duty.pressure
-        path = (f"to tank at each segment's pump pressure; over the relief valve where the duty runs at its "
-                f"setting of {_fmt(ctx, PRESSURE, app.relief_setting)}")
-    surplus = np.clip(np.nan_to_num(est.flow) - duty.flow, 0.0, None) * crossing
+    path = (f"to tank at each segment's pump pressure; over the relief valve where the duty runs at its "
+            f"setting of {_fmt(ctx, PRESSURE, app.relief_setting)}")
+    surplus = np.clip(np.nan_to_num(est.flow) - duty.flow, 0.0, None) * duty.pressure
     mean_surplus = float(np.dot(surplus, duty.duration) / ctx.cycle) if ctx.cycle > 0 else math.nan
     return DriveFigures(
         duty.duration, nu, est.volumetric_efficiency, est.total_efficiency, est.flow, est.torque, power,

@@ -18,8 +18,8 @@ fails a rule is not ranked. A candidate without a price is ranked after those wi
 
 Heat into the oil has one meaning everywhere: the pump's own power loss plus the surplus flow (delivered
 beyond what the machine takes) at the pressure it leaves the pump at — each segment's pump pressure (the
-duty's pressure; the relief setting where the duty runs at it), or a throttle's stated pressure where the
-duty's is lower (:class:`sheetpump.checks.DriveFigures`, ``mean_heat``); a fixed pump at fixed speed has
+duty's pressure; the relief setting, or a throttle's pressure, where the surplus goes over it and the duty
+runs there) (:class:`sheetpump.checks.DriveFigures`, ``mean_heat``); a fixed pump at fixed speed has
 nowhere else to put it, and the heat never exceeds the power drawn.
 """
 

@@ -78,8 +78,6 @@ class Application:
     oil: Oil
     relief_setting: float  # [Pa]
     overshoot: float = 0.1  # relief-valve pressure overshoot to allow [-], e.g. 0.1 for 10 %
-    # pressure of a throttle or bypass the surplus flow crosses to tank [Pa]; None: the pump's pressure
-    surplus_pressure: float | None = None
     speed_min: float | None = None  # drive speed range [rev/s]; None: the duty's speeds
     speed_max: float | None = None
     rotation: str | None = None  # rotation the drive imposes

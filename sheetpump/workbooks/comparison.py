@@ -174,7 +174,6 @@ def _duty_sheet(book: Any, name: str, candidate: Candidate, units: str, paper: s
         shown["flow_margin"] = np.where(shown["required"] > 0, shown["delivered"] / shown["required"] - 1.0, np.nan)
     shown["energy"] = shown["input_power"] * power_si_per_display * shown["duration"] * wh_per_j
     shown["heat"] = shown["loss"] + shown["surplus"]
-    throttle = _show(app.surplus_pressure, PRESSURE, units)
     headers, widths, formats = [], [], []
     for key, head, kind, num, _formula in _DUTY_COLUMNS:
         text = head.format(u[kind]) if kind is not None else head
@@ -216,13 +215,12 @@ def _duty_sheet(book: Any, name: str, candidate: Candidate, units: str, paper: s
             write_value(sheet, r, _DUTY_COL["flow_margin"], _NO_FLOW, cell_format(book, align="right"))
         write_formula(sheet, r, _DUTY_COL["energy"], f"={pin}*{t}*{power_si_per_display * wh_per_j!r}",
                       float(shown["energy"][i]), formats[_DUTY_COL["energy"]])
-        # the surplus flow leaves at the pump's pressure, or at a stated throttle's where the duty's is lower
-        crossing = p if throttle is None else f"MAX({p},{throttle!r})"
+        # the surplus flow leaves at the pump's pressure (the duty's): heat never above the power drawn
         surplus = float(shown["surplus"][i])
         if note or not math.isfinite(surplus):  # a bin's mean surplus is not its mean flows' surplus
             write_value(sheet, r, _DUTY_COL["surplus"], surplus, formats[_DUTY_COL["surplus"]])
         else:
-            write_formula(sheet, r, _DUTY_COL["surplus"], f"=MAX({q}-{qr},0)*{crossing}*{hyd!r}", surplus,
+            write_formula(sheet, r, _DUTY_COL["surplus"], f"=MAX({q}-{qr},0)*{p}*{hyd!r}", surplus,
                           formats[_DUTY_COL["surplus"]])
         write_formula(sheet, r, _DUTY_COL["heat"], f"={cell(r, 'loss')}+{cell(r, 'surplus')}",
                       float(shown["heat"][i]), formats[_DUTY_COL["heat"]])
@@ -847,9 +845,8 @@ def _assumptions(book: Any, comp: Comparison, inputs: Sequence[str | os.PathLike
         ("application", app.name, None),
         ("relief-valve setting [bar]", float(from_si(app.relief_setting, PRESSURE, "bar")), "#,##0.#"),
         ("overshoot allowed", app.overshoot, "0.#%"),
-        ("surplus flow to tank over a throttle at [bar]",
-         "none stated: at the pump's pressure" if app.surplus_pressure is None
-         else float(from_si(app.surplus_pressure, PRESSURE, "bar")), "#,##0.#"),
+        ("surplus flow to tank", "at each segment's pump pressure (the duty's: over the relief valve or a "
+         "throttle the pump runs at its pressure, and the duty says so)", None),
         ("cycles per hour", app.cycles_per_hour, "#,##0.##"),
         ("hours per year", app.hours_per_year, "#,##0"),
         (f"energy price [{app.currency}/kWh]", app.energy_price, "#,##0.00##"),

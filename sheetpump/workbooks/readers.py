@@ -839,7 +839,7 @@ _DEFAULTED = ("overshoot", "cycles_per_hour", "hours_per_year", "evaluation_year
 
 
 _APP_ATTRS = {
-    "name", "relief_setting", "overshoot", "surplus_pressure", "rotation", "cleanliness", "cycles_per_hour",
+    "name", "relief_setting", "overshoot", "rotation", "cleanliness", "cycles_per_hour",
     "hours_per_year", "energy_price", "currency", "motor_standard", "flow_margin", "pressure_margin", "speed_margin",
     "evaluation_years", "cold_start_temperature", "paper_size",
 }

@@ -214,9 +214,6 @@ APPLICATION_FIELDS: tuple[Field, ...] = (
     _f("Relief valve", "relief_setting", u.PRESSURE, "Relief-valve setting.", required=True),
     _f("Relief valve", "overshoot", FRACTION, "Pressure overshoot of the relief valve to allow. Empty: 10 %.",
        check="non_negative"),
-    _f("Relief valve", "surplus_pressure", u.PRESSURE, "Pressure at which the surplus flow goes to tank, "
-       "when a throttle or bypass takes it. Empty: each segment's pump pressure (the relief setting where "
-       "the duty runs at it)."),
     _f("Oil", "oil_name", TEXT, "Name of the oil."),
     _f("Oil", "oil_grade", CHOICE, "ISO 3448 viscosity grade (VG); give the viscosity index too.",
        choices=VG_GRADES),
