@@ -46,7 +46,7 @@ IEC_DESIGN_N_LOCKED_ROTOR: tuple[tuple[float, float], ...] = (
 #: NEMA MG 1 design B, 1800 rpm: (horsepower up to, locked-rotor torque / full-load torque) (from memory).
 NEMA_DESIGN_B_LOCKED_ROTOR: tuple[tuple[float, float], ...] = (
     (1.0, 2.75), (1.5, 2.50), (2.0, 2.35), (3.0, 2.15), (5.0, 1.85), (7.5, 1.75), (10.0, 1.65), (15.0, 1.60),
-    (20.0, 1.50), (30.0, 1.50), (100.0, 1.40), (125.0, 1.25), (200.0, 1.10), (500.0, 1.00),
+    (20.0, 1.50), (30.0, 1.50), (75.0, 1.40), (100.0, 1.25), (150.0, 1.10), (500.0, 1.00),
 )
 
 #: A star–delta start gives a third of the direct-on-line torque (the phase voltage falls by √3).
