@@ -687,7 +687,8 @@ def _inlet(ctx: _Context, line: SuctionTerms | None = None) -> list[Finding]:
 
 
 def _breakdown(ctx: _Context, terms: SuctionTerms, i: int | None = None) -> tuple[str, Where]:
-    """The inlet pressure's terms in words (at element ``i``), the dominant one, and the line cell to fix."""
+    """The inlet pressure's terms in words (at element ``i``), the dominant one, and the line cell to fix;
+    an absolute inlet pressure at or below zero is said to be below vacuum (the line cannot feed the pump)."""
     def at(x: object) -> float:
         return suction.value_at(x, i)
 
@@ -700,7 +701,8 @@ def _breakdown(ctx: _Context, terms: SuctionTerms, i: int | None = None) -> tupl
     re_ = at(terms.reynolds)
     regime = "laminar" if re_ <= LAMINAR_RE else "transitional" if re_ < 4000 else "turbulent"
     text = (f"computed from the suction line ({_fmt(ctx, VELOCITY, at(terms.velocity))}, Re {re_:.0f}, "
-            f"{regime}): {' '.join(parts)}; {word} dominates")
+            f"{regime}): {' '.join(parts)}; {word} dominates"
+            + ("; below vacuum: the line cannot feed the pump" if at(terms.inlet) <= 0 else ""))
     return text, ctx.app.where(key)
 
 
