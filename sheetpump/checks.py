@@ -806,6 +806,12 @@ def _cold_torque(ctx: _Context, fig: DriveFigures) -> Finding:
     viscous term C_v·D·μ·ω at the cold viscosity) at the first running segment's pressure and speed. The
     motor: the smallest standard motor for the duty's RMS and peak power; its starting torque the
     application's multiple of rated torque, or the locked-rotor torque of the standard's design class.
+    Assumed with the loss model (a stated breakaway torque is a standstill torque, met by the
+    locked-rotor torque itself): the motor's locked-rotor torque is compared with the pump's torque at
+    the cold viscosity at full speed, a conservative stand-in for comparing the motor's pull-up torque
+    with the pump's torque over the run-up (conservative on the pump's side: its viscous torque grows
+    with speed, so full speed is its largest; a motor's pull-up torque can lie below its locked-rotor
+    torque).
     """
     ds, app, duty = ctx.ds, ctx.app, ctx.duty
     rule = "torque.cold-start"
@@ -846,7 +852,10 @@ def _cold_torque(ctx: _Context, fig: DriveFigures) -> Finding:
                                            "NEMA MG 1 design B") + ", from memory")
     text = (f"the pump needs {_fmt(ctx, TORQUE, need)} to start at {_fmt(ctx, TEMPERATURE, t)} ({how}); the "
             f"{motor.label} motor gives {ratio:.2g} × {_fmt(ctx, TORQUE, rated)} = {_fmt(ctx, TORQUE, have)} "
-            f"({source})")
+            f"({source}" + ("" if ds.starting_torque is not None else
+                            "; the pump's torque at the cold viscosity at full speed set against the "
+                            "locked-rotor torque, a conservative stand-in for the pull-up torque over the run-up")
+            + ")")
     if not ok:
         text += ": it may not bring the pump up to speed cold"
     return Finding(rule, PASS if ok else FAIL, text, need, have, _margin(need, have, True), TORQUE,

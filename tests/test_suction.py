@@ -152,6 +152,7 @@ def test_cold_start_by_hand():
     assert torque.limit == pytest.approx(0.5 * 7500 / (2 * math.pi * 25), rel=1e-9)
     assert torque.severity == "fail" and torque.measured == 40.0
     assert "7.5 kW" in torque.message
+    assert "at full speed" not in torque.message  # a stated breakaway torque is a standstill torque
     # without the stated multiple: IEC 60034-12 design N, 7.5 kW 4-pole: 1.6 x rated = 76.4 N·m (from memory)
     app2 = dataclasses.replace(app, motor_starting_torque=None)
     t2 = next(x for x in check(ds, app2).findings if x.rule == "torque.cold-start")
