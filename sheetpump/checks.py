@@ -687,7 +687,8 @@ def _inlet(ctx: _Context, line: SuctionTerms | None = None) -> list[Finding]:
 
 
 def _breakdown(ctx: _Context, terms: SuctionTerms, i: int | None = None) -> tuple[str, Where]:
-    """The inlet pressure's terms in words (at element ``i``), the dominant one, and the line cell to fix."""
+    """The inlet pressure's terms in words (at element ``i``), the dominant one, and the line cell to fix;
+    an absolute inlet pressure at or below zero is said to be below vacuum (the line cannot feed the pump)."""
     def at(x: object) -> float:
         return suction.value_at(x, i)
 
@@ -700,7 +701,8 @@ def _breakdown(ctx: _Context, terms: SuctionTerms, i: int | None = None) -> tupl
     re_ = at(terms.reynolds)
     regime = "laminar" if re_ <= LAMINAR_RE else "transitional" if re_ < 4000 else "turbulent"
     text = (f"computed from the suction line ({_fmt(ctx, VELOCITY, at(terms.velocity))}, Re {re_:.0f}, "
-            f"{regime}): {' '.join(parts)}; {word} dominates")
+            f"{regime}): {' '.join(parts)}; {word} dominates"
+            + ("; below vacuum: the line cannot feed the pump" if at(terms.inlet) <= 0 else ""))
     return text, ctx.app.where(key)
 
 
@@ -804,6 +806,12 @@ def _cold_torque(ctx: _Context, fig: DriveFigures) -> Finding:
     viscous term C_v·D·μ·ω at the cold viscosity) at the first running segment's pressure and speed. The
     motor: the smallest standard motor for the duty's RMS and peak power; its starting torque the
     application's multiple of rated torque, or the locked-rotor torque of the standard's design class.
+    Assumed with the loss model (a stated breakaway torque is a standstill torque, met by the
+    locked-rotor torque itself): the motor's locked-rotor torque is compared with the pump's torque at
+    the cold viscosity at full speed, a conservative stand-in for comparing the motor's pull-up torque
+    with the pump's torque over the run-up (conservative on the pump's side: its viscous torque grows
+    with speed, so full speed is its largest; a motor's pull-up torque can lie below its locked-rotor
+    torque).
     """
     ds, app, duty = ctx.ds, ctx.app, ctx.duty
     rule = "torque.cold-start"
@@ -844,7 +852,10 @@ def _cold_torque(ctx: _Context, fig: DriveFigures) -> Finding:
                                            "NEMA MG 1 design B") + ", from memory")
     text = (f"the pump needs {_fmt(ctx, TORQUE, need)} to start at {_fmt(ctx, TEMPERATURE, t)} ({how}); the "
             f"{motor.label} motor gives {ratio:.2g} × {_fmt(ctx, TORQUE, rated)} = {_fmt(ctx, TORQUE, have)} "
-            f"({source})")
+            f"({source}" + ("" if ds.starting_torque is not None else
+                            "; the pump's torque at the cold viscosity at full speed set against the "
+                            "locked-rotor torque, a conservative stand-in for the pull-up torque over the run-up")
+            + ")")
     if not ok:
         text += ": it may not bring the pump up to speed cold"
     return Finding(rule, PASS if ok else FAIL, text, need, have, _margin(need, have, True), TORQUE,

@@ -28,7 +28,7 @@ from .errors import InputError, Where
 from .files import atomic_path, check_outputs, same_file
 from .units import FLOW, POWER, TORQUE, VISCOSITY, Kind, from_si
 
-__all__ = ["FILLS", "FINDINGS_SHEET", "annotate", "json_report", "junit_report", "text_report"]
+__all__ = ["FILLS", "FINDINGS_SHEET", "annotate", "json_report", "junit_caution", "junit_report", "text_report"]
 
 _SEVERITY_ORDER = {FAIL: 0, WARN: 1, NOT_CHECKED: 2, INFO: 3, PASS: 4}
 
@@ -353,8 +353,16 @@ def json_report(comparison: Comparison, strict: bool = False, max_segments: int 
 # JUnit XML
 
 
+def junit_caution(suite: ET.Element) -> None:
+    """Give a JUnit ``<testsuite>`` the caution as its first child: ``<properties><property
+    name="caution" value="..."/></properties>`` (where JUnit XML keeps a suite's properties)."""
+    ET.SubElement(ET.SubElement(suite, "properties"), "property", name="caution", value=SAFETY_CAUTION)
+
+
 def junit_report(results: Sequence[CheckResult], strict: bool = False) -> str:
     """JUnit XML: one test suite per pump, one test case per rule; failures as ``<failure>``.
+
+    Every suite carries :data:`sheetpump.SAFETY_CAUTION` as its property ``caution``.
 
     A warning is a failure under ``strict``, otherwise a passing case with the warning in
     ``<system-out>``. A rule not checked is a skipped case with the reason and the cell to fill (a
@@ -364,6 +372,7 @@ def junit_report(results: Sequence[CheckResult], strict: bool = False) -> str:
     total = total_fail = total_skipped = 0
     for r in results:
         suite = ET.SubElement(root, "testsuite", name=r.datasheet.label)
+        junit_caution(suite)
         failed = skipped = 0
         for f in r.findings:
             case = ET.SubElement(suite, "testcase", name=f.rule,

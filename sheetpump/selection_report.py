@@ -12,6 +12,7 @@ import xml.etree.ElementTree as ET
 from typing import Any
 
 from . import SAFETY_CAUTION
+from .report import junit_caution
 from .selection import Selection, worst
 
 __all__ = ["json_selection", "junit_selection", "text_selection"]
@@ -76,11 +77,13 @@ def json_selection(sel: Selection) -> str:
 
 def junit_selection(sel: Selection) -> str:
     """JUnit XML: one suite per series; its case ``proposed size`` fails when no size passes, and one
-    passing case per size tells its verdict and reason (a smaller size failing is the selection working)."""
+    passing case per size tells its verdict and reason (a smaller size failing is the selection working).
+    Every suite carries the caution as its property ``caution``."""
     root = ET.Element("testsuites", name="sheetpump select")
     failures = tests = 0
     for ch in sel.choices:
         suite = ET.SubElement(root, "testsuite", name=ch.series.name)
+        junit_caution(suite)
         case = ET.SubElement(suite, "testcase", name="proposed size", classname=f"sheetpump.select.{ch.series.name}")
         if ch.proposed is None:
             ET.SubElement(case, "failure", message=ch.summary[:200], type="fail").text = ch.summary

@@ -169,6 +169,9 @@ def test_json_to_a_file_and_junit(files, capsys):
         failed = [c.get("name") for c in cases if c.find("failure") is not None]
         assert failed == [f["rule"] for f in p["findings"] if f["failed"]]
         assert int(suite.get("failures")) == len(failed)
+        # the caution as a suite property, before the cases (JUnit XML keeps properties first)
+        assert suite[0].tag == "properties"
+        assert [(q.get("name"), q.get("value")) for q in suite[0]] == [("caution", sheetpump.SAFETY_CAUTION)]
     assert int(root.get("failures")) == 1 and "speed.max" in ET.tostring(root, encoding="unicode")
 
 

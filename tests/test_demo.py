@@ -75,6 +75,8 @@ def test_demo_cold_start_starves_the_inch_pound_pump(result):
     for label in ("Marrow & Tepp Hydraulics MT-G28", "Orrin Gearworks OG-22", "Sandlow Pumpen SL-32"):
         assert found[label]["inlet.cold-start"].severity == "pass"
         assert found[label]["torque.cold-start"].severity == "pass"
+        # the loss model's torque (no stated breakaway torque): the finding states what it is compared with
+        assert "at full speed set against the locked-rotor torque" in found[label]["torque.cold-start"].message
     book = openpyxl.load_workbook(result.comparison, data_only=True)
     labels = [row[0] for row in book["Summary"].iter_rows(values_only=True) if row[0]]
     assert any(str(x).startswith("inlet pressure at the cold start") for x in labels)

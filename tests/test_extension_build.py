@@ -18,7 +18,7 @@ from pathlib import Path
 
 import pytest
 
-from sheetpump import __version__
+from sheetpump import SAFETY_CAUTION, SAFETY_CAUTION_SHORT, __version__
 from sheetpump.catalogue import CATALOGUE
 from sheetpump.cli import main
 from sheetpump.extension import build
@@ -53,11 +53,20 @@ def _prop(node: ET.Element, name: str) -> str:
 def test_manifest_lists_every_file(oxt: zipfile.ZipFile) -> None:
     manifest = ET.fromstring(oxt.read("META-INF/manifest.xml"))
     listed = {e.get(f"{MANIFEST}full-path") for e in manifest}
-    # every file but the description and the component (reached through sheetpump.components)
-    assert listed == set(oxt.namelist()) - {"META-INF/manifest.xml", "description.xml", "sheetpump_calc.py"}
+    # every file but the description (and its text) and the component (reached through sheetpump.components)
+    assert listed == set(oxt.namelist()) - {"META-INF/manifest.xml", "description.xml", "description-en.txt",
+                                            "sheetpump_calc.py"}
     description = ET.fromstring(oxt.read("description.xml"))
     versions = [e.get("value") for e in description.iter() if e.tag.endswith("version")]
     assert versions == [__version__]
+
+
+def test_description_carries_the_caution(oxt: zipfile.ZipFile) -> None:
+    # the Extension Manager shows the text named by extension-description/src (LibreOffice's description.xml)
+    description = ET.fromstring(oxt.read("description.xml"))
+    sources = [e.get("{http://www.w3.org/1999/xlink}href") for e in description.iter() if e.tag.endswith("}src")]
+    assert len(sources) == 1
+    assert SAFETY_CAUTION in oxt.read(sources[0]).decode()
 
 
 def test_addins_xcu_describes_every_function(oxt: zipfile.ZipFile) -> None:
@@ -70,6 +79,7 @@ def test_addins_xcu_describes_every_function(oxt: zipfile.ZipFile) -> None:
         assert _prop(f, "CompatibilityName") == decl.name  # the name in .xlsx files, as in Excel
         assert _node(f, "CompatibilityName").find("value").get(EN) == "en-US"
         assert _prop(f, "Description").startswith(decl.help)
+        assert _prop(f, "Description").endswith(SAFETY_CAUTION_SHORT)  # Calc's function wizard shows it
         params = [(p.get(f"{OOR}name"), _prop(p, "Description")) for p in _node(f, "Parameters")]
         assert params == decl.argument_help()
 

@@ -18,6 +18,7 @@ import numpy as np
 import openpyxl
 import pytest
 
+from sheetpump import SAFETY_CAUTION
 from sheetpump.checks import check
 from sheetpump.cli import main
 from sheetpump.duty import Application, Duty, Oil
@@ -323,6 +324,10 @@ def test_select_command_outputs(tmp_path, capsys):
     assert sum(s["proposed"] for s in data["series"][0]["sizes"]) == (1 if code == 0 else 0)
     root = ET.parse(junit).getroot()
     assert root.get("failures") == str(code)
+    # every suite carries the caution as its first child, a property (where JUnit XML keeps them)
+    for suite in root.findall("testsuite"):
+        assert suite[0].tag == "properties"
+        assert [(q.get("name"), q.get("value")) for q in suite[0]] == [("caution", SAFETY_CAUTION)]
     book = openpyxl.load_workbook(out)
     ws = book["Sizes"]
     assert ws.page_setup.orientation == "landscape" and ws.print_title_rows == "$5:$5"

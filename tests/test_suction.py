@@ -16,6 +16,7 @@ from fluids import fittings as lib
 from fluids import friction as fr
 
 from sheetpump import cells, demo
+from sheetpump.catalogue import CATALOGUE
 from sheetpump.checks import check
 from sheetpump.datasheet import Datasheet
 from sheetpump.duty import Application, Duty, Oil
@@ -143,6 +144,7 @@ def test_cold_start_by_hand():
     cold = f["inlet.cold-start"]
     assert cold.severity == "fail" and cold.measured == pytest.approx(by_hand, rel=1e-9)
     assert "line friction dominates" in cold.message and cold.app_where.field == "suction_diameter"
+    assert by_hand < 0 and "below vacuum: the line cannot feed the pump" in cold.message
     # torque by hand: T = V Δp / (2π η_hm) = 26.67e-6 x 1e7 / (2π x 0.85/0.93) = 46.4 N·m, P = T 2π n =
     # 7.29 kW -> a 7.5 kW motor (IEC 60072-1 series), rated torque 7.5 kW / (2π x 25/s) = 47.75 N·m;
     # stated 0.5 x rated (a star–delta start): 23.87 N·m, below the stated breakaway torque of 40 N·m
@@ -150,6 +152,7 @@ def test_cold_start_by_hand():
     assert torque.limit == pytest.approx(0.5 * 7500 / (2 * math.pi * 25), rel=1e-9)
     assert torque.severity == "fail" and torque.measured == 40.0
     assert "7.5 kW" in torque.message
+    assert "at full speed" not in torque.message  # a stated breakaway torque is a standstill torque
     # without the stated multiple: IEC 60034-12 design N, 7.5 kW 4-pole: 1.6 x rated = 76.4 N·m (from memory)
     app2 = dataclasses.replace(app, motor_starting_torque=None)
     t2 = next(x for x in check(ds, app2).findings if x.rule == "torque.cold-start")
@@ -232,3 +235,28 @@ def test_cell_functions():
     assert cells.SP_LINE_VELOCITY(40, 0).startswith("#SP!")
     # flooded by 1 m, no flow: reservoir + ρ g 1 m = 1.01325 + 0.0853 bar
     assert cells.SP_SUCTION_PRESSURE(0, 25, 1, 46, 870, -1) == pytest.approx(1.01325 + 870 * 9.80665 / 1e5)
+    # below vacuum, the number is kept (its help says so): 40 L/min, 25 mm, 1.5 m, 1500 mm²/s, 0.5 m lift,
+    # no fittings: 1.01325 - 0.04266 (ρ g z) - 1.36117 (Hagen–Poiseuille) - 0.00802 (ρv²/2) = -0.3986 bar
+    assert cells.SP_SUCTION_PRESSURE(40, 25, 1.5, 1500, 870, 0.5) == pytest.approx(-0.3986, abs=1e-4)
+    assert "below vacuum" in CATALOGUE["SP_SUCTION_PRESSURE"].help
+
+
+def test_inlet_above_vacuum_is_not_called_below_it():
+    """The cold start of :func:`test_cold_start_by_hand` with thinner oil: 400 mm²/s at -10 °C."""
+    q, d, length, nu, lift = 40 / 60000, 0.025, 1.5, 400e-6, 0.5
+    v = q / (math.pi * d**2 / 4)
+    head = RHO * v**2 / 2
+    friction = 128 * (nu * RHO) * length * q / (math.pi * d**4)  # 36 298 Pa (Hagen–Poiseuille)
+    by_hand = 101325 - RHO * 9.80665 * lift - friction - 0.57 * head - head  # about 59 500 Pa absolute
+    assert 59000 < by_hand < 60000
+    line = SuctionLine(d, length, lift, k_inf=s.fitting("entrance", d).k_inf)
+    oil = Oil(400e-6, 263.15, 46e-6, 313.15)
+    duty = Duty(np.array([10.0]), np.array([100e5]), np.array([35 / 60000]), np.array([25.0]),
+                np.array([313.15]), np.array([1e5]), names=("run",))
+    app = Application("invented", duty, oil, relief_setting=150e5, cold_start_temperature=263.15,
+                      suction=line)
+    ds = Datasheet("Invented", "G27", q / 25.0, 8.0, 50.0, 200e5, 250e5, inlet_pressure_min=0.8e5,
+                   volumetric_efficiency=0.93, total_efficiency=0.85)
+    cold = next(x for x in check(ds, app).findings if x.rule == "inlet.cold-start")
+    assert cold.severity == "fail" and cold.measured == pytest.approx(by_hand, rel=1e-9)
+    assert "below vacuum" not in cold.message

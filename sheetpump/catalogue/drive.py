@@ -35,7 +35,8 @@ declare(Calculation(
     "SP_CYCLE_ENERGY", drive.electrical_energy,
     (_P, _T, Arg("motor_eff", EFFICIENCY, "Motor efficiency, 0 to 1: one value or one per segment")),
     ENERGY,
-    "Electrical energy per cycle: sum(P t / motor efficiency).",
+    "Electrical energy per cycle: sum(P t / motor efficiency), at the motor efficiency you give "
+    "(one value: the full-load efficiency); the comparison uses the part-load model.",
     example=([12.5, 18.0, 4.0], [20, 8, 30], 0.92)))
 
 # Needs a text-choice argument kind in sheetpump.calc (proposed, not there yet).

@@ -38,5 +38,5 @@ declare(Calculation(
      Arg("reservoir", ABS_PRESSURE, "Absolute pressure on the oil in the reservoir", default=1.01325)),
     ABS_PRESSURE,
     "Absolute pressure at the pump's inlet: reservoir - density x g x lift - line and fitting losses - "
-    "velocity head.",
+    "velocity head. A value at or below 0 is below vacuum: the line cannot feed the pump.",
     example=(40, 32, 2.0, 46, 870, 0.3, 1.5)))

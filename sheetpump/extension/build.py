@@ -36,7 +36,7 @@ import zipfile
 from pathlib import Path
 from xml.sax.saxutils import escape
 
-from .. import SAFETY_CAUTION, __version__
+from .. import SAFETY_CAUTION, SAFETY_CAUTION_SHORT, __version__
 from ..calc import Calculation
 from ..catalogue import CATALOGUE
 from ..files import atomic_path
@@ -63,6 +63,7 @@ _JOBS = "Jobs.xcu"
 _COMPONENTS = "sheetpump.components"
 _TYPES = "sheetpump.rdb"
 _ADDINS = "Addins.xcu"
+_DESCRIPTION = "description-en.txt"  # the text the Extension Manager shows under the name
 _DATE = (2024, 1, 1, 0, 0, 0)  # fixed: the same sheetpump gives the same bytes
 
 
@@ -94,7 +95,8 @@ def addins_xcu() -> str:
         out.append(f'<node oor:name="{calc.name}" oor:op="replace">')
         out.append(_localized("DisplayName", calc.name))
         out.append(_localized("Description", f"{calc.help} [{calc.result.name}"
-                              + (f", default {calc.result.default}]" if calc.result.default else "]")))
+                              + (f", default {calc.result.default}]" if calc.result.default else "]")
+                              + f" {SAFETY_CAUTION_SHORT}"))
         out.append(f'<prop oor:name="Category"><value>{CALC_CATEGORY}</value></prop>')
         # (CategoryDisplayName, in the schema but ignored by Calc, is left out.)
         out.append(_localized("CompatibilityName", calc.name))
@@ -119,13 +121,21 @@ def jobs_xcu() -> str:
             f'<node oor:name="Events">{events}</node>\n</oor:component-data>\n')
 
 
+def description_text() -> str:
+    """What the Extension Manager shows under the extension's name: what it is, and the caution."""
+    return ("sheetpump's cell functions (SP_...) in LibreOffice Calc: hydraulic gear pump datasheets "
+            f"checked against a machine's duty cycle.\n\n{SAFETY_CAUTION}\n")
+
+
 def description_xml() -> str:
+    """The extension's description: identifier, version, name, and the text with the caution."""
     return ('<?xml version="1.0" encoding="UTF-8"?>\n'
             '<description xmlns="http://openoffice.org/extensions/description/2006" '
             'xmlns:xlink="http://www.w3.org/1999/xlink">\n'
             f'  <identifier value="{IDENTIFIER}"/>\n'
             f'  <version value="{__version__}"/>\n'
             '  <display-name><name lang="en">sheetpump cell functions</name></display-name>\n'
+            f'  <extension-description><src lang="en" xlink:href="{_DESCRIPTION}"/></extension-description>\n'
             '</description>\n')
 
 
@@ -346,6 +356,7 @@ def contents() -> dict[str, bytes]:
     return {
         "META-INF/manifest.xml": manifest_xml().encode(),
         "description.xml": description_xml().encode(),
+        _DESCRIPTION: description_text().encode(),
         _TYPES: type_library(),
         _ADDINS: addins_xcu().encode(),
         _JOBS: jobs_xcu().encode(),

@@ -359,9 +359,11 @@ def electrical_energy(shaft_power: ArrayLike, duration: ArrayLike, motor_efficie
 
     .. math:: E = \sum_i \frac{P_i \, t_i}{\eta_i}
 
-    The efficiency may be one number (the full-load efficiency, which slightly underestimates the
-    energy of a part-loaded motor) or one per segment. sheetpump has no sourced part-load efficiency
-    curve, so it uses the full-load value.
+    The efficiency is the one given: one number for the whole cycle (the full-load efficiency, which
+    underestimates the energy of a part-loaded motor, above all of a light-running oversized one) or
+    one per segment. The comparison does not use this function: it draws each segment's energy at the
+    motor's part-load efficiency, from :func:`motor_input_power` (losses fitted to the full-load
+    efficiency); pass per-segment efficiencies worked out that way to get the same energy here.
 
     Parameters
     ----------

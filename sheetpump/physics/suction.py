@@ -593,6 +593,8 @@ def suction_terms(flow: ArrayLike, viscosity: ArrayLike, density: ArrayLike, dia
     Returns
     -------
     SuctionTerms
+        The terms [Pa]; ``inlet`` is not clipped at zero: at or below 0 it is below vacuum, and the line
+        cannot feed the pump.
 
     Examples
     --------
@@ -656,7 +658,8 @@ def suction_pressure(flow: ArrayLike, diameter: ArrayLike, length: ArrayLike, vi
     Returns
     -------
     float or array
-        p_in [Pa], absolute.
+        p_in [Pa], absolute. Not clipped at zero: a value at or below 0 is below vacuum, a sign that the
+        line cannot feed the pump at all (the oil column breaks and the pump runs starved).
 
     Examples
     --------
