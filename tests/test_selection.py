@@ -359,7 +359,7 @@ def test_demo_series_and_compare_takes_the_proposed_size(tmp_path, capsys):
     models = next(r for r in summary.iter_rows(values_only=True) if r[0] == "model")
     assert models[1:3] == ("BG2-28", "OG-22")
     notes = next(r for r in summary.iter_rows(values_only=True) if r[0] == "notes")
-    assert "proposed size of the series Brannock Fluidtechnik BG2" in notes[1] and "an assumption" in notes[1]
+    assert "proposed size of the series Brenlow Fluidtechnik BG2" in notes[1] and "an assumption" in notes[1]
 
 
 def test_committed_demo_series_match_the_generator(tmp_path):
