@@ -202,7 +202,7 @@ class _Series:
 
 #: Two invented series for the same press (see the module docstring of :mod:`sheetpump.selection`).
 #:
-#: * **Brannock BG2** (metric, 6 sizes in two frames, a performance table per frame scaled to its other
+#: * **Brenlow BG2** (metric, 6 sizes in two frames, a performance table per frame scaled to its other
 #:   sizes): 16, 20 and 25 cm³/rev deliver too little (25 x 1.47 = 36.8 L/min even without leakage, below
 #:   37.8 L/min); 36 cm³/rev is rated lower (a wider gear in the same frame); 28 cm³/rev is proposed;
 #:   32 cm³/rev, next up, draws more flow through the press's suction line than its inlet allows at the
@@ -213,8 +213,8 @@ class _Series:
 #:   starves at the cold start.
 SERIES: tuple[_Series, ...] = (
     _Series(
-        "series-brannock-bg2.xlsx",
-        {"supplier": (None, ["Brannock Fluidtechnik"]), "series": (None, ["BG2"]),
+        "series-brenlow-bg2.xlsx",
+        {"supplier": (None, ["Brenlow Fluidtechnik"]), "series": (None, ["BG2"]),
          "model": (None, ["BG2-16", "BG2-20", "BG2-25", "BG2-28", "BG2-32", "BG2-36"]),
          "frame": (None, ["2A", "2A", "2A", "2B", "2B", "2B"]),
          "source_note": (None, ["invented demo data (series catalogue, invented)"]),

@@ -274,7 +274,14 @@ def test_demo_sl32_loads_size_a_15_kw_motor():
     # both (12.07 ≤ 15, 20.31 ≤ 24) — smaller than the 18.5 kW the issue names, which also meets them.
     choice = drive.select_motor(12.07e3, 20.31e3, "IEC")
     assert choice.label == "15 kW" and choice.binding == "RMS and peak"
-    assert 12.07 > 11 and 20.31 > 1.6 * 11 and 20.31 <= 1.6 * 15
+    # By hand: on 15 kW the RMS load is 12.07/15 = 0.805 (≤ 1) and the peak 20.31/15 = 1.354 (≤ 1.6)
+    assert choice.overload_factor == 1.6
+    assert choice.rms_load == pytest.approx(12.07 / 15, rel=1e-9)  # float rounding only
+    assert choice.peak_load == pytest.approx(20.31 / 15, rel=1e-9)
+    # 11 kW is ruled out by both: 12.07 > 11 and 20.31 > 1.6 x 11 = 17.6; each alone moves the choice up
+    assert drive.select_motor(12.07e3, 17.0e3, "IEC").label == "15 kW"  # the RMS alone
+    assert drive.select_motor(10.5e3, 20.31e3, "IEC").label == "15 kW"  # the peak alone
+    assert drive.select_motor(10.5e3, 17.0e3, "IEC").label == "11 kW"  # neither: 11 kW carries it
 
 
 def test_a_long_series_is_sized_on_its_worst_thermal_window():

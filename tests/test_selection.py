@@ -106,7 +106,12 @@ def test_smallest_fails_on_flow_the_next_on_pressure_share(tmp_path):
     choice = select([read_size_series(path)], application()).choices[0]
     # 28 cm³: 38.6 L/min < 44 (flow); 34 cm³: 46.9 L/min, but 15 % of the cycle above 210 bar > 10 %
     # (margin (10 − 15)/10 = −50 %); 38 cm³: allowed 20 %.
-    assert 28 * 1.5 * 0.92 < 44 < 34 * 1.5 * 0.92
+    need = 40.0 * (1 + FLOW_MARGIN)
+    flow = [c.flow_margin for c in choice.candidates]
+    # Q = V·n·η_v (common practice): 28 cm³ → 38.64 L/min (−12.2 %), 34 cm³ → 46.92 L/min (+6.6 %)
+    assert flow[0] == pytest.approx((28 * 1.5 * 0.92 - need) / need, rel=1e-9)  # float rounding only
+    assert flow[1] == pytest.approx((34 * 1.5 * 0.92 - need) / need, rel=1e-9)
+    assert flow[0] < 0 < flow[1]
     assert choice.choice.datasheet.model == "A-3"
     assert choice.reasons[0].startswith("fails: flow.delivered")
     assert choice.reasons[1] == "fails: pressure.intermittent-share -50.0%"
@@ -350,13 +355,15 @@ def test_demo_series_and_compare_takes_the_proposed_size(tmp_path, capsys):
     series = sorted(str(p) for p in demo_dir.glob("series-*.xlsx"))
     assert main(["select", "--app", str(DEMO_APP), *series]) == 0
     text = capsys.readouterr().out
-    # By hand (common practice, Q = V·n): BG2-25 at 1470 rpm gives 25·1.47 = 36.75 L/min even without
-    # leakage, below 36 L/min + 5 % = 37.8 L/min; TX-175 spends 7 s of 40 s (17.5 %) above its 3300 psi
-    # (227.5 bar) continuous rating where it allows 10 %.
-    assert 25 * 1.47 < 36 * 1.05 and 3300 * 0.0689476 < 238 and 7 / 40 > 0.10
     assert re.search(r">> (pass|warn)  BG2-28", text)
-    assert "fails: flow.delivered" in text.split("BG2-25")[1].splitlines()[0]
-    assert "fails: pressure.intermittent-share" in text.split("TX-175")[-1].splitlines()[0]
+    # By hand (common practice, Q = V·n): BG2-25 at 1470 rpm gives 25·1.47 = 36.75 L/min even without
+    # leakage, below 36 L/min + 5 % = 37.8 L/min: its flow margin is at most (36.75 − 37.8)/37.8 = −2.8 %.
+    bg2_25 = re.search(r"fails: flow\.delivered (-[\d.]+)%", text.split("BG2-25")[-1].splitlines()[0])
+    assert bg2_25 and float(bg2_25.group(1)) < (25 * 1.47 - 36 * 1.05) / (36 * 1.05) * 100
+    # TX-175 spends 7 s of 40 s (17.5 %) above its 3300 psi (227.5 bar) continuous rating where it allows
+    # 10 %: margin (10 − 17.5)/10 = −75 %, printed to 0.1 %.
+    tx_175 = re.search(r"fails: pressure\.intermittent-share (-[\d.]+)%", text.split("TX-175")[-1].splitlines()[0])
+    assert tx_175 and float(tx_175.group(1)) == pytest.approx((10 - 7 / 40 * 100) / 10 * 100, abs=0.05)
     assert re.search(r">> (pass|warn)  TX-200", text)
     out = tmp_path / "c.xlsx"
     main(["compare", "--app", str(DEMO_APP), series[0], str(demo_dir / "orrin-og-22.xlsx"), "-o", str(out)])
@@ -364,7 +371,7 @@ def test_demo_series_and_compare_takes_the_proposed_size(tmp_path, capsys):
     models = next(r for r in summary.iter_rows(values_only=True) if r[0] == "model")
     assert models[1:3] == ("BG2-28", "OG-22")
     notes = next(r for r in summary.iter_rows(values_only=True) if r[0] == "notes")
-    assert "proposed size of the series Brannock Fluidtechnik BG2" in notes[1] and "an assumption" in notes[1]
+    assert "proposed size of the series Brenlow Fluidtechnik BG2" in notes[1] and "an assumption" in notes[1]
 
 
 def test_committed_demo_series_match_the_generator(tmp_path):
