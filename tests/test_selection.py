@@ -332,6 +332,28 @@ def test_select_command_outputs(tmp_path, capsys):
     assert len(rows) == 5 and [r[2] for r in rows].count("proposed") == (1 if code == 0 else 0)
 
 
+def test_select_takes_the_motor_options_of_check_and_compare(tmp_path, capsys):
+    from sheetpump.checks import CheckSettings
+    from sheetpump.workbooks import read_application
+
+    path = series_file(tmp_path)
+    options = ["--overload-factor", "1.0", "--service-factor", "1.15", "--thermal-window", "5"]
+    main(["select", "--app", str(DEMO_APP), str(path), "--format", "json", *options])
+    motors = [s["motor"] for s in json.loads(capsys.readouterr().out)["series"][0]["sizes"]]
+    app = read_application(str(DEMO_APP))
+
+    def library(**kw: float) -> list[str]:
+        candidates = select([read_size_series(path)], app, CheckSettings(**kw)).choices[0].candidates
+        return [c.motor.label for c in candidates]
+
+    # The same settings as `compare --overload-factor 1.0 --service-factor 1.15 --thermal-window 5` gives.
+    assert motors == library(overload_factor=1.0, service_factor=1.15, thermal_window=300.0)
+    # A motor sized on peak = rating (K = 1) is larger than with the IEC 60034-1 overload of 1.6.
+    assert motors != library()
+    assert main(["select", "--app", str(DEMO_APP), str(path), "--overload-factor", "0.9"]) == 2
+    assert "--overload-factor" in capsys.readouterr().err
+
+
 def test_select_bad_input_exits_2_naming_the_cell(tmp_path, capsys):
     path = series_file(tmp_path)
     r = _row(path, "model")
