@@ -223,17 +223,48 @@ def test_standard_motor_speeds():
     np.testing.assert_allclose(motor_speeds(60.0) * 60, [1800 * 0.97, 1200 * 0.97], rtol=1e-12)
 
 
+def _at_rpm(app: Application, rpm: list[float]) -> Application:
+    import dataclasses
+
+    return dataclasses.replace(app, duty=dataclasses.replace(app.duty, speed=np.array(rpm) / 60))
+
+
 def test_speed_range_proposes_the_speed_of_the_smallest_size(tmp_path):
-    app = application(speed_min=900 / 60, speed_max=1600 / 60)
+    # Every segment typed at the range's highest speed: the drive's speed is left to select.
+    app = _at_rpm(application(speed_min=900 / 60, speed_max=1600 / 60), [1600] * 3)
     choice = select([read_size_series(series_file(tmp_path))], app).choices[0]
     # 1455 rpm (4-pole, 50 Hz) and 970 rpm (6-pole) lie in 900–1600 rpm; at 1455 rpm IG-36 delivers
     # 36·1.455·0.92 = 48.2 L/min ≥ 44; at 970 rpm even IG-40 gives 35.7 L/min.
     assert choice.speed == pytest.approx(1455 / 60)
     assert choice.choice.datasheet.model == "IG-36"
     assert "1455 rpm proposed" in choice.speed_note and "4-pole/6-pole at 50 Hz" in choice.speed_note
-    nema = select([read_size_series(series_file(tmp_path))], application(speed_min=900 / 60, speed_max=2000 / 60,
-                                                                          motor_standard="NEMA"))
+    nema = select([read_size_series(series_file(tmp_path))],
+                  _at_rpm(application(speed_min=900 / 60, speed_max=2000 / 60, motor_standard="NEMA"), [900] * 3))
     assert nema.mains_frequency == 60.0 and nema.choices[0].speed == pytest.approx(1746 / 60)
+
+
+def test_typed_speeds_inside_the_range_are_kept(tmp_path):
+    series = read_size_series(series_file(tmp_path))
+    app = _at_rpm(application(speed_min=900 / 60, speed_max=1600 / 60), [1400] * 3)
+    choice = select([series], app).choices[0]
+    # Typed at 1400 rpm, judged at 1400 rpm as check does (not at the 4-pole 1455 rpm): Q = V·n·η_v
+    # (common practice) gives IG-36 36·1.4·0.92 = 46.37 L/min against 40·1.1 = 44 L/min, +5.4 %
+    # (at 1455 rpm it would be +9.5 %).
+    assert choice.speed is None and choice.choice.datasheet.model == "IG-36"
+    flow = next(f for f in choice.choice.result.findings if f.rule == "flow.delivered")
+    assert flow.margin == pytest.approx(36 * 1.4 * 0.92 / 44 - 1, rel=1e-6)
+    assert "typed speeds" in choice.speed_note
+    for c in choice.candidates:
+        alone = check(c.datasheet, app)
+        assert c.result.verdict == alone.verdict
+        margins = [(f.rule, f.margin) for f in c.result.findings if f.margin is not None]
+        assert margins == [(f.rule, pytest.approx(f.margin, rel=1e-9, nan_ok=True)) for f in alone.findings
+                           if f.margin is not None]
+    # Mixed: the segments at the range's limit take the standard speed, the one typed at 1200 rpm keeps it.
+    mixed = select([series], _at_rpm(app, [1600, 1200, 1600])).choices[0]
+    assert mixed.speed == pytest.approx(1455 / 60) and "1 running segment with a typed speed" in mixed.speed_note
+    np.testing.assert_allclose(mixed.choice.result.application.duty.speed * 60, [1455, 1200, 1455], rtol=1e-12)
+    assert mixed.choice.result.application.speed_max == pytest.approx(1600 / 60)  # still a variable drive
 
 
 # --- bad input of the series sheet ---------------------------------------------------------------------
