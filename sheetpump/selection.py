@@ -231,7 +231,8 @@ def takes_drive_speed(app: Application) -> np.ndarray:
     >>> duty = Duty(duration=np.ones(3), pressure=np.full(3, 100e5), flow=np.full(3, 1e-4),
     ...             speed=np.array([1600, 1200, 0]) / 60, temperature=np.full(3, 323.15),
     ...             inlet_pressure=np.full(3, 1e5))
-    >>> app = Application("invented", duty, Oil(46e-6, 313.15, 6.8e-6, 373.15), speed_min=15.0, speed_max=1600 / 60)
+    >>> app = Application("invented", duty, Oil(46e-6, 313.15, 6.8e-6, 373.15), relief_setting=200e5,
+    ...                   speed_min=15.0, speed_max=1600 / 60)
     >>> takes_drive_speed(app).tolist()
     [True, False, False]
     """
