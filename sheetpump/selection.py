@@ -3,7 +3,7 @@
 A :class:`SizeSeries` is one supplier's series: one :class:`~sheetpump.datasheet.Datasheet` per size (read
 by :mod:`sheetpump.workbooks.sizes`). :func:`select` checks every size of every series with the rules of
 :func:`sheetpump.checks.check`, sizes the motor and prices the energy as :mod:`sheetpump.comparison`
-does, and proposes per series **the smallest displacement that passes every rule** (ties: the lower
+does, and proposes per series **the smallest displacement that fails no rule** (ties: the lower
 price, then the lower drive power). It says why each smaller size fails (its failing rules and margins)
 and the margin of the next size up; a series with no passing size says why its largest size fails.
 
@@ -31,7 +31,7 @@ from dataclasses import dataclass, field
 import numpy as np
 
 from . import performance
-from .checks import FAIL, INFO, NOT_CHECKED, PASS, CheckSettings, Finding, check, prepare
+from .checks import FAIL, INFO, NOT_CHECKED, PASS, WARN, CheckSettings, Finding, check, prepare
 from .comparison import Candidate, compare_results
 from .datasheet import Datasheet
 from .duty import Application
@@ -90,8 +90,11 @@ class Selection:
 
     @property
     def verdict(self) -> str:
-        """``fail`` when a series has no passing size, else ``pass``."""
-        return FAIL if any(c.proposed is None for c in self.choices) else PASS
+        """``fail`` when a series has no size that fails no rule, ``warn`` when a proposed size passes with
+        warnings, else ``pass``."""
+        if any(c.proposed is None for c in self.choices):
+            return FAIL
+        return WARN if any(c.choice is not None and c.choice.result.verdict == WARN for c in self.choices) else PASS
 
 
 def motor_speeds(frequency: float, poles: Sequence[int] = STANDARD_POLES, slip: float = SLIP) -> np.ndarray:
@@ -122,7 +125,7 @@ def _margin_text(f: Finding) -> str:
 
 def failing(c: Candidate) -> list[Finding]:
     """The findings that make a size fail (warnings too with strict settings), worst margin first."""
-    bad = {FAIL} | ({"warn"} if c.result.settings.strict else set())
+    bad = {FAIL} | ({WARN} if c.result.settings.strict else set())
     found = [f for f in c.result.findings if f.severity in bad]
     return sorted(found, key=lambda f: f.margin if f.margin is not None and math.isfinite(f.margin) else -math.inf)
 
@@ -208,7 +211,7 @@ def _reasons(candidates: list[Candidate], proposed: int | None) -> tuple[list[st
         return reasons, summary
     c = candidates[proposed]
     parts = [f"{c.datasheet.model} ({c.datasheet.displacement * 1e6:.3g} cm³/rev), the smallest size that "
-             "passes every rule"]
+             "fails no rule" + (" (passes with warnings)" if c.result.verdict == WARN else "")]
     w = worst(c)
     if w is not None:
         parts.append(f"worst margin {_margin_text(w)}")

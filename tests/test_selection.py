@@ -415,6 +415,20 @@ def test_demo_series_and_compare_takes_the_proposed_size(tmp_path, capsys):
     assert "proposed size of the series Brannock Fluidtechnik BG2" in notes[1] and "an assumption" in notes[1]
 
 
+def test_a_proposal_with_warnings_is_said_so(capsys):
+    series = sorted(str(p) for p in (ROOT / "workbooks" / "demo").glob("series-*.xlsx"))
+    assert main(["select", "--app", str(DEMO_APP), *series, "--format", "json"]) == 0
+    data = json.loads(capsys.readouterr().out)
+    proposed = [next(z for z in s["sizes"] if z["proposed"]) for s in data["series"]]
+    assert "warn" in [z["verdict"] for z in proposed]  # the demo's proposals have warnings
+    assert data["verdict"] == "warn"
+    for s, z in zip(data["series"], proposed, strict=True):
+        assert "passes every rule" not in s["summary"] and "fails no rule" in s["summary"]
+        assert ("passes with warnings" in s["summary"]) == (z["verdict"] == "warn")
+    main(["select", "--app", str(DEMO_APP), *series])
+    assert "passes every rule" not in capsys.readouterr().out
+
+
 def test_committed_demo_series_match_the_generator(tmp_path):
     from sheetpump import demo
 

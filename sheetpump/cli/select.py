@@ -5,7 +5,7 @@
                      [--overload-factor K] [--service-factor SF] [--thermal-window MIN]
 
 Every size of every series is checked with the rules of ``check``; per series the smallest displacement
-that passes every rule is proposed. Exit code 0: every series has a passing size; 1: a series has none;
+that fails no rule is proposed. Exit code 0: every series has a passing size; 1: a series has none;
 2: bad input or usage.
 """
 
@@ -58,7 +58,7 @@ def register(sub: argparse._SubParsersAction) -> argparse.ArgumentParser:
     parser = sub.add_parser(
         "select", help="propose the size of each supplier's series for the machine",
         description="Check every size of each series workbook against the application and propose, per "
-                    "series, the smallest displacement that passes every rule. Exit code 0: every series has "
+                    "series, the smallest displacement that fails no rule. Exit code 0: every series has "
                     "a passing size; 1: a series has none; 2: bad input or usage.")
     parser.add_argument("--app", required=True, metavar="APPLICATION.xlsx", help="the application workbook")
     parser.add_argument("series", nargs="+", metavar="SERIES.xlsx",

@@ -96,7 +96,7 @@ def write_selection(target: str | os.PathLike[str], sel: Selection, inputs: Sequ
         sheet.merge_range(1, 0, 1, 12, SAFETY_CAUTION, f["caution"])
         sheet.set_row(1, 40)
         sheet.merge_range(2, 0, 2, 12, "One row per size; per series the proposed size is the smallest displacement "
-                          "that passes every rule (ties: lower price, then lower drive power). Margins are fractions "
+                          "that fails no rule (ties: lower price, then lower drive power). Margins are fractions "
                           "of the limit, positive inside.", f["note"])
         sheet.set_row(2, 28)
         heads = [
