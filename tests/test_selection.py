@@ -254,6 +254,9 @@ def test_typed_speeds_inside_the_range_are_kept(tmp_path):
     flow = next(f for f in choice.choice.result.findings if f.rule == "flow.delivered")
     assert flow.margin == pytest.approx(36 * 1.4 * 0.92 / 44 - 1, rel=1e-6)
     assert "typed speeds" in choice.speed_note
+    from sheetpump.selection_report import text_selection
+
+    assert "drive speed: checked at the duty's typed speeds" in text_selection(select([series], app))
     for c in choice.candidates:
         alone = check(c.datasheet, app)
         assert c.result.verdict == alone.verdict
@@ -413,6 +416,35 @@ def test_demo_series_and_compare_takes_the_proposed_size(tmp_path, capsys):
     assert models[1:3] == ("BG2-28", "OG-22")
     notes = next(r for r in summary.iter_rows(values_only=True) if r[0] == "notes")
     assert "proposed size of the series Brannock Fluidtechnik BG2" in notes[1] and "an assumption" in notes[1]
+
+
+def test_selection_workbook_print_rules(tmp_path):
+    from sheetpump.workbooks import read_application
+    from sheetpump.workbooks.selection import write_selection
+
+    series = sorted(str(p) for p in (ROOT / "workbooks" / "demo").glob("series-*.xlsx"))
+    app = read_application(str(DEMO_APP))
+    out = write_selection(tmp_path / "sel.xlsx", select([read_size_series(p) for p in series], app))
+    book = openpyxl.load_workbook(out)
+    ws = book["Sizes"]
+    heads = [c.value for c in ws[5]]
+    rows = [r for r in ws.iter_rows(min_row=6) if r[1].value]
+    cont = heads.index("continuous pressure margin")
+    # the demo has sizes whose pressure exceeds the continuous rating only in intermittent stretches
+    assert any(r[cont].value is None for r in rows)
+    assert all(not isinstance(r[cont].value, str) for r in rows)
+    assert "empty continuous pressure margin" in ws["A3"].value.lower()
+    for r in rows:
+        for cell in r:
+            if isinstance(cell.value, (int, float)):  # numbers right, padded so a text never touches them
+                assert cell.alignment.horizontal == "right" and cell.number_format.endswith("_)"), cell.coordinate
+        assert r[heads.index("why")].alignment.indent >= 1
+        assert r[heads.index("motor")].alignment.indent >= 1
+        assert r[heads.index("verdict")].alignment.horizontal == "center"
+    notes = {r[0].value: r[1] for r in book["Assumptions"].iter_rows(min_row=4) if r[0].value}
+    for label in ("flow margin required", "pressure margin required"):
+        assert "%" in notes[label].number_format  # a share shown as a percentage, e.g. 5.0%
+    assert notes["flow margin required"].value == pytest.approx(app.flow_margin, rel=1e-12)
 
 
 def test_a_proposal_with_warnings_is_said_so(capsys):
