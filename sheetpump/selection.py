@@ -3,13 +3,16 @@
 A :class:`SizeSeries` is one supplier's series: one :class:`~sheetpump.datasheet.Datasheet` per size (read
 by :mod:`sheetpump.workbooks.sizes`). :func:`select` checks every size of every series with the rules of
 :func:`sheetpump.checks.check`, sizes the motor and prices the energy as :mod:`sheetpump.comparison`
-does, and proposes per series **the smallest displacement that passes every rule** (ties: the lower
+does, and proposes per series **the smallest displacement that fails no rule** (ties: the lower
 price, then the lower drive power). It says why each smaller size fails (its failing rules and margins)
 and the margin of the next size up; a series with no passing size says why its largest size fails.
 
-Where the application gives a drive speed range, the speed is a choice too: the motor's standard speeds
-(4-pole and 6-pole at the mains frequency, less a typical slip) that lie inside the range are tried, and
-the speed at which the smallest size passes is proposed (ties: the lower speed, kinder to the pump).
+Where the application gives a drive speed range, the speed is a choice too, but only where the duty leaves
+it to the drive: running segments whose speed is the range's lowest or highest value
+(:func:`takes_drive_speed`) take, in turn, the motor's standard speeds (4-pole and 6-pole at the mains
+frequency, less a typical slip) that lie inside the range, and the speed at which the smallest size passes
+is proposed (ties: the lower speed, kinder to the pump). A speed typed inside the range is the user's and
+is kept, so a size is judged at the speed ``check`` uses.
 
 Shared work: the duty is validated and the oil viscosity computed once per speed for every size
 (:func:`sheetpump.checks.prepare`); sizes of one frame whose performance table is the frame's table
@@ -28,13 +31,14 @@ from dataclasses import dataclass, field
 import numpy as np
 
 from . import performance
-from .checks import FAIL, INFO, NOT_CHECKED, PASS, CheckSettings, Finding, check, prepare
+from .checks import FAIL, INFO, NOT_CHECKED, PASS, WARN, CheckSettings, Finding, check, prepare
 from .comparison import Candidate, compare_results
 from .datasheet import Datasheet
 from .duty import Application
 from .errors import InputError
 
-__all__ = ["SLIP", "STANDARD_POLES", "Selection", "SeriesChoice", "SizeSeries", "motor_speeds", "select"]
+__all__ = ["SLIP", "STANDARD_POLES", "Selection", "SeriesChoice", "SizeSeries", "motor_speeds", "select",
+           "takes_drive_speed"]
 
 #: Pole numbers of the standard motor speeds tried for a variable drive speed.
 STANDARD_POLES = (4, 6)
@@ -86,8 +90,11 @@ class Selection:
 
     @property
     def verdict(self) -> str:
-        """``fail`` when a series has no passing size, else ``pass``."""
-        return FAIL if any(c.proposed is None for c in self.choices) else PASS
+        """``fail`` when a series has no size that fails no rule, ``warn`` when a proposed size passes with
+        warnings, else ``pass``."""
+        if any(c.proposed is None for c in self.choices):
+            return FAIL
+        return WARN if any(c.choice is not None and c.choice.result.verdict == WARN for c in self.choices) else PASS
 
 
 def motor_speeds(frequency: float, poles: Sequence[int] = STANDARD_POLES, slip: float = SLIP) -> np.ndarray:
@@ -118,7 +125,7 @@ def _margin_text(f: Finding) -> str:
 
 def failing(c: Candidate) -> list[Finding]:
     """The findings that make a size fail (warnings too with strict settings), worst margin first."""
-    bad = {FAIL} | ({"warn"} if c.result.settings.strict else set())
+    bad = {FAIL} | ({WARN} if c.result.settings.strict else set())
     found = [f for f in c.result.findings if f.severity in bad]
     return sorted(found, key=lambda f: f.margin if f.margin is not None and math.isfinite(f.margin) else -math.inf)
 
@@ -204,7 +211,7 @@ def _reasons(candidates: list[Candidate], proposed: int | None) -> tuple[list[st
         return reasons, summary
     c = candidates[proposed]
     parts = [f"{c.datasheet.model} ({c.datasheet.displacement * 1e6:.3g} cm³/rev), the smallest size that "
-             "passes every rule"]
+             "fails no rule" + (" (passes with warnings)" if c.result.verdict == WARN else "")]
     w = worst(c)
     if w is not None:
         parts.append(f"worst margin {_margin_text(w)}")
@@ -219,11 +226,35 @@ def _reasons(candidates: list[Candidate], proposed: int | None) -> tuple[list[st
     return reasons, "; ".join(parts)
 
 
+def takes_drive_speed(app: Application) -> np.ndarray:
+    """Which duty segments take the drive's speed, to be chosen: running segments whose speed is the
+    limit of the application's speed range (its lowest or highest). Other typed speeds are the user's.
+
+    >>> from sheetpump.duty import Duty, Oil
+    >>> duty = Duty(duration=np.ones(3), pressure=np.full(3, 100e5), flow=np.full(3, 1e-4),
+    ...             speed=np.array([1600, 1200, 0]) / 60, temperature=np.full(3, 323.15),
+    ...             inlet_pressure=np.full(3, 1e5))
+    >>> app = Application("invented", duty, Oil(46e-6, 313.15, 6.8e-6, 373.15), relief_setting=200e5,
+    ...                   speed_min=15.0, speed_max=1600 / 60)
+    >>> takes_drive_speed(app).tolist()
+    [True, False, False]
+    """
+    speed = app.duty.speed
+    if app.speed_min is None or app.speed_max is None:
+        return np.zeros(speed.shape, dtype=bool)
+    limit = np.isclose(speed, app.speed_min, rtol=1e-9, atol=0.0) | np.isclose(speed, app.speed_max, rtol=1e-9,
+                                                                                  atol=0.0)
+    return (speed > 0) & limit
+
+
 def _at_speed(app: Application, speed: float) -> Application:
-    """The application driven at one fixed speed: every running segment at ``speed`` [rev/s]."""
-    duty = app.duty
-    new = dataclasses.replace(duty, speed=np.where(duty.speed > 0, speed, 0.0))
-    return dataclasses.replace(app, duty=new, speed_min=speed, speed_max=speed)
+    """The application with the segments that take the drive's speed (:func:`takes_drive_speed`) at
+    ``speed`` [rev/s]; typed speeds kept. Where every running segment takes it, the drive is fixed at it."""
+    duty, taking = app.duty, takes_drive_speed(app)
+    new = dataclasses.replace(duty, speed=np.where(taking, speed, duty.speed))
+    fixed = bool(np.all(taking | (duty.speed <= 0)))
+    return dataclasses.replace(app, duty=new, speed_min=speed if fixed else app.speed_min,
+                               speed_max=speed if fixed else app.speed_max)
 
 
 def select(series: Sequence[SizeSeries], application: Application, settings: CheckSettings | None = None,
@@ -269,8 +300,11 @@ def select(series: Sequence[SizeSeries], application: Application, settings: Che
         raise InputError(f"mains frequency {frequency!r} is not a positive number", hint="give e.g. 50 or 60 Hz")
     low, high = application.speed_min, application.speed_max
     speeds: list[float | None] = [None]
-    if low is not None and high is not None and high > low:
-        inside = [float(n) for n in sorted(motor_speeds(frequency)) if low <= n <= high]
+    ranged = low is not None and high is not None and high > low
+    taking = takes_drive_speed(application) if ranged else np.zeros(0, dtype=bool)
+    typed = int(np.count_nonzero((application.duty.speed > 0) & ~taking)) if ranged else 0
+    if ranged and taking.any():
+        inside = [float(n) for n in sorted(motor_speeds(frequency)) if low <= n <= high]  # type: ignore[operator]
         speeds = inside or [None]
     apps = {s: application if s is None else _at_speed(application, s) for s in speeds}
     nus = {s: prepare(a) for s, a in apps.items()}
@@ -289,13 +323,20 @@ def select(series: Sequence[SizeSeries], application: Application, settings: Che
         _, candidates, proposed, speed = best
         reasons, summary = _reasons(candidates, proposed)
         note = ""
+        kept = (f"; the {typed} running segment{'s' if typed != 1 else ''} with a typed speed inside the range "
+                "keep it") if typed else ""
         if speed is not None:
             tried = ", ".join(f"{n * 60:.0f}" for n in speeds if n is not None)
-            note = (f"drive speed {speed * 60:.0f} rpm proposed: standard motor speeds inside the range "
-                    f"({tried} rpm; {'/'.join(f'{p}-pole' for p in STANDARD_POLES)} at {frequency:g} Hz less "
-                    f"{SLIP:.0%} slip, an assumption) tried, this one gives the smallest passing size")
+            note = (f"drive speed {speed * 60:.0f} rpm proposed for the segments at the range's limit: standard "
+                    f"motor speeds inside the range ({tried} rpm; {'/'.join(f'{p}-pole' for p in STANDARD_POLES)} "
+                    f"at {frequency:g} Hz less {SLIP:.0%} slip, an assumption) tried, this one gives the smallest "
+                    f"passing size{kept}")
             summary = f"{summary}; {note}"
-        elif low is not None and high is not None and high > low:
+        elif ranged and not taking.any():
+            note = ("checked at the duty's typed speeds: no running segment is at the drive range's lowest or "
+                    "highest speed, so no standard motor speed is tried (type a segment's speed as the range's "
+                    "limit to have select choose it)")
+        elif ranged:
             note = (f"no standard motor speed ({', '.join(f'{n * 60:.0f}' for n in motor_speeds(frequency))} rpm "
                     f"at {frequency:g} Hz) lies in the drive's speed range: checked at the duty's speeds")
         choices.append(SeriesChoice(one, candidates, proposed, reasons, summary, speed, note))

@@ -29,6 +29,8 @@ def text_selection(sel: Selection) -> str:
     for ch in sel.choices:
         lines.append(f"{ch.series.name} ({len(ch.candidates)} sizes)")
         lines.append(f"  {'proposed' if ch.proposed is not None else 'NONE'}: {ch.summary}")
+        if ch.speed is None and ch.speed_note:
+            lines.append(f"  drive speed: {ch.speed_note}")
         for note in ch.series.assumptions:
             lines.append(f"  assumption: {note}")
         for i, (c, why) in enumerate(zip(ch.candidates, ch.reasons, strict=True)):

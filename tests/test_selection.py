@@ -229,17 +229,51 @@ def test_standard_motor_speeds():
     np.testing.assert_allclose(motor_speeds(60.0) * 60, [1800 * 0.97, 1200 * 0.97], rtol=1e-12)
 
 
+def _at_rpm(app: Application, rpm: list[float]) -> Application:
+    import dataclasses
+
+    return dataclasses.replace(app, duty=dataclasses.replace(app.duty, speed=np.array(rpm) / 60))
+
+
 def test_speed_range_proposes_the_speed_of_the_smallest_size(tmp_path):
-    app = application(speed_min=900 / 60, speed_max=1600 / 60)
+    # Every segment typed at the range's highest speed: the drive's speed is left to select.
+    app = _at_rpm(application(speed_min=900 / 60, speed_max=1600 / 60), [1600] * 3)
     choice = select([read_size_series(series_file(tmp_path))], app).choices[0]
     # 1455 rpm (4-pole, 50 Hz) and 970 rpm (6-pole) lie in 900–1600 rpm; at 1455 rpm IG-36 delivers
     # 36·1.455·0.92 = 48.2 L/min ≥ 44; at 970 rpm even IG-40 gives 35.7 L/min.
     assert choice.speed == pytest.approx(1455 / 60)
     assert choice.choice.datasheet.model == "IG-36"
     assert "1455 rpm proposed" in choice.speed_note and "4-pole/6-pole at 50 Hz" in choice.speed_note
-    nema = select([read_size_series(series_file(tmp_path))], application(speed_min=900 / 60, speed_max=2000 / 60,
-                                                                          motor_standard="NEMA"))
+    nema = select([read_size_series(series_file(tmp_path))],
+                  _at_rpm(application(speed_min=900 / 60, speed_max=2000 / 60, motor_standard="NEMA"), [900] * 3))
     assert nema.mains_frequency == 60.0 and nema.choices[0].speed == pytest.approx(1746 / 60)
+
+
+def test_typed_speeds_inside_the_range_are_kept(tmp_path):
+    series = read_size_series(series_file(tmp_path))
+    app = _at_rpm(application(speed_min=900 / 60, speed_max=1600 / 60), [1400] * 3)
+    choice = select([series], app).choices[0]
+    # Typed at 1400 rpm, judged at 1400 rpm as check does (not at the 4-pole 1455 rpm): Q = V·n·η_v
+    # (common practice) gives IG-36 36·1.4·0.92 = 46.37 L/min against 40·1.1 = 44 L/min, +5.4 %
+    # (at 1455 rpm it would be +9.5 %).
+    assert choice.speed is None and choice.choice.datasheet.model == "IG-36"
+    flow = next(f for f in choice.choice.result.findings if f.rule == "flow.delivered")
+    assert flow.margin == pytest.approx(36 * 1.4 * 0.92 / 44 - 1, rel=1e-6)
+    assert "typed speeds" in choice.speed_note
+    from sheetpump.selection_report import text_selection
+
+    assert "drive speed: checked at the duty's typed speeds" in text_selection(select([series], app))
+    for c in choice.candidates:
+        alone = check(c.datasheet, app)
+        assert c.result.verdict == alone.verdict
+        margins = [(f.rule, f.margin) for f in c.result.findings if f.margin is not None]
+        assert margins == [(f.rule, pytest.approx(f.margin, rel=1e-9, nan_ok=True)) for f in alone.findings
+                           if f.margin is not None]
+    # Mixed: the segments at the range's limit take the standard speed, the one typed at 1200 rpm keeps it.
+    mixed = select([series], _at_rpm(app, [1600, 1200, 1600])).choices[0]
+    assert mixed.speed == pytest.approx(1455 / 60) and "1 running segment with a typed speed" in mixed.speed_note
+    np.testing.assert_allclose(mixed.choice.result.application.duty.speed * 60, [1455, 1200, 1455], rtol=1e-12)
+    assert mixed.choice.result.application.speed_max == pytest.approx(1600 / 60)  # still a variable drive
 
 
 # --- bad input of the series sheet ---------------------------------------------------------------------
@@ -342,6 +376,28 @@ def test_select_command_outputs(tmp_path, capsys):
     assert len(rows) == 5 and [r[2] for r in rows].count("proposed") == (1 if code == 0 else 0)
 
 
+def test_select_takes_the_motor_options_of_check_and_compare(tmp_path, capsys):
+    from sheetpump.checks import CheckSettings
+    from sheetpump.workbooks import read_application
+
+    path = series_file(tmp_path)
+    options = ["--overload-factor", "1.0", "--service-factor", "1.15", "--thermal-window", "5"]
+    main(["select", "--app", str(DEMO_APP), str(path), "--format", "json", *options])
+    motors = [s["motor"] for s in json.loads(capsys.readouterr().out)["series"][0]["sizes"]]
+    app = read_application(str(DEMO_APP))
+
+    def library(**kw: float) -> list[str]:
+        candidates = select([read_size_series(path)], app, CheckSettings(**kw)).choices[0].candidates
+        return [c.motor.label for c in candidates]
+
+    # The same settings as `compare --overload-factor 1.0 --service-factor 1.15 --thermal-window 5` gives.
+    assert motors == library(overload_factor=1.0, service_factor=1.15, thermal_window=300.0)
+    # A motor sized on peak = rating (K = 1) is larger than with the IEC 60034-1 overload of 1.6.
+    assert motors != library()
+    assert main(["select", "--app", str(DEMO_APP), str(path), "--overload-factor", "0.9"]) == 2
+    assert "--overload-factor" in capsys.readouterr().err
+
+
 def test_select_bad_input_exits_2_naming_the_cell(tmp_path, capsys):
     path = series_file(tmp_path)
     r = _row(path, "model")
@@ -372,6 +428,49 @@ def test_demo_series_and_compare_takes_the_proposed_size(tmp_path, capsys):
     assert models[1:3] == ("BG2-28", "OG-22")
     notes = next(r for r in summary.iter_rows(values_only=True) if r[0] == "notes")
     assert "proposed size of the series Brenlow Fluidtechnik BG2" in notes[1] and "an assumption" in notes[1]
+
+
+def test_selection_workbook_print_rules(tmp_path):
+    from sheetpump.workbooks import read_application
+    from sheetpump.workbooks.selection import write_selection
+
+    series = sorted(str(p) for p in (ROOT / "workbooks" / "demo").glob("series-*.xlsx"))
+    app = read_application(str(DEMO_APP))
+    out = write_selection(tmp_path / "sel.xlsx", select([read_size_series(p) for p in series], app))
+    book = openpyxl.load_workbook(out)
+    ws = book["Sizes"]
+    heads = [c.value for c in ws[5]]
+    rows = [r for r in ws.iter_rows(min_row=6) if r[1].value]
+    cont = heads.index("continuous pressure margin")
+    # the demo has sizes whose pressure exceeds the continuous rating only in intermittent stretches
+    assert any(r[cont].value is None for r in rows)
+    assert all(not isinstance(r[cont].value, str) for r in rows)
+    assert "empty continuous pressure margin" in ws["A3"].value.lower()
+    for r in rows:
+        for cell in r:
+            if isinstance(cell.value, (int, float)):  # numbers right, padded so a text never touches them
+                assert cell.alignment.horizontal == "right" and cell.number_format.endswith("_)"), cell.coordinate
+        assert r[heads.index("why")].alignment.indent >= 1
+        assert r[heads.index("motor")].alignment.indent >= 1
+        assert r[heads.index("verdict")].alignment.horizontal == "center"
+    notes = {r[0].value: r[1] for r in book["Assumptions"].iter_rows(min_row=4) if r[0].value}
+    for label in ("flow margin required", "pressure margin required"):
+        assert "%" in notes[label].number_format  # a share shown as a percentage, e.g. 5.0%
+    assert notes["flow margin required"].value == pytest.approx(app.flow_margin, rel=1e-12)
+
+
+def test_a_proposal_with_warnings_is_said_so(capsys):
+    series = sorted(str(p) for p in (ROOT / "workbooks" / "demo").glob("series-*.xlsx"))
+    assert main(["select", "--app", str(DEMO_APP), *series, "--format", "json"]) == 0
+    data = json.loads(capsys.readouterr().out)
+    proposed = [next(z for z in s["sizes"] if z["proposed"]) for s in data["series"]]
+    assert "warn" in [z["verdict"] for z in proposed]  # the demo's proposals have warnings
+    assert data["verdict"] == "warn"
+    for s, z in zip(data["series"], proposed, strict=True):
+        assert "passes every rule" not in s["summary"] and "fails no rule" in s["summary"]
+        assert ("passes with warnings" in s["summary"]) == (z["verdict"] == "warn")
+    main(["select", "--app", str(DEMO_APP), *series])
+    assert "passes every rule" not in capsys.readouterr().out
 
 
 def test_committed_demo_series_match_the_generator(tmp_path):

@@ -78,7 +78,7 @@ def settings_from(args: argparse.Namespace) -> CheckSettings:
 
 
 def add_motor_options(parser: argparse.ArgumentParser) -> None:
-    """The motor-sizing options ``check`` and ``compare`` share."""
+    """The motor-sizing options ``check``, ``compare`` and ``select`` share."""
     def at_least_one(text: str) -> float:
         try:
             value = float(text)

@@ -2,9 +2,10 @@
 
     sheetpump select --app APPLICATION.xlsx SERIES.xlsx [...] [-o SELECTION.xlsx] [--format text|json]
                      [--junit FILE] [--mains-frequency HZ]
+                     [--overload-factor K] [--service-factor SF] [--thermal-window MIN]
 
 Every size of every series is checked with the rules of ``check``; per series the smallest displacement
-that passes every rule is proposed. Exit code 0: every series has a passing size; 1: a series has none;
+that fails no rule is proposed. Exit code 0: every series has a passing size; 1: a series has none;
 2: bad input or usage.
 """
 
@@ -14,7 +15,6 @@ import argparse
 import sys
 from typing import Any
 
-from ..checks import CheckSettings
 from ..files import atomic_write, check_outputs
 from . import check as _check
 
@@ -39,7 +39,7 @@ def run(args: argparse.Namespace) -> int:
     inputs = _check.inputs_of(app, args.app, []) + [("a series workbook", p) for p in paths]
     outputs = [("--output", args.output), ("--junit", args.junit), ("--report", args.report)]
     check_outputs([(option, path) for option, path in outputs if path], inputs)
-    sel = select(series, app, CheckSettings(units=args.units, strict=args.strict), args.mains_frequency)
+    sel = select(series, app, _check.settings_from(args), args.mains_frequency)
     if args.output:
         write_selection(args.output, sel, inputs=[p for _, p in inputs], units=args.units)
     if args.junit:
@@ -58,7 +58,7 @@ def register(sub: argparse._SubParsersAction) -> argparse.ArgumentParser:
     parser = sub.add_parser(
         "select", help="propose the size of each supplier's series for the machine",
         description="Check every size of each series workbook against the application and propose, per "
-                    "series, the smallest displacement that passes every rule. Exit code 0: every series has "
+                    "series, the smallest displacement that fails no rule. Exit code 0: every series has "
                     "a passing size; 1: a series has none; 2: bad input or usage.")
     parser.add_argument("--app", required=True, metavar="APPLICATION.xlsx", help="the application workbook")
     parser.add_argument("series", nargs="+", metavar="SERIES.xlsx",
@@ -74,5 +74,6 @@ def register(sub: argparse._SubParsersAction) -> argparse.ArgumentParser:
     parser.add_argument("--strict", action="store_true", help="a warning makes a size fail")
     parser.add_argument("--units", choices=("metric", "imperial"), default="metric",
                         help="units of the selection workbook (default: metric)")
+    _check.add_motor_options(parser)
     parser.set_defaults(run=run)
     return parser

@@ -32,6 +32,7 @@ from ..units import DISPLACEMENT, POWER, from_si
 from .comparison import print_options
 from .writer import (
     LINE_HEIGHT,
+    PCT,
     SIGNED_PCT,
     cell_format,
     display_path,
@@ -53,8 +54,8 @@ def _margin(c: Candidate, rule: str) -> float | str | None:
         if f.rule == rule:
             if f.severity == NOT_CHECKED:
                 return "not checked"
-            if f.severity == INFO:
-                return "intermittent" if rule == "pressure.continuous" else None
+            if f.severity == INFO:  # above the continuous rating only in intermittent stretches: left empty
+                return None
             return f.margin if f.margin is not None and math.isfinite(f.margin) else None
     return None
 
@@ -86,22 +87,32 @@ def write_selection(target: str | os.PathLike[str], sel: Selection, inputs: Sequ
         f = book.styles
         bold = book.add_format({"bold": True, "bg_color": "#E8EEF5", "valign": "top"})
         # every cell of a row stands on the first line of its wrapped "why" (cell_format: valign top)
-        numbers = {"pct": SIGNED_PCT, "disp": "0.00" if units == "metric" else "0.000", "kw": "0.0", "n0": "#,##0",
-                   "text": None}
-        formats = {k: cell_format(book, "wrap" if k == "text" else None, num_format=nf) for k, nf in numbers.items()}
-        proposed_fmt = {k: cell_format(book, "wrap" if k == "text" else None, num_format=nf, bold=True,
-                                       bg_color="#E8EEF5") for k, nf in numbers.items()}
+        # numbers right-aligned, texts left and indented, short marks centred: they never run together in print
+        # "_)" pads a number on the right by the width of ")", a gap before the text of the next column
+        numbers = {k: ";".join(part + "_)" for part in nf.split(";")) if nf else None for k, nf in {
+            "pct": SIGNED_PCT, "disp": "0.00" if units == "metric" else "0.000", "kw": "0.0", "n0": "#,##0",
+            "text": None, "note": None, "mark": None}.items()}
+        align: dict[str, dict[str, Any]] = {"text": {"indent": 1}, "note": {"align": "right"},
+                                            "mark": {"align": "center"}}
+
+        def styled(kind: str, **extra: Any) -> Any:
+            return cell_format(book, None if numbers[kind] else "wrap", num_format=numbers[kind],
+                               **align.get(kind, {"align": "right"}), **extra)
+
+        formats = {k: styled(k) for k in numbers}
+        proposed_fmt = {k: styled(k, bold=True, bg_color="#E8EEF5") for k in numbers}
         sheet = book.add_worksheet("Sizes")
         sheet.write_string(0, 0, f"Size selection: {app.name}", f["title"])
         sheet.merge_range(1, 0, 1, 12, SAFETY_CAUTION, f["caution"])
         sheet.set_row(1, 40)
-        sheet.merge_range(2, 0, 2, 12, "One row per size; per series the proposed size is the smallest displacement "
-                          "that passes every rule (ties: lower price, then lower drive power). Margins are fractions "
-                          "of the limit, positive inside.", f["note"])
-        sheet.set_row(2, 28)
+        note = ("One row per size; per series the proposed size is the smallest displacement that fails no rule "
+                "(ties: lower price, then lower drive power). Margins are fractions of the limit, positive inside. "
+                "An empty continuous pressure margin: the pressure exceeds the continuous rating only in "
+                "intermittent stretches, judged in the intermittent pressure margin.")
+        sheet.merge_range(2, 0, 2, 12, note, f["note"])
         heads = [
-            ("series", 25, None), ("size", 10, None), ("proposed", 9, None),
-            (f"displacement [{disp_unit}]", 13, "disp"), ("verdict", 7, None), ("worst rule", 24, None),
+            ("series", 25, None), ("size", 10, None), ("proposed", 9, "mark"),
+            (f"displacement [{disp_unit}]", 13, "disp"), ("verdict", 7, "mark"), ("worst rule", 24, None),
             ("worst margin", 9, "pct"), ("flow margin", 9, "pct"),
             *((f"{label} pressure margin" if rule != "pressure.relief" else "relief + overshoot vs peak",
                11, "pct") for rule, label in _PRESSURE_RULES),
@@ -113,6 +124,7 @@ def write_selection(target: str | os.PathLike[str], sel: Selection, inputs: Sequ
         ]
         header_row = 4
         write_header(sheet, header_row, [h[0] for h in heads], [h[1] for h in heads], f["header"])
+        sheet.set_row(2, LINE_HEIGHT * text_lines(note, sum(h[1] for h in heads[:13])))
         row = header_row + 1
         for ch in sel.choices:
             for i, (cand, why) in enumerate(zip(ch.candidates, ch.reasons, strict=True)):
@@ -132,9 +144,12 @@ def write_selection(target: str | os.PathLike[str], sel: Selection, inputs: Sequ
                 ]
                 for c, (value, (_, _, kind)) in enumerate(zip(values, heads, strict=True)):
                     if c == 4:
-                        fmt = cell_format(book, cand.result.verdict if cand.result.verdict in f else None)
-                    elif isinstance(value, str) or kind is None:
-                        fmt = (proposed_fmt if mine else formats)["text"]
+                        fmt = cell_format(book, cand.result.verdict if cand.result.verdict in f else None,
+                                          align="center")
+                    elif kind is None or kind == "mark":
+                        fmt = (proposed_fmt if mine else formats)[kind or "text"]
+                    elif isinstance(value, str):  # "not checked" in a number column stands where the figure would
+                        fmt = (proposed_fmt if mine else formats)["note"]
                     else:
                         fmt = (proposed_fmt if mine else formats)[kind]
                     if isinstance(value, float) and not math.isfinite(value):
@@ -149,6 +164,7 @@ def write_selection(target: str | os.PathLike[str], sel: Selection, inputs: Sequ
 
         series = book.add_worksheet("Series")
         series.write_string(0, 0, "The proposal of each series", f["title"])
+        indented = cell_format(book, "wrap", indent=1)  # never runs into the column on its left
         for c, (text, width) in enumerate((("series", 24), ("file", 24), ("proposed size", 14),
                                            ("drive speed [rpm]", 10), ("why", 90), ("assumptions", 60))):
             series.write_string(2, c, text, f["header"])
@@ -159,16 +175,18 @@ def write_selection(target: str | os.PathLike[str], sel: Selection, inputs: Sequ
             write_value(series, r, 1, display_path(ch.series.file, base) if ch.series.file else "")
             write_value(series, r, 2, ch.choice.datasheet.model if ch.choice else "none passes",
                         bold if ch.choice else f["fail"])
-            write_value(series, r, 3, round(ch.speed * 60) if ch.speed is not None else "as the duty")
-            write_value(series, r, 4, ch.summary, f["wrap"])
+            write_value(series, r, 3, round(ch.speed * 60) if ch.speed is not None else "as the duty",
+                        cell_format(book, "wrap", align="center"))
+            why = ch.summary if ch.speed is not None or not ch.speed_note else f"{ch.summary}; {ch.speed_note}"
+            write_value(series, r, 4, why, indented)
             assumptions = "; ".join(ch.series.assumptions) or "none"
-            write_value(series, r, 5, assumptions, f["wrap"])
-            series.set_row(r, LINE_HEIGHT * max(text_lines(ch.summary, 90), text_lines(assumptions, 60)))
+            write_value(series, r, 5, assumptions, indented)
+            series.set_row(r, LINE_HEIGHT * max(text_lines(why, 88), text_lines(assumptions, 58)))
         page_setup(series, app.name, paper=paper, title_rows=(2, 2))
 
         notes = book.add_worksheet("Assumptions")
         notes.write_string(0, 0, "Assumptions and inputs", f["title"])
-        notes.write_string(1, 0, SAFETY_CAUTION, f["caution"])
+        notes.merge_range(1, 0, 1, 1, SAFETY_CAUTION, f["caution"])
         notes.set_row(1, 48)
         rows: list[tuple[str, Any]] = [
             ("application", app.name), ("motor standard", app.motor_standard),
@@ -183,9 +201,11 @@ def write_selection(target: str | os.PathLike[str], sel: Selection, inputs: Sequ
             ("sheetpump version", __version__),
         ]
         r = 3
+        shares = {"flow margin required", "pressure margin required"}  # fractions, shown as percentages: 5.0%
         for label, value in rows:
             notes.write_string(r, 0, label, f["header"])
-            write_value(notes, r, 1, value)
+            write_value(notes, r, 1, value, cell_format(book, num_format=PCT if label in shares else None,
+                                                        align="left"))
             r += 1
         r += 1
         notes.write_string(r, 0, "input file (relative to this workbook)", f["header"])
