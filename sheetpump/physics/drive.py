@@ -47,7 +47,7 @@ from dataclasses import dataclass
 import numpy as np
 from numpy.typing import ArrayLike
 
-from .pump import PhysicsError, efficiency, non_negative, positive
+from .pump import PhysicsError, efficiency, non_negative, plain, positive
 
 __all__ = [
     "HP",
@@ -188,9 +188,6 @@ def _segments(power: ArrayLike, duration: ArrayLike, axis: int | None,
     return p, t, axis
 
 
-def _out(x: np.ndarray) -> Number:
-    return float(x) if np.ndim(x) == 0 else x
-
 
 def rms_power(power: ArrayLike, duration: ArrayLike, axis: int | None = None) -> Number:
     r"""RMS (equivalent thermal) power of a duty cycle.
@@ -241,7 +238,7 @@ def rms_power(power: ArrayLike, duration: ArrayLike, axis: int | None = None) ->
     scale = np.max(p, axis=ax, keepdims=True)
     scale = np.where(scale > 0, scale, 1.0)
     x = p / scale
-    return _out(np.squeeze(scale, axis=ax) * np.sqrt(np.sum(x * x * t, axis=ax) / np.sum(t, axis=ax)))
+    return plain(np.squeeze(scale, axis=ax) * np.sqrt(np.sum(x * x * t, axis=ax) / np.sum(t, axis=ax)))
 
 
 def worst_window_rms(power: ArrayLike, duration: ArrayLike, window: float = THERMAL_WINDOW,
@@ -350,7 +347,7 @@ def mean_power(power: ArrayLike, duration: ArrayLike, axis: int | None = None) -
     Definition of a time average (common practice).
     """
     p, t, ax = _segments(power, duration, axis)
-    return _out(np.sum(p * t, axis=ax) / np.sum(t, axis=ax))
+    return plain(np.sum(p * t, axis=ax) / np.sum(t, axis=ax))
 
 
 def electrical_energy(shaft_power: ArrayLike, duration: ArrayLike, motor_efficiency: ArrayLike,
@@ -400,7 +397,7 @@ def electrical_energy(shaft_power: ArrayLike, duration: ArrayLike, motor_efficie
         if eta.size not in (1, p.size):
             raise PhysicsError("motor_efficiency", f"has {eta.size} values for {p.size} segments")
         eta = eta.ravel()
-    return _out(np.sum(p * t / eta, axis=ax))
+    return plain(np.sum(p * t / eta, axis=ax))
 
 
 def motor_input_power(shaft_power: ArrayLike, rated_power: ArrayLike,
@@ -456,7 +453,7 @@ def motor_input_power(shaft_power: ArrayLike, rated_power: ArrayLike,
     losses = rated * (1.0 / eta - 1.0)
     constant = PART_LOAD_CONSTANT_SHARE * losses
     x = p / rated
-    return _out(p + constant + (losses - constant) * x * x)
+    return plain(p + constant + (losses - constant) * x * x)
 
 
 def standard_ratings(standard: str) -> np.ndarray:
@@ -524,7 +521,7 @@ def motor_efficiency(rated_power: Number, standard: str = "IEC") -> Number:
     logs, etas = _EFF_TABLES[_standard(standard)]
     p = np.asarray(rated_power, dtype=float)
     positive(p, "rated_power")
-    return _out(np.interp(np.log(p), logs, etas))
+    return plain(np.interp(np.log(p), logs, etas))
 
 
 def _overload(standard: str, overload_factor: float | None) -> float:
@@ -604,7 +601,7 @@ def motor_rating(rms_power: Number, peak_power: Number, standard: str = "IEC",
     std = _standard(standard)
     need_rms, need_peak = _needs(std, rms_power, peak_power, _overload(std, overload_factor),
                                  _service(service_factor))
-    return _out(_SERIES_W[std][np.maximum(need_rms, need_peak)])
+    return plain(_SERIES_W[std][np.maximum(need_rms, need_peak)])
 
 
 def _service(service_factor: float) -> float:

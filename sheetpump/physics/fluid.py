@@ -18,7 +18,7 @@ from __future__ import annotations
 import numpy as np
 from numpy.typing import ArrayLike
 
-from .pump import _require, positive
+from .pump import plain, positive, require
 
 __all__ = [
     "ISO_VG_GRADES",
@@ -56,18 +56,13 @@ def _mm2(nu: ArrayLike) -> Number:
 
 
 def _walther_z(nu_mm2: Number, argument: str) -> Number:
-    _require(nu_mm2 > _WALTHER_FLOOR, argument,
+    require(nu_mm2 > _WALTHER_FLOOR, argument,
              "is too low for the ASTM D341 relation (must be above 0.3 mm²/s)")
     return np.log10(np.log10(nu_mm2 + _WALTHER_SHIFT))
 
 
 def _absolute(t: Number, argument: str) -> None:
-    _require(t > 0, argument, "must be above absolute zero (-273.15 °C)")
-
-
-def _scalar(x: Number) -> Number:
-    # numpy returns 0-d arrays or numpy floats for scalar inputs; give a plain float back.
-    return float(x) if np.ndim(x) == 0 else x
+    require(t > 0, argument, "must be above absolute zero (-273.15 °C)")
 
 
 def walther_coefficients(nu1: Number, t1: Number, nu2: Number, t2: Number) -> tuple[Number, Number]:
@@ -124,17 +119,17 @@ def walther_coefficients(nu1: Number, t1: Number, nu2: Number, t2: Number) -> tu
     positive(nu2, "nu2")
     _absolute(t2, "t2")
     # Temperatures converted from other units (104 °F) land a rounding error away from 313.15 K.
-    _require(np.abs(t2 - t1) > _SAME_TEMPERATURE, "t2",
+    require(np.abs(t2 - t1) > _SAME_TEMPERATURE, "t2",
              "must differ from t1 (two different temperatures are needed)")
     z1 = _walther_z(_mm2(nu1), "nu1")
     z2 = _walther_z(_mm2(nu2), "nu2")
     log_t1 = np.log10(t1)
     b = (z1 - z2) / (np.log10(t2) - log_t1)
     # Equal viscosities or a viscosity that rises with temperature describe no mineral oil.
-    _require(b > 0, "nu2", "must be below nu1 when t2 is above t1, and above it when t2 is below "
+    require(b > 0, "nu2", "must be below nu1 when t2 is above t1, and above it when t2 is below "
              "(viscosity falls as temperature rises)")
     a = z1 + b * log_t1
-    return _scalar(a), _scalar(b)
+    return plain(a), plain(b)
 
 
 def viscosity_at(temperature: Number, nu1: Number, t1: Number, nu2: Number, t2: Number) -> Number:
@@ -173,7 +168,7 @@ def viscosity_at(temperature: Number, nu1: Number, t1: Number, nu2: Number, t2: 
     _absolute(temperature, "temperature")
     a, b = walther_coefficients(nu1, t1, nu2, t2)
     nu_mm2 = 10.0 ** (10.0 ** (a - b * np.log10(temperature))) - _WALTHER_SHIFT
-    return _scalar(nu_mm2 * _MM2)
+    return plain(nu_mm2 * _MM2)
 
 
 def viscosity_from_points(nu1: Number, t1: Number, nu2: Number, t2: Number, temperature: Number) -> Number:
@@ -241,7 +236,7 @@ def temperature_for_viscosity(nu: Number, nu1: Number, t1: Number, nu2: Number, 
     positive(nu, "nu")
     a, b = walther_coefficients(nu1, t1, nu2, t2)
     z = _walther_z(_mm2(nu), "nu")
-    return _scalar(10.0 ** ((a - z) / b))
+    return plain(10.0 ** ((a - z) / b))
 
 
 # ASTM D2270, Table 1: L and H [mm²/s] against the kinematic viscosity at 100 °C, Y [mm²/s], in steps of
@@ -390,8 +385,8 @@ def viscosity_index(nu40: Number, nu100: Number) -> Number:
     positive(nu40, "nu40")
     positive(nu100, "nu100")
     u, y = _mm2(nu40), _mm2(nu100)
-    _require(y >= _VI_LOWEST_NU100, "nu100", "is below 2 mm²/s, where ASTM D2270 defines no viscosity index")
-    return _scalar(_vi_mm2(u, y))
+    require(y >= _VI_LOWEST_NU100, "nu100", "is below 2 mm²/s, where ASTM D2270 defines no viscosity index")
+    return plain(_vi_mm2(u, y))
 
 
 def nu100_from_vi(nu40: Number, vi: Number) -> Number:
@@ -439,20 +434,20 @@ def nu100_from_vi(nu40: Number, vi: Number) -> Number:
     u = _mm2(nu40)
     vi = np.asarray(vi, dtype=float)
     u, vi = np.broadcast_arrays(np.asarray(u, dtype=float), vi)
-    _require(np.isfinite(vi), "vi", "must be a finite number")
-    _require(u > _VI_LOWEST_NU100, "nu40", "must be above 2 mm²/s for a viscosity index")
+    require(np.isfinite(vi), "vi", "must be a finite number")
+    require(u > _VI_LOWEST_NU100, "nu40", "must be above 2 mm²/s for a viscosity index")
     lo = np.full(u.shape, np.log(_VI_LOWEST_NU100))
     hi = np.log(u) - 1e-12  # ν100 < ν40 for any oil
-    _require(_vi_mm2(u, np.exp(lo)) <= vi, "vi",
+    require(_vi_mm2(u, np.exp(lo)) <= vi, "vi",
              "is too low for this viscosity at 40 °C (it would need a viscosity at 100 °C below 2 mm²/s)")
-    _require(_vi_mm2(u, np.exp(hi)) >= vi, "vi", "is too high for this viscosity at 40 °C")
+    require(_vi_mm2(u, np.exp(hi)) >= vi, "vi", "is too high for this viscosity at 40 °C")
     # 60 halvings of a bracket at most ln(3200/2) ≈ 7.4 wide reach below 1e-17: float resolution.
     for _ in range(60):
         mid = 0.5 * (lo + hi)
         below = _vi_mm2(u, np.exp(mid)) < vi
         lo = np.where(below, mid, lo)
         hi = np.where(below, hi, mid)
-    return _scalar(np.exp(0.5 * (lo + hi)) * _MM2)
+    return plain(np.exp(0.5 * (lo + hi)) * _MM2)
 
 
 #: ISO 3448 viscosity grades: grade number -> mid-point kinematic viscosity at 40 °C [mm²/s]. The
@@ -496,11 +491,11 @@ def iso_vg_limits(grade: Number) -> tuple[Number, Number, Number]:
     ISO 3448.
     """
     g = np.asarray(grade, dtype=float)
-    _require(np.isin(g, _VG_NUMBERS), "grade",
+    require(np.isin(g, _VG_NUMBERS), "grade",
              "is not an ISO 3448 viscosity grade (2, 3, 5, 7, 10, 15, 22, 32, 46, 68, 100, 150, 220, "
              "320, 460, 680, 1000, 1500, 2200, 3200)")
     mid = _VG_MIDS[np.searchsorted(_VG_NUMBERS, g)] * _MM2
-    return _scalar(mid), _scalar(mid * (1 - _VG_TOLERANCE)), _scalar(mid * (1 + _VG_TOLERANCE))
+    return plain(mid), plain(mid * (1 - _VG_TOLERANCE)), plain(mid * (1 + _VG_TOLERANCE))
 
 
 def oil_points_from_grade(grade: Number, vi: Number) -> tuple[Number, float, Number, float]:
@@ -616,10 +611,10 @@ def density_at(temperature: Number, density_15: Number, expansion: Number = MINE
     """
     _absolute(temperature, "temperature")
     positive(density_15, "density_15")
-    _require(np.asarray(expansion) >= 0, "expansion", "must not be negative")
+    require(np.asarray(expansion) >= 0, "expansion", "must not be negative")
     rho = density_15 * (1.0 - expansion * (temperature - _T15))
-    _require(rho > 0, "temperature", "is too high for a linear thermal expansion (density would be <= 0)")
-    return _scalar(rho)
+    require(rho > 0, "temperature", "is too high for a linear thermal expansion (density would be <= 0)")
+    return plain(rho)
 
 
 def dynamic_viscosity(nu: Number, density: Number) -> Number:

@@ -57,12 +57,19 @@ class PhysicsError(ValueError):
         self.reason = message
 
 
-def _require(ok: bool | np.ndarray, argument: str, message: str) -> None:
+def require(ok: bool | np.ndarray, argument: str, message: str) -> None:
+    """Raise :class:`PhysicsError` for ``argument`` with ``message`` unless ``ok`` holds everywhere."""
     # Fast path for Python scalars: a comparison of floats gives a bool.
     if ok is True:
         return
     if ok is False or not np.all(ok):
         raise PhysicsError(argument, message)
+
+
+def plain(x: ArrayLike) -> float | np.ndarray:
+    """A result as callers want it: a plain float for a scalar (numpy gives 0-d arrays or numpy floats),
+    the array itself otherwise."""
+    return float(x) if np.ndim(x) == 0 else x
 
 
 def _lowest(x: ArrayLike) -> float:
@@ -543,8 +550,8 @@ def pulsation_frequency(teeth: Number, speed: Number, harmonic: Number = 1) -> N
     ----------
     Common practice for external gear pumps; Merritt (1967) (from memory).
     """
-    _require((teeth >= 2) & (np.floor(teeth) == teeth), "teeth", "must be a whole number of at least 2")
-    _require((harmonic >= 1) & (np.floor(harmonic) == harmonic), "harmonic",
+    require((teeth >= 2) & (np.floor(teeth) == teeth), "teeth", "must be a whole number of at least 2")
+    require((harmonic >= 1) & (np.floor(harmonic) == harmonic), "harmonic",
              "must be a whole number of at least 1")
     non_negative(speed, "speed")
     return harmonic * teeth * speed

@@ -39,7 +39,7 @@ from functools import lru_cache
 import numpy as np
 from numpy.typing import ArrayLike
 
-from .pump import PhysicsError, non_negative, positive
+from .pump import PhysicsError, non_negative, plain, positive
 
 __all__ = [
     "FITTINGS",
@@ -70,9 +70,6 @@ LAMINAR_RE = 2000.0
 #: Above this Reynolds number the flow is turbulent: f from the Colebrook equation (Clamond's solution).
 TURBULENT_RE = 4000.0
 
-
-def _out(x: np.ndarray) -> Number:
-    return float(x) if np.ndim(x) == 0 else x
 
 
 def line_velocity(flow: ArrayLike, diameter: ArrayLike) -> Number:
@@ -106,7 +103,7 @@ def line_velocity(flow: ArrayLike, diameter: ArrayLike) -> Number:
     q = np.asarray(flow, float)
     d = np.asarray(diameter, float)
     positive(d, "diameter")
-    return _out(q * (4.0 / math.pi) / (d * d))
+    return plain(q * (4.0 / math.pi) / (d * d))
 
 
 def reynolds_number(velocity: ArrayLike, diameter: ArrayLike, viscosity: ArrayLike) -> Number:
@@ -139,7 +136,7 @@ def reynolds_number(velocity: ArrayLike, diameter: ArrayLike, viscosity: ArrayLi
     """
     nu = np.asarray(viscosity, float)
     positive(nu, "viscosity")
-    return _out(np.abs(np.asarray(velocity, float)) * np.asarray(diameter, float) / nu)
+    return plain(np.abs(np.asarray(velocity, float)) * np.asarray(diameter, float) / nu)
 
 
 def _clamond(re: np.ndarray, ed: np.ndarray) -> np.ndarray:
@@ -214,7 +211,7 @@ def friction_factor(reynolds: ArrayLike, relative_roughness: ArrayLike = 0.0) ->
         # transition: straight line from the laminar factor at 2000 to the turbulent one at 4000
         w = np.clip((re - LAMINAR_RE) * (1.0 / (TURBULENT_RE - LAMINAR_RE)), 0.0, 1.0)
         f = np.where(turbulent, (1.0 - w) * (64.0 / LAMINAR_RE) + w * f_turb, f)
-    return _out(f)
+    return plain(f)
 
 
 def velocity_head(velocity: ArrayLike, density: ArrayLike) -> Number:
@@ -244,7 +241,7 @@ def velocity_head(velocity: ArrayLike, density: ArrayLike) -> Number:
     Bernoulli's equation (any fluid mechanics text).
     """
     v = np.asarray(velocity, float)
-    return _out(0.5 * np.asarray(density, float) * v * v)
+    return plain(0.5 * np.asarray(density, float) * v * v)
 
 
 def darcy_drop(flow: ArrayLike, diameter: ArrayLike, length: ArrayLike, viscosity: ArrayLike,
@@ -300,7 +297,7 @@ def darcy_drop(flow: ArrayLike, diameter: ArrayLike, length: ArrayLike, viscosit
     v = q * (4.0 / math.pi) / (d * d)
     re = np.maximum(v * d / nu, 1e-12)  # no flow: any factor, the drop is 0
     f = np.asarray(friction_factor(re, np.asarray(roughness, float) / d))
-    return _out(f * (length_ / d) * 0.5 * rho * v * v)
+    return plain(f * (length_ / d) * 0.5 * rho * v * v)
 
 
 @dataclass(frozen=True)
@@ -317,7 +314,7 @@ class Fitting:
 
     def k(self, reynolds: ArrayLike) -> Number:
         """K [-] at Reynolds number ``reynolds`` [-]."""
-        return _out(self.k_re / np.asarray(reynolds, float) + self.k_inf)
+        return plain(self.k_re / np.asarray(reynolds, float) + self.k_inf)
 
 
 #: Fittings sheetpump knows by trade name: trade name -> entry of ``fluids.fittings.Darby`` (3-K method,
@@ -429,7 +426,7 @@ def fittings_drop(k_re: ArrayLike, k_inf: ArrayLike, reynolds: ArrayLike, veloci
     re = np.asarray(reynolds, float)
     v = np.asarray(velocity, float)
     k = np.asarray(k_re, float) / np.maximum(re, 1e-12) + np.asarray(k_inf, float)
-    return _out(k * 0.5 * np.asarray(density, float) * v * v)
+    return plain(k * 0.5 * np.asarray(density, float) * v * v)
 
 
 def line_pressure_drop(flow: ArrayLike, diameter: ArrayLike, length: ArrayLike, viscosity: ArrayLike,
@@ -473,7 +470,7 @@ def line_pressure_drop(flow: ArrayLike, diameter: ArrayLike, length: ArrayLike, 
     non_negative(kk, "k")
     friction = np.asarray(darcy_drop(flow, diameter, length, viscosity, density))
     v = np.asarray(line_velocity(flow, diameter))
-    return _out(friction + kk * 0.5 * np.asarray(density, float) * v * v)
+    return plain(friction + kk * 0.5 * np.asarray(density, float) * v * v)
 
 
 def strainer_drop(flow: ArrayLike, viscosity: ArrayLike, stated_drop: float, stated_flow: float,
@@ -525,9 +522,9 @@ def strainer_drop(flow: ArrayLike, viscosity: ArrayLike, stated_drop: float, sta
     non_negative(stated_drop, "stated_drop")
     q = np.asarray(flow, float) / stated_flow
     if law == "laminar":
-        return _out(stated_drop * q * (np.asarray(viscosity, float) / stated_viscosity))
+        return plain(stated_drop * q * (np.asarray(viscosity, float) / stated_viscosity))
     if law == "turbulent":
-        return _out(stated_drop * q * q)
+        return plain(stated_drop * q * q)
     raise PhysicsError("law", f"must be 'laminar' or 'turbulent', not {law!r}")
 
 
@@ -625,8 +622,8 @@ def suction_terms(flow: ArrayLike, viscosity: ArrayLike, density: ArrayLike, dia
               else np.zeros_like(head))
     lift_p = rho * G * lift
     inlet = reservoir_pressure - lift_p - friction - fit - strain - head
-    return SuctionTerms(_out(inlet), reservoir_pressure, _out(lift_p), _out(friction), _out(fit), _out(strain),
-                        _out(head), _out(v), _out(re))
+    return SuctionTerms(plain(inlet), reservoir_pressure, plain(lift_p), plain(friction), plain(fit), plain(strain),
+                        plain(head), plain(v), plain(re))
 
 
 def suction_pressure(flow: ArrayLike, diameter: ArrayLike, length: ArrayLike, viscosity: ArrayLike,
@@ -675,4 +672,4 @@ def suction_pressure(flow: ArrayLike, diameter: ArrayLike, length: ArrayLike, vi
     drop = np.asarray(line_pressure_drop(flow, diameter, length, viscosity, density, k))
     v = np.asarray(line_velocity(flow, diameter))
     rho = np.asarray(density, float)
-    return _out(p_res - rho * G * np.asarray(lift, float) - drop - 0.5 * rho * v * v)
+    return plain(p_res - rho * G * np.asarray(lift, float) - drop - 0.5 * rho * v * v)
