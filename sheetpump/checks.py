@@ -259,6 +259,8 @@ class CheckResult:
     drive: DriveFigures
     settings: CheckSettings = field(default_factory=CheckSettings)
     suction: SuctionTerms | None = None  # the inlet pressure computed from the suction line, per segment
+    # the motor sizing (size_motor) made once for the check and the comparison, or why there is none
+    motor: tuple[drive.MotorChoice, str, float, str] | str = ""
 
     @property
     def worst_margin(self) -> float | None:
@@ -754,6 +756,17 @@ def size_motor(fig: DriveFigures, app: Application,
     return motor, note, rms, basis
 
 
+def _sized_motor(fig: DriveFigures, app: Application,
+                 settings: CheckSettings) -> tuple[drive.MotorChoice, str, float, str] | str:
+    """:func:`size_motor`, or the reason no motor can be sized."""
+    if not (math.isfinite(fig.rms_power) and math.isfinite(fig.peak_power)):
+        return "no motor can be sized without the pump's drive power"
+    try:
+        return size_motor(fig, app, settings)
+    except ValueError as exc:
+        return f"no standard motor ({exc})"
+
+
 def _cold_inputs(ctx: _Context) -> tuple[float, float, float, int] | None:
     """At the cold start: temperature [K], viscosity [m²/s], speed [rev/s] and index of the first running
     segment; None without a cold-start temperature or a running segment."""
@@ -799,7 +812,7 @@ def _cold_inlet(ctx: _Context) -> Finding:
                    0 if ok else 1, None, (), ds.where("inlet_pressure_min"), where)
 
 
-def _cold_torque(ctx: _Context, fig: DriveFigures) -> Finding:
+def _cold_torque(ctx: _Context, sized: tuple[drive.MotorChoice, str, float, str] | str) -> Finding:
     """The pump's torque at the cold start against the motor's starting torque.
 
     The pump's torque: the stated breakaway torque, or the performance table's loss model (Wilson's
@@ -834,13 +847,9 @@ def _cold_torque(ctx: _Context, fig: DriveFigures) -> Finding:
                f"{_fmt(ctx, PRESSURE, float(duty.pressure[i]))} ({ctx.label(i)})"
                + (", extrapolated beyond the table" if bool(est.extrapolated[0]) else ""))
         where = ds.where("performance")
-    if not (math.isfinite(fig.rms_power) and math.isfinite(fig.peak_power)):
-        return _not_checked(ctx, rule, "no motor can be sized without the pump's drive power", where,
-                            kind=TORQUE, measured=need)
-    try:
-        motor = size_motor(fig, app, ctx.settings)[0]  # the motor the comparison shows
-    except ValueError as exc:
-        return _not_checked(ctx, rule, f"no standard motor ({exc})", where, kind=TORQUE, measured=need)
+    if isinstance(sized, str):
+        return _not_checked(ctx, rule, sized, where, kind=TORQUE, measured=need)
+    motor = sized[0]  # the motor the comparison shows
     stated = app.motor_starting_torque is not None
     ratio = app.motor_starting_torque if stated else start.locked_rotor_ratio(motor.rated_power, motor.standard)
     assert ratio is not None
@@ -1244,5 +1253,6 @@ def check(datasheet: Datasheet, application: Application,
     findings += _rotation(ctx)
     findings.append(_basis(ctx, est))
     figures = _drive(ctx, est, nu)
-    findings.append(_cold_torque(ctx, figures))
-    return CheckResult(datasheet, application, findings, figures, settings, line)
+    sized = _sized_motor(figures, application, settings)
+    findings.append(_cold_torque(ctx, sized))
+    return CheckResult(datasheet, application, findings, figures, settings, line, sized)

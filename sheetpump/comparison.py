@@ -117,7 +117,9 @@ def _candidate(result: CheckResult, app: Application, settings: CheckSettings) -
         notes.append("no total efficiency stated: torque and power assume no mechanical loss (too low)")
     motor_rms, rms_basis = math.nan, "over the cycle"
     try:
-        motor, motor_note, motor_rms, rms_basis = size_motor(fig, app, settings)
+        same = result.application is app and result.settings == settings  # sized for this very case
+        sized = result.motor if same and isinstance(result.motor, tuple) else None
+        motor, motor_note, motor_rms, rms_basis = sized or size_motor(fig, app, settings)
     except PhysicsError as exc:
         motor = None
         motor_note = f"no standard motor: {exc}"
