@@ -48,11 +48,13 @@ def test_demo_verdicts_follow_from_hand_arithmetic(result, found):
     # the verdicts of the README's demo table
     assert v == {"Marrow & Tepp Hydraulics MT-G28": "warn", "Quillfeather Fluid Power QF-175": "fail",
                  "Orrin Gearworks OG-22": "fail", "Sandlow Pumpen SL-32": "warn"}
-    # 7 s of a 40 s cycle above continuous pressure is 17.5 %; this pump allows 10 % (its datasheet)
+    # 7 s of a 40 s cycle above continuous pressure is 17.5 %; this pump allows 10 % (its datasheet;
+    # arithmetic on the invented demo data, rule as in DESIGN §6)
     share = found["Quillfeather Fluid Power QF-175"]["pressure.intermittent-share"]
     assert share.severity == "fail"
     assert share.measured == pytest.approx(7 / 40, rel=1e-9) and share.limit == pytest.approx(0.10, rel=1e-9)
     # 22 cm³/rev x 1470 rpm = 32.3 L/min even without leakage, below 36 L/min x 1.05 = 37.8 L/min
+    # (Q = V·n, common practice)
     flow = found["Orrin Gearworks OG-22"]["flow.delivered"]
     assert flow.severity == "fail"
     assert flow.limit == pytest.approx(36 * 1.05 / 60000, rel=1e-9)  # float rounding only
@@ -69,7 +71,8 @@ def test_demo_cold_start_starves_the_inch_pound_pump(result, found):
     qf = found["Quillfeather Fluid Power QF-175"]["inlet.cold-start"]
     # by hand: 1.75 in³ = 28.68 cm³ x 1470 rpm = 42.2 L/min in 32 mm: 0.874 m/s; VG 46 (VI 100) at 5 °C
     # about 387 mm²/s: Re = 0.874 x 0.032 / 387e-6 = 72, laminar; Hagen–Poiseuille over 1.2 m:
-    # 32 μ L v / d² = 32 x (387e-6 x 870) x 1.2 x 0.874 / 0.032² = 0.110 bar; lift 870 x 9.81 x 0.3 = 0.026 bar
+    # 32 μ L v / d² = 32 x (387e-6 x 870) x 1.2 x 0.874 / 0.032² = 0.110 bar (Hagen–Poiseuille, any fluid
+    # mechanics textbook, e.g. White, Fluid Mechanics); lift 870 x 9.81 x 0.3 = 0.026 bar
     assert qf.severity == "fail" and "line friction dominates" in qf.message
     friction = 32 * (386.5e-6 * 870) * 1.2 * 0.8736 / 0.032**2  # by hand, 0.110 bar
     line = read_application(result.inputs[0]).suction
