@@ -78,7 +78,6 @@ MAX_TABLE_ROWS = 100_000
 _EXCEL_ERRORS = ("#NULL!", "#DIV/0!", "#VALUE!", "#REF!", "#NAME?", "#NUM!", "#N/A", "#GETTING_DATA",
                  "#SPILL!", "#CALC!")
 _CELL = re.compile(r"^\$?([A-Za-z]{1,3})\$?([1-9]\d{0,6})$")  # one cell: B11, $B$11
-_NUMBER = re.compile(r"^\s*([+-]?(?:\d+\.?\d*|\.\d+)(?:[eE][+-]?\d+)?)\s*(.*?)\s*$")
 _ISO4406 = re.compile(r"^(?:(\d{1,2}|-)\s*/\s*)?(\d{1,2})\s*/\s*(\d{1,2})$")
 _ROTATION_WORDS = {
     "clockwise": "clockwise", "cw": "clockwise", "right": "clockwise", "right-hand": "clockwise",
@@ -593,6 +592,14 @@ def _in_span(si: float, kind: Kind, number: float, unit_text: str, where: Where)
         raise exc.at(**vars(where)) from None
 
 
+def _number_text(text: str) -> bool:
+    """Whether a text reads as a number, with or without a unit (an ambiguous comma counts as one)."""
+    try:
+        return split_number(text) is not None
+    except InputError:
+        return True
+
+
 def _nothing_above(book: _Book, sheet: Any, header: int, width: int) -> None:
     """Refuse a row of numbers above a table's header row: it would be a row of the table dropped unseen.
 
@@ -603,7 +610,7 @@ def _nothing_above(book: _Book, sheet: Any, header: int, width: int) -> None:
                                             values_only=True), 1):
         numbers = [i for i, value in enumerate(row)
                    if isinstance(value, (int, float, _dt.date, _dt.time, _dt.timedelta))
-                   or (isinstance(value, str) and _NUMBER.match(value))]
+                   or (isinstance(value, str) and _number_text(value))]
         if len(numbers) >= 2:
             raise InputError(f"row {r} holds values above the header row (row {header})",
                              book.where(sheet, f"{column_letter(numbers[0])}{r}"),
