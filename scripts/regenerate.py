@@ -17,7 +17,7 @@ sys.path.insert(0, str(ROOT))
 from sheetpump import demo  # noqa: E402
 from sheetpump.cli import functions, rules  # noqa: E402
 from sheetpump.workbooks.example import write_worked_example  # noqa: E402
-from sheetpump.workbooks.sizes import write_series_template  # noqa: E402
+from sheetpump.workbooks.size_series import write_series_template  # noqa: E402
 from sheetpump.workbooks.templates import write_template  # noqa: E402
 
 GENERATED = {

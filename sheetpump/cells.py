@@ -24,8 +24,8 @@ from typing import Any
 
 import xlwings as xw
 
-from .calc import Calculation
 from .catalogue import CATALOGUE
+from .declarations import Calculation
 
 __all__ = sorted(CATALOGUE)
 

@@ -292,7 +292,7 @@ def write_inputs(folder: str | os.PathLike[str]) -> list[Path]:
 def write_series(folder: str | os.PathLike[str]) -> list[Path]:
     """Write the demo's series workbooks (:data:`SERIES`) into ``folder``; returns their paths."""
     from .files import make_folder
-    from .workbooks.sizes import write_series_template
+    from .workbooks.size_series import write_series_template
 
     folder = make_folder(folder)
     return [write_series_template(folder / s.file, s.values, _series_table(s)) for s in SERIES]
@@ -329,7 +329,7 @@ def run(folder: str | os.PathLike[str] | None = None) -> DemoResult:
     from .files import atomic_write
     from .report import text_report
     from .selection import select
-    from .workbooks.selection import write_selection
+    from .workbooks.selection_book import write_selection
 
     out = Path(folder) if folder is not None else _new_folder(Path.cwd() / "sheetpump-demo")
     inputs = write_inputs(out / "inputs")

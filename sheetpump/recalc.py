@@ -1,7 +1,7 @@
 """Headless recalculation: compute every formula of a workbook, sheetpump's cell functions included.
 
 The standard spreadsheet functions are evaluated by the ``formulas`` package (an Excel formula engine);
-sheetpump adds every :class:`~sheetpump.calc.Calculation` of :data:`~sheetpump.catalogue.CATALOGUE` to
+sheetpump adds every :class:`~sheetpump.declarations.Calculation` of :data:`~sheetpump.catalogue.CATALOGUE` to
 it under its cell-function name, so ``=SP_HYDRAULIC_POWER(A2, B2)`` or
 ``=SP_HYDRAULIC_POWER("3000 psi", B2, "hp")`` compute exactly as :meth:`Calculation.cell` does. A new
 declaration in the catalogue needs nothing here.
@@ -52,8 +52,8 @@ from xml.sax.saxutils import escape
 import numpy as np
 from defusedxml import ElementTree
 
-from .calc import Calculation
 from .catalogue import CATALOGUE
+from .declarations import Calculation
 from .errors import InputError, Where
 from .files import atomic_path, check_outputs
 

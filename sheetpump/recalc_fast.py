@@ -42,8 +42,8 @@ from typing import Any
 
 import numpy as np
 
-from .calc import Calculation
 from .catalogue import CATALOGUE
+from .declarations import Calculation
 from .errors import InputError
 from .recalc import (
     _CELL_RE,

@@ -1,7 +1,7 @@
 """Which size of each supplier's series does the machine need? The domain decision of ``sheetpump select``.
 
 A :class:`SizeSeries` is one supplier's series: one :class:`~sheetpump.datasheet.Datasheet` per size (read
-by :mod:`sheetpump.workbooks.sizes`). :func:`select` checks every size of every series with the rules of
+by :mod:`sheetpump.workbooks.size_series`). :func:`select` checks every size of every series with the rules of
 :func:`sheetpump.checks.check`, sizes the motor and prices the energy as :mod:`sheetpump.comparison`
 does, and proposes per series **the smallest displacement that fails no rule** (ties: the lower
 price, then the lower drive power). It says why each smaller size fails (its failing rules and margins)

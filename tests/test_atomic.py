@@ -56,7 +56,7 @@ def test_atomic_write_keeps_the_old_file_when_the_body_fails(tmp_path):
 
 
 def test_compare_crashing_mid_write_keeps_the_old_comparison(inputs, old_output, monkeypatch, capsys):
-    from sheetpump.workbooks import comparison
+    from sheetpump.workbooks import comparison_book as comparison
 
     before = sha256(old_output)
 

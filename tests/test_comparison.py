@@ -15,7 +15,7 @@ from sheetpump.comparison import compare
 from sheetpump.datasheet import Datasheet
 from sheetpump.duty import Application, Duty, Oil
 from sheetpump.physics import drive
-from sheetpump.workbooks.comparison import write_comparison
+from sheetpump.workbooks.comparison_book import write_comparison
 
 try:
     from tests import libreoffice as lo

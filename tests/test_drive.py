@@ -12,7 +12,6 @@ from hypothesis import given
 from hypothesis import strategies as st
 from hypothesis.extra import numpy as hnp
 
-from sheetpump import calc
 from sheetpump.catalogue import CATALOGUE
 from sheetpump.physics import drive
 from sheetpump.physics.pump import PhysicsError
@@ -301,13 +300,9 @@ def test_vectorised_rating_equals_one_at_a_time(loads, standard):
             assert series[k - 1] < rms[i] or 1.6 * series[k - 1] < peak[i]
 
 
-# --- motor cells: declared once sheetpump.calc has a text-choice argument kind (Choice) --------------
-
-needs_choice = pytest.mark.skipif(not hasattr(calc, "Choice"),
-                                  reason="SP_MOTOR_SIZE/SP_MOTOR_EFF need calc.Choice (proposed)")
+# --- motor cells: the motor standard is a text-choice argument (declarations.Choice) --------------------
 
 
-@needs_choice
 def test_motor_size_cell_in_kw_and_hp():
     # the cycle done by hand (RMS √120 kW, peak 18 kW): 15 kW IEC; 20 hp NEMA (peak 24.1 hp > 1.6 x 15 hp)
     assert cell("SP_MOTOR_SIZE", math.sqrt(120), 18, "IEC") == pytest.approx(15.0, rel=1e-12)
@@ -321,7 +316,6 @@ def test_motor_size_cell_in_kw_and_hp():
         "#SP! rms_power: is 2000 kW, beyond the continuous rating of the largest IEC motor (1000 kW)")
 
 
-@needs_choice
 def test_motor_eff_cell():
     # IE3 11 kW 4-pole 91.4 % (IEC 60034-30-1, from memory); NEMA Premium 15 hp 92.4 % (fluids, above)
     assert cell("SP_MOTOR_EFF", 11, "IEC") == pytest.approx(0.914, abs=1e-12)

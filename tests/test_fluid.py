@@ -16,8 +16,8 @@ from fluids.core import nu_mu_converter
 from hypothesis import assume, given
 from hypothesis import strategies as st
 
-from sheetpump.calc import ERROR_PREFIX
 from sheetpump.catalogue import CATALOGUE
+from sheetpump.declarations import ERROR_PREFIX
 from sheetpump.physics import fluid
 from sheetpump.physics.pump import PhysicsError
 

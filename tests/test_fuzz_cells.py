@@ -25,8 +25,8 @@ from hypothesis import HealthCheck, example, given, settings
 from hypothesis import strategies as st
 
 from sheetpump import cells
-from sheetpump.calc import ERROR_PREFIX
 from sheetpump.catalogue import CATALOGUE
+from sheetpump.declarations import ERROR_PREFIX
 from sheetpump.workbooks.templates import UNITS
 
 # Any RuntimeWarning (numpy's "overflow encountered in multiply", ...) fails the test: a cell function

@@ -18,8 +18,8 @@ import pytest
 from hypothesis import given, settings
 from hypothesis import strategies as st
 
-from sheetpump.calc import ERROR_PREFIX
 from sheetpump.catalogue import CATALOGUE
+from sheetpump.declarations import ERROR_PREFIX
 from sheetpump.physics.losses import (
     FLAG_TEXT,
     UNCERTAINTY_FLOOR,

@@ -72,7 +72,7 @@ def test_demo_comparison_prints_on_few_pages(demo_run, tmp_path, paper):
         comp = compare([read_datasheet(p) for p in demo_run.inputs[1:]], app)
         book = tmp_path / "letter" / "comparison.xlsx"
         book.parent.mkdir()
-        from sheetpump.workbooks.comparison import write_comparison
+        from sheetpump.workbooks.comparison_book import write_comparison
         write_comparison(book, comp, demo_run.inputs, paper="Letter")
     # LibreOffice's plain PDF export: a fresh profile with default settings, no filter options
     pdf = lo.to_pdf_many([book], tmp_path / "pdf", recalc="default")[0]

@@ -17,9 +17,9 @@ import openpyxl
 import pytest
 import xlsxwriter
 
-from sheetpump.calc import Arg, Calculation
 from sheetpump.catalogue import CATALOGUE
 from sheetpump.cli import main
+from sheetpump.declarations import Arg, Calculation
 from sheetpump.errors import InputError
 from sheetpump.files import sha256
 from sheetpump.recalc import (

@@ -1,4 +1,4 @@
-"""Series of sizes: the series workbook's reader (sheetpump.workbooks.sizes), the proposal
+"""Series of sizes: the series workbook's reader (sheetpump.workbooks.size_series), the proposal
 (sheetpump.selection), ``sheetpump select`` and ``compare`` with series workbooks.
 
 Pumps, series and machines here are invented. The right size of each series is worked out by hand in the
@@ -25,7 +25,7 @@ from sheetpump.duty import Application, Duty, Oil
 from sheetpump.errors import InputError
 from sheetpump.physics.losses import WilsonModel
 from sheetpump.selection import motor_speeds, select
-from sheetpump.workbooks.sizes import read_size_series, write_series_template
+from sheetpump.workbooks.size_series import read_size_series, write_series_template
 
 ROOT = Path(__file__).resolve().parents[1]
 DEMO_APP = ROOT / "workbooks" / "demo" / "baling-press.xlsx"
@@ -432,7 +432,7 @@ def test_demo_series_and_compare_takes_the_proposed_size(tmp_path, capsys):
 
 def test_selection_workbook_print_rules(tmp_path):
     from sheetpump.workbooks import read_application
-    from sheetpump.workbooks.selection import write_selection
+    from sheetpump.workbooks.selection_book import write_selection
 
     series = sorted(str(p) for p in (ROOT / "workbooks" / "demo").glob("series-*.xlsx"))
     app = read_application(str(DEMO_APP))

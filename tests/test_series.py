@@ -14,7 +14,7 @@ import pytest
 import xlsxwriter
 
 from sheetpump.errors import InputError
-from sheetpump.workbooks.series import parse_header, read_series
+from sheetpump.workbooks.time_series import parse_header, read_series
 
 REF = pint.UnitRegistry()
 

@@ -295,7 +295,7 @@ def test_the_surplus_heat_recomputes_in_libreoffice(tmp_path):
     from sheetpump.comparison import compare
     from sheetpump.datasheet import Datasheet
     from sheetpump.duty import Application, Duty, Oil
-    from sheetpump.workbooks.comparison import write_comparison
+    from sheetpump.workbooks.comparison_book import write_comparison
 
     duty = Duty(duration=np.array([20.0, 10.0]), pressure=np.array([100e5, 200e5]),
                 flow=np.array([30 / 60000, 20 / 60000]), speed=np.full(2, 25.0), temperature=np.full(2, 323.15),

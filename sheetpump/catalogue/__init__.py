@@ -6,10 +6,10 @@ declaration points at the physics function that holds the formula.
 
 from __future__ import annotations
 
-from ..calc import Registry
+from ..declarations import Catalogue
 
 #: Every declared calculation, by cell-function name, in declaration order.
-CATALOGUE = Registry()
+CATALOGUE = Catalogue()
 
 
 def _load() -> None:

@@ -4,16 +4,13 @@ The formulas and the standard tables live in :mod:`sheetpump.physics.drive`; thi
 a cell calls them. A range of segment powers and a range of segment durations (a row or a column
 each, in the same order) reduce to one number.
 
-``SP_MOTOR_SIZE`` and ``SP_MOTOR_EFF`` take the motor standard as a word ("IEC" or "NEMA"). They are
-declared only when :mod:`sheetpump.calc` offers a text-choice argument kind, ``Choice(name, options)``
-used as an ``Arg``'s kind; until then the physics functions :func:`~sheetpump.physics.drive.motor_rating`
-and :func:`~sheetpump.physics.drive.motor_efficiency` serve the checker and the comparison directly.
+``SP_MOTOR_SIZE`` and ``SP_MOTOR_EFF`` take the motor standard as a word ("IEC" or "NEMA"), a
+:class:`~sheetpump.declarations.Choice` argument.
 """
 
 from __future__ import annotations
 
-from .. import calc
-from ..calc import Arg, Calculation
+from ..declarations import Arg, Calculation, Choice
 from ..physics import drive
 from ..units import DURATION, EFFICIENCY, ENERGY, POWER
 from . import CATALOGUE
@@ -39,19 +36,16 @@ declare(Calculation(
     "(one value: the full-load efficiency); the comparison uses the part-load model.",
     example=([12.5, 18.0, 4.0], [20, 8, 30], 0.92)))
 
-# Needs a text-choice argument kind in sheetpump.calc (proposed, not there yet).
-_Choice = getattr(calc, "Choice", None)
-if _Choice is not None:  # pragma: no cover - declared once calc.Choice exists
-    _STD = Arg("standard", _Choice("motor standard", drive.STANDARDS),
-               "Motor standard: IEC (kW series, IE3) or NEMA (hp series, NEMA Premium)")
-    declare(Calculation(
-        "SP_MOTOR_SIZE", drive.motor_rating,
-        (Arg("rms_power", POWER, "RMS power of the cycle"),
-         Arg("peak_power", POWER, "Highest power of the cycle"), _STD), POWER,
-        "Smallest standard motor rating covering the RMS power and, at 1.6 x rating, the peak.",
+_STD = Arg("standard", Choice("motor standard", drive.STANDARDS),
+           "Motor standard: IEC (kW series, IE3) or NEMA (hp series, NEMA Premium)")
+declare(Calculation(
+    "SP_MOTOR_SIZE", drive.motor_rating,
+    (Arg("rms_power", POWER, "RMS power of the cycle"),
+     Arg("peak_power", POWER, "Highest power of the cycle"), _STD), POWER,
+    "Smallest standard motor rating covering the RMS power and, at 1.6 x rating, the peak.",
     example=(9.8, 18.0, "IEC")))
-    declare(Calculation(
-        "SP_MOTOR_EFF", drive.motor_efficiency,
-        (Arg("rated_power", POWER, "Rated output of the motor"), _STD), EFFICIENCY,
-        "Full-load efficiency of a standard motor: IEC IE3 or NEMA Premium, 4-pole.",
+declare(Calculation(
+    "SP_MOTOR_EFF", drive.motor_efficiency,
+    (Arg("rated_power", POWER, "Rated output of the motor"), _STD), EFFICIENCY,
+    "Full-load efficiency of a standard motor: IEC IE3 or NEMA Premium, 4-pole.",
     example=(11, "IEC")))

@@ -6,7 +6,7 @@ says how a cell calls them.
 
 from __future__ import annotations
 
-from ..calc import Arg, Calculation
+from ..declarations import Arg, Calculation
 from ..physics import fluid
 from ..units import DENSITY, DYN_VISCOSITY, NUMBER, TEMPERATURE, VISCOSITY
 from . import CATALOGUE

@@ -9,7 +9,7 @@ may be ranges too. The formulas live in :mod:`sheetpump.physics.losses`.
 
 from __future__ import annotations
 
-from ..calc import Arg, Calculation
+from ..declarations import Arg, Calculation
 from ..physics import losses
 from ..units import DISPLACEMENT, DYN_VISCOSITY, EFFICIENCY, FLOW, NUMBER, POWER, PRESSURE, SPEED, TORQUE
 from . import CATALOGUE

@@ -5,7 +5,7 @@ The formulas live in :mod:`sheetpump.physics.pump`; this module only says how a 
 
 from __future__ import annotations
 
-from ..calc import Arg, Calculation
+from ..declarations import Arg, Calculation
 from ..physics import pump
 from ..units import DISPLACEMENT, EFFICIENCY, FLOW, FREQUENCY, NUMBER, POWER, PRESSURE, SPEED, TORQUE
 from . import CATALOGUE

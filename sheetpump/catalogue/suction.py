@@ -7,7 +7,7 @@ how a cell calls them.
 
 from __future__ import annotations
 
-from ..calc import Arg, Calculation
+from ..declarations import Arg, Calculation
 from ..physics import suction
 from ..units import ABS_PRESSURE, DENSITY, DIAMETER, FLOW, LENGTH, NUMBER, PRESSURE, VELOCITY, VISCOSITY
 from . import CATALOGUE

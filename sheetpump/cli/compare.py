@@ -64,8 +64,8 @@ def build(app_path: str, datasheets: list[str], out: str, units: str = "metric",
 
     ``settings`` (when given) replaces ``units`` and ``strict``, with the motor settings."""
     from ..comparison import compare
-    from ..workbooks.comparison import write_comparison
-    from ..workbooks.sizes import is_series_workbook
+    from ..workbooks.comparison_book import write_comparison
+    from ..workbooks.size_series import is_series_workbook
 
     app = _check._read(_check._read_application, app_path, "application workbook")
     paths = datasheet_paths(datasheets, app_path)

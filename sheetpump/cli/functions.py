@@ -5,8 +5,8 @@ from __future__ import annotations
 import argparse
 import json
 
-from ..calc import Calculation
 from ..catalogue import CATALOGUE
+from ..declarations import Calculation
 
 
 def describe(calc: Calculation) -> dict[str, object]:

@@ -23,7 +23,7 @@ EXIT_OK, EXIT_FAIL = 0, 1
 
 def read_series(path: str) -> Any:
     """Read one series workbook with the command line's error handling."""
-    from ..workbooks.sizes import read_size_series
+    from ..workbooks.size_series import read_size_series
 
     return _check._read(read_size_series, path, "series workbook")
 
@@ -31,7 +31,7 @@ def read_series(path: str) -> Any:
 def run(args: argparse.Namespace) -> int:
     from ..selection import select
     from ..selection_report import json_selection, junit_selection, text_selection
-    from ..workbooks.selection import write_selection
+    from ..workbooks.selection_book import write_selection
 
     app = _check._read(_check._read_application, args.app, "application workbook")
     paths = list(args.series)

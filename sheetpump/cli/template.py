@@ -10,7 +10,7 @@ from ..files import check_outputs
 
 
 def run(args: argparse.Namespace) -> int:
-    from ..workbooks.sizes import write_series_template
+    from ..workbooks.size_series import write_series_template
     from ..workbooks.templates import write_template
 
     target = Path(args.output)

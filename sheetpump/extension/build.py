@@ -37,19 +37,19 @@ from pathlib import Path
 from xml.sax.saxutils import escape
 
 from .. import SAFETY_CAUTION, SAFETY_CAUTION_SHORT, __version__
-from ..calc import Calculation
 from ..catalogue import CATALOGUE
+from ..declarations import Calculation
 from ..files import atomic_path
 from .typelib import interface_library
 
 __all__ = ["IDENTIFIER", "IMPLEMENTATION", "INTERFACE", "build", "contents", "recorded_paths"]
 
 #: The extension's identifier (unopkg lists it), the component's service name and its interface.
-IDENTIFIER = "org.sheetpump.calc"
-IMPLEMENTATION = "org.sheetpump.calc.CellFunctions"
-INTERFACE = "org.sheetpump.calc.XCellFunctions"
+IDENTIFIER = "org.sheetpump.declarations"
+IMPLEMENTATION = "org.sheetpump.declarations.CellFunctions"
+INTERFACE = "org.sheetpump.declarations.XCellFunctions"
 #: The job that mends SP_ names in .xlsx formulas on opening and saving (see the component).
-NAMES_JOB = "org.sheetpump.calc.Names"
+NAMES_JOB = "org.sheetpump.declarations.Names"
 #: The document events it runs on: opening, and after Save and Save As (not after "save a copy", whose
 #: target LibreOffice does not tell a job).
 _JOB_EVENTS = ("OnLoadFinished", "OnSaveDone", "OnSaveAsDone")
@@ -179,7 +179,7 @@ import uno
 import unohelper
 from com.sun.star.lang import XServiceInfo
 from com.sun.star.task import XJob
-from org.sheetpump.calc import XCellFunctions
+from org.sheetpump.declarations import XCellFunctions
 
 PATHS = {paths!r}
 BUILT_WITH = "sheetpump {version} in Python {python} ({executable})"

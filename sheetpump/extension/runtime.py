@@ -22,8 +22,8 @@ from typing import Any
 
 import numpy as np
 
-from ..calc import ERROR_PREFIX
 from ..catalogue import CATALOGUE
+from ..declarations import ERROR_PREFIX
 
 __all__ = ["call"]
 

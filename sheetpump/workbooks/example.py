@@ -18,8 +18,8 @@ from typing import Any
 from xlsxwriter.utility import xl_rowcol_to_cell
 
 from .. import SAFETY_CAUTION
-from ..calc import Calculation
 from ..catalogue import CATALOGUE
+from ..declarations import Calculation
 from .writer import open_book, write_formula, write_value
 
 __all__ = ["EXAMPLE_SHEET", "RANGES_SHEET", "write_worked_example"]

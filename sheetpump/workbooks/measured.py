@@ -25,7 +25,7 @@ Performance sheet of sheetpump's datasheet template). Without ``--sheet`` the fi
 row is read. An empty row is skipped; an empty cell in a row with values is a missing value (the point is
 flagged and left out); text in a number column is refused, naming the cell.
 
-The header parsing (:func:`sheetpump.workbooks.series.match_columns`) and the guarded opening of the file
+The header parsing (:func:`sheetpump.workbooks.time_series.match_columns`) and the guarded opening of the file
 (:mod:`sheetpump.workbooks.safe`) are those of the time-series reader.
 """
 
@@ -43,8 +43,8 @@ from .. import units as u
 from ..errors import InputError, Where
 from ..evaluation import MeasuredTable
 from .safe import check_file, sheet_members
-from .series import column_letter, match_columns, parse_header, read_csv_table, read_xlsx_table
 from .templates import Column
+from .time_series import column_letter, match_columns, parse_header, read_csv_table, read_xlsx_table
 
 __all__ = ["HEADER_SEARCH_ROWS", "MEASURED_COLUMNS", "read_measured"]
 

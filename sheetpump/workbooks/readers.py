@@ -38,7 +38,6 @@ from ..errors import InputError, Where
 from ..suction import line_from_fields
 from ..units import Kind, check_span, physical_unit, split_number, unit_factor
 from .safe import holds_formulas, open_workbook
-from .series import column_letter, match_columns, parse_header, read_series
 from .templates import (
     APPLICATION_FIELDS,
     CHOICE,
@@ -58,6 +57,7 @@ from .templates import (
     Column,
     Field,
 )
+from .time_series import column_letter, match_columns, parse_header, read_series
 
 __all__ = [
     "Book",
@@ -775,7 +775,7 @@ def read_application(path: str | os.PathLike[str]) -> Application:
     ASTM D2270) or two viscosity–temperature points. The duty is the "Duty" sheet (one row per segment;
     empty speed / temperature / inlet pressure cells take ``drive_speed`` / ``oil_temperature`` /
     ``inlet_pressure``) or the measured series named by ``duty_series`` (path relative to the
-    workbook), read by :func:`~sheetpump.workbooks.series.read_series`; not both.
+    workbook), read by :func:`~sheetpump.workbooks.time_series.read_series`; not both.
 
     Raises
     ------
@@ -918,7 +918,7 @@ def _segments(book: _Book, sheet: Any, defaults: dict[str, float | None], wraps:
                 columns=letters, where=Where(book.file, sheet.title))
 
 
-# --- shared with the other readers that follow the same cell rules (sheetpump.workbooks.sizes) ---------
+# --- shared with the other readers that follow the same cell rules (sheetpump.workbooks.size_series) ---------
 
 #: A workbook opened with the cell rules of every reader (cached values, formulas evaluated, errors named).
 Book = _Book

@@ -1,4 +1,4 @@
-"""Reading a measured duty log of 1,000,000 rows (``sheetpump.workbooks.series.read_series``).
+"""Reading a measured duty log of 1,000,000 rows (``sheetpump.workbooks.time_series.read_series``).
 
 The log is invented (see :func:`write_logs`): six columns ``time [s]``, ``pressure [bar]``, ``flow
 [L/min]``, ``speed [rpm]``, ``temperature [degC]``, ``inlet pressure [bara]``, sampled at 1 kHz. The files
@@ -21,7 +21,7 @@ from typing import Any
 
 import numpy as np
 
-from sheetpump.workbooks.series import read_series
+from sheetpump.workbooks.time_series import read_series
 
 from .common import compare, median_time, row
 

@@ -33,7 +33,7 @@ from .errors import InputError, Where
 from .physics.pump import PhysicsError
 from .units import Kind, all_finite, check_unit, to_si, unit_factor, ureg
 
-__all__ = ["ERROR_PREFIX", "Arg", "Calculation", "Registry"]
+__all__ = ["ERROR_PREFIX", "Arg", "Calculation", "Catalogue", "Choice"]
 
 _isfinite = math.isfinite
 _QUANTITY = ureg.Quantity
@@ -192,13 +192,6 @@ class Calculation:
         parts.append("[unit]")
         return f"{self.name}({', '.join(parts)})"
 
-    # -- Python-side evaluation -------------------------------------------------------------------
-    def si(self, *values: Any) -> float | np.ndarray:
-        """Convert cell values to SI and compute; raises :class:`InputError` or ``PhysicsError``."""
-        if len(values) > len(self.args):
-            raise InputError(f"{self.name} takes at most {len(self.args)} arguments and a result unit")
-        return self._compute(values, si=True)
-
     def _argument(self, i: int, value: Any) -> Any:
         a = self.args[i]
         if a.one_value and isinstance(value, (list, tuple, np.ndarray, _QUANTITY)):
@@ -240,8 +233,8 @@ class Calculation:
         """
         return self._compute(values)
 
-    def _compute(self, values: tuple[Any, ...], si: bool = False) -> float | np.ndarray:
-        """Cell values (and an optional result unit) to the result; ``si``: the SI result as it comes."""
+    def _compute(self, values: tuple[Any, ...]) -> float | np.ndarray:
+        """Cell values (and an optional result unit) to the result in the asked unit."""
         factors = self._factors
         n = len(factors)
         if len(values) > n:
@@ -283,15 +276,13 @@ class Calculation:
             # durations that overflows would otherwise divide another sum to a wrong 0).
             try:
                 with np.errstate(over="raise", invalid="raise", divide="raise"):
-                    return self._guarded(values, converted, si, factor, offset)
+                    return self._guarded(values, converted, factor, offset)
             except FloatingPointError as exc:
                 raise InputError(f"a value too large or too small to compute with ({exc})",
                                  hint="check for huge or tiny inputs") from None
         for i in range(len(values), n):
             converted.append(self._argument(i, None))  # an argument not given is an empty cell
         result = self.func(*converted)  # Python floats through plain products: nothing can warn
-        if si:
-            return result
         if type(result) is float:  # inline: the scalar path is a handful of operations
             out = (result - offset) / factor if offset else result / factor
             if _isfinite(out):
@@ -299,13 +290,13 @@ class Calculation:
             raise _not_finite()
         return self._result(result, factor, offset, values)
 
-    def _guarded(self, values: tuple[Any, ...], converted: list[Any], si: bool, factor: float,
+    def _guarded(self, values: tuple[Any, ...], converted: list[Any], factor: float,
                  offset: float) -> float | np.ndarray:
         """The rest of :meth:`_compute` past the numbers in default units (under ``np.errstate``)."""
         n = len(self._factors)
         if len(converted) < len(values):  # a range, a text with a unit, an empty cell, ...
             first = values[len(converted)]
-            if (self.scaling is not None and not si and not offset and len(values) == n
+            if (self.scaling is not None and not offset and len(values) == n
                     and (type(first) is np.ndarray or isinstance(first, _QUANTITY))):
                 folded = self._folded(values, factor)
                 if folded is not None:
@@ -315,8 +306,6 @@ class Calculation:
         for i in range(len(values), n):
             converted.append(self._argument(i, None))  # an argument not given is an empty cell
         result = self.func(*converted)
-        if si:
-            return result
         return self._result(result, factor, offset, values)
 
     @staticmethod
@@ -527,7 +516,7 @@ def _array_result(result: np.ndarray, factor: float, offset: float, values: tupl
     return result
 
 
-class Registry(dict[str, Calculation]):
+class Catalogue(dict[str, Calculation]):
     """All declared calculations by cell-function name."""
 
     def declare(self, calc: Calculation) -> Calculation:

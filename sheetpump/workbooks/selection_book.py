@@ -29,7 +29,7 @@ from ..comparison import Candidate
 from ..files import sha256
 from ..selection import SLIP, STANDARD_POLES, Selection, worst
 from ..units import DISPLACEMENT, POWER, from_si
-from .comparison import print_options
+from .comparison_book import print_options
 from .writer import (
     LINE_HEIGHT,
     PCT,

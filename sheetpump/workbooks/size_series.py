@@ -1,6 +1,6 @@
 """The series workbook: one supplier's series of sizes — its blank template and its reader.
 
-(Not to be confused with :mod:`sheetpump.workbooks.series`, the reader of measured *time* series.)
+(Not to be confused with :mod:`sheetpump.workbooks.time_series`, the reader of measured *time* series.)
 
 Sheet **Series**: a header row ``field | unit | size 1 | size 2 …``; column A the field names of the
 datasheet's Pump sheet (plus ``series`` and ``frame``), column B their unit, columns C onward one size
@@ -30,7 +30,6 @@ from ..datasheet import Datasheet, PerformanceTable
 from ..errors import InputError, Where
 from ..selection import SizeSeries
 from .readers import Book, check_datasheet_fields, convert, datasheet_from_fields, performance_table, read_table
-from .series import column_letter
 from .templates import (
     CHOICE,
     DATASHEET_FIELDS,
@@ -42,6 +41,7 @@ from .templates import (
     Field,
     write_top,
 )
+from .time_series import column_letter
 from .writer import open_book, write_value
 
 __all__ = ["SERIES_FIELDS", "SERIES_SHEET", "is_series_workbook", "read_size_series", "write_series_template"]
