@@ -324,20 +324,17 @@ def run(folder: str | os.PathLike[str] | None = None) -> DemoResult:
 
     Without ``folder`` a new folder ``sheetpump-demo`` (or ``-2``, ``-3`` …) in the current directory.
     """
-    from .cli.compare import build
-    from .cli.select import read_series
     from .files import atomic_write
-    from .report import text_report
-    from .selection import select
-    from .workbooks.selection_book import write_selection
+    from .pipeline import compare_files, select_files
+    from .reports.text import text_report
 
     out = Path(folder) if folder is not None else _new_folder(Path.cwd() / "sheetpump-demo")
     inputs = write_inputs(out / "inputs")
     comparison = out / "comparison.xlsx"
-    comp = build(str(inputs[0]), [str(p) for p in inputs[1:]], str(comparison))
+    comp = compare_files(str(inputs[0]), [str(p) for p in inputs[1:]], comparison)
     series_paths = write_series(out / "inputs")
-    sel = select([read_series(str(p)) for p in series_paths], comp.application)
-    selection = write_selection(out / "selection.xlsx", sel, inputs=[inputs[0], *series_paths])
+    selection = out / "selection.xlsx"
+    sel = select_files(str(inputs[0]), [str(p) for p in series_paths], output=selection).selection
     report = out / "report.txt"
     text = text_report(comp, strict=False)
     if SAFETY_CAUTION not in text:
@@ -346,4 +343,3 @@ def run(folder: str | os.PathLike[str] | None = None) -> DemoResult:
     return DemoResult(out, inputs, comparison, report,
                       {c.datasheet.label: c.result.verdict for c in comp.candidates}, selection,
                       {ch.series.name: ch.choice.datasheet.model if ch.choice else None for ch in sel.choices})
-

@@ -1,4 +1,4 @@
-"""Tests of ``sheetpump check`` (sheetpump.cli.check) and its outputs (sheetpump.report).
+"""Tests of ``sheetpump check`` (sheetpump.cli.check, sheetpump.pipeline) and its outputs (sheetpump.reports).
 
 The workbook readers are replaced by stand-ins that return invented pumps and an invented machine built
 in code (the command layer is what is tested here; the readers have their own tests). The datasheet
@@ -17,13 +17,14 @@ import openpyxl
 import pytest
 
 import sheetpump
-from sheetpump.cli import check as check_cli
 from sheetpump.cli import main
 from sheetpump.datasheet import Datasheet
 from sheetpump.duty import Application, Duty, Oil
 from sheetpump.errors import InputError, Where
 from sheetpump.files import sha256
-from sheetpump.report import FILLS, FINDINGS_SHEET
+from sheetpump.reports.annotate import FINDINGS_SHEET
+from sheetpump.workbooks import readers
+from sheetpump.workbooks.writer import VERDICT_FILLS as FILLS
 
 OIL = Oil(46e-6, 313.15, 6.8e-6, 373.15, name="invented VG 46")
 
@@ -69,8 +70,8 @@ def files(tmp_path, monkeypatch):
     state = {"app": machine(str(app_path)),
              "pumps": {str(good): pump(str(good)),
                        str(bad): pump(str(bad), speed_max=20.0)}}  # 1200 rpm: the duty's 1500 fails
-    monkeypatch.setattr(check_cli, "_read_application", lambda path: state["app"])
-    monkeypatch.setattr(check_cli, "_read_datasheet", lambda path: state["pumps"][path])
+    monkeypatch.setattr(readers, "read_application", lambda path: state["app"])
+    monkeypatch.setattr(readers, "read_datasheet", lambda path: state["pumps"][path])
     return {"app": str(app_path), "good": str(good), "bad": str(bad), "state": state, "dir": tmp_path}
 
 
@@ -119,7 +120,7 @@ def test_exit_2_when_the_reader_refuses(files, capsys, monkeypatch):
     def refuse(path):
         raise InputError("missing (empty cell)", Where(sheet="Ratings", cell="C7", field="pressure_continuous"))
 
-    monkeypatch.setattr(check_cli, "_read_datasheet", refuse)
+    monkeypatch.setattr(readers, "read_datasheet", refuse)
     code, _, err = run(capsys, "--app", files["app"], files["good"])
     assert code == 2
     assert "nk22.xlsx Ratings!C7 (pressure_continuous): missing" in err

@@ -310,7 +310,7 @@ def test_imperial_display_round_trips_through_pint():
     import json
 
     from sheetpump.comparison import compare
-    from sheetpump.report import json_report
+    from sheetpump.reports.json_report import json_report
 
     doc = json.loads(json_report(compare([ds], app_for(duty(quiet(ds))), CheckSettings(units="imperial"))))
     cont = next(f for f in doc["pumps"][0]["findings"] if f["rule"] == "pressure.continuous")
@@ -675,7 +675,9 @@ def test_a_rule_not_checked_that_matters_makes_the_verdict_at_best_warn():
     import json
     import xml.etree.ElementTree as ET
 
-    from sheetpump.report import json_report, junit_report, text_report
+    from sheetpump.reports.json_report import json_report
+    from sheetpump.reports.junit import junit_report
+    from sheetpump.reports.text import text_report
 
     comp = compare([blank], app)
     doc = json.loads(json_report(comp))

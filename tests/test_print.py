@@ -23,8 +23,8 @@ import pytest
 from sheetpump import SAFETY_CAUTION_SHORT, demo
 from sheetpump.cli import main
 from sheetpump.comparison import compare
-from sheetpump.report import FILLS
 from sheetpump.workbooks.readers import read_application, read_datasheet
+from sheetpump.workbooks.writer import VERDICT_FILLS as FILLS
 from sheetpump.workbooks.writer import display_path, number_format, text_lines
 from tests import libreoffice as lo
 

@@ -260,7 +260,7 @@ def test_typed_speeds_inside_the_range_are_kept(tmp_path):
     flow = next(f for f in choice.choice.result.findings if f.rule == "flow.delivered")
     assert flow.margin == pytest.approx(36 * 1.4 * 0.92 / 44 - 1, rel=1e-6)
     assert "typed speeds" in choice.speed_note
-    from sheetpump.selection_report import text_selection
+    from sheetpump.reports.selection_report import text_selection
 
     assert "drive speed: checked at the duty's typed speeds" in text_selection(select([series], app))
     for c in choice.candidates:

@@ -20,8 +20,9 @@ from sheetpump import demo
 from sheetpump.checks import NOT_CHECKED, RULES
 from sheetpump.cli import main
 from sheetpump.physics import drive
-from sheetpump.report import FILLS, FINDINGS_SHEET
+from sheetpump.reports.annotate import FINDINGS_SHEET
 from sheetpump.workbooks.writer import STYLES
+from sheetpump.workbooks.writer import VERDICT_FILLS as FILLS
 from tests import libreoffice as lo
 
 #: The ratings the issue blanks: torque limit, inlet limits, temperature range, cleanliness, rotation.

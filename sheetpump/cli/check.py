@@ -12,63 +12,11 @@ from __future__ import annotations
 
 import argparse
 import sys
-from pathlib import Path
-from typing import Any
 
-from ..checks import FAIL, CheckResult, CheckSettings
-from ..errors import InputError, Where
-from ..files import atomic_write, check_outputs
+from ..checks import FAIL, CheckSettings
 from ..physics import drive
-from ..physics.pump import PhysicsError
 
 EXIT_OK, EXIT_FAIL = 0, 1
-
-
-def _read_application(path: str) -> Any:
-    from ..workbooks import read_application
-
-    return read_application(path)
-
-
-def _read_datasheet(path: str) -> Any:
-    from ..workbooks import read_datasheet
-
-    return read_datasheet(path)
-
-
-def _exists(path: str, what: str) -> None:
-    p = Path(path)
-    if not p.is_file():
-        raise InputError(f"{what} not found" if not p.exists() else f"{what} is not a file",
-                         Where(file=path))
-
-
-def _read(reader: Any, path: str, what: str) -> Any:
-    _exists(path, what)
-    try:
-        return reader(path)
-    except InputError as exc:
-        raise exc.at(file=path) from None
-    except PhysicsError as exc:
-        raise InputError(f"{exc.argument} {exc.reason}", Where(file=path, field=exc.argument)) from None
-    except OSError as exc:
-        raise InputError(f"cannot read the {what} ({exc.strerror or exc})", Where(file=path)) from None
-
-
-def annotate_target(out: str, datasheet: str, several: bool) -> Path:
-    """The annotated copy's path: ``out`` itself for one datasheet, ``out``'s stem + datasheet stem else."""
-    target = Path(out)
-    if not several:
-        return target
-    return target.with_name(f"{target.stem}-{Path(datasheet).stem}{target.suffix or '.xlsx'}")
-
-
-def inputs_of(app: Any, app_path: str, datasheets: list[str]) -> list[tuple[str, str]]:
-    """The input files of a check or comparison, each with what it is (for :func:`check_outputs`)."""
-    found = [("the application workbook", app_path)]
-    if app.duty.source == "series" and app.duty.where.file:
-        found.append(("the application's duty log", app.duty.where.file))
-    return found + [("a datasheet", path) for path in datasheets]
 
 
 def settings_from(args: argparse.Namespace) -> CheckSettings:
@@ -109,32 +57,13 @@ def add_motor_options(parser: argparse.ArgumentParser) -> None:
 
 
 def run(args: argparse.Namespace) -> int:
-    from .. import report
-    from ..comparison import compare
+    from ..pipeline import check_files
 
-    settings = settings_from(args)
-    app = _read(_read_application, args.app, "application workbook")
-    sheets = [_read(_read_datasheet, path, "datasheet workbook") for path in args.datasheets]
-    comp = compare(sheets, app, settings)  # an error in one datasheet's check names its file
-    results: list[CheckResult] = [c.result for c in comp.candidates]
-    several = len(results) > 1
-    annotated = [annotate_target(args.annotate, path, several) for path in args.datasheets] if args.annotate else []
-    shown = [str(target) for target in annotated] if several else [args.annotate] * len(annotated)  # as typed
-    outputs = [*(("--annotate", target) for target in shown), ("--junit", args.junit), ("--output", args.output)]
-    check_outputs([(option, path) for option, path in outputs if path], inputs_of(app, args.app, args.datasheets))
-    for path, r, target in zip(args.datasheets, results, annotated, strict=False):
-        report.annotate(r, target, source=path)
-    if args.junit:
-        atomic_write(args.junit, report.junit_report(results, strict=args.strict))
-    if args.format == "json":
-        text = report.json_report(comp, strict=args.strict)
-    else:
-        text = report.text_report(comp, strict=args.strict)
-    if args.output:
-        atomic_write(args.output, text)
-    else:
-        sys.stdout.write(text)
-    return EXIT_FAIL if any(r.verdict == FAIL for r in results) else EXIT_OK
+    done = check_files(args.app, args.datasheets, settings_from(args), report_format=args.format,
+                       output=args.output, junit=args.junit, annotate=args.annotate)
+    if not args.output:
+        sys.stdout.write(done.report)
+    return EXIT_FAIL if any(c.result.verdict == FAIL for c in done.comparison.candidates) else EXIT_OK
 
 
 def register(sub: argparse._SubParsersAction) -> argparse.ArgumentParser:

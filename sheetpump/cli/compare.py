@@ -10,109 +10,22 @@ from __future__ import annotations
 
 import argparse
 import sys
-from dataclasses import replace
-from pathlib import Path
-from typing import Any
 
-from ..checks import FAIL, WARN, CheckSettings
-from ..errors import InputError, Where
-from ..files import check_outputs
-from . import check as _check  # by module: its readers are looked up at call time
+from ..checks import FAIL, WARN
+from . import check as _check  # the options check, compare and select share
 
 EXIT_OK, EXIT_FAIL = 0, 1
 
 
-def datasheet_paths(items: list[str], app: str | None = None) -> list[str]:
-    """Expand folders into their ``.xlsx`` files (sorted; Excel's ``~$`` lock files and the application
-    workbook ``app`` left out)."""
-    paths: list[str] = []
-    skip = Path(app).resolve() if app else None
-    for item in items:
-        p = Path(item)
-        if p.is_dir():
-            found = sorted(str(x) for x in p.iterdir()
-                           if x.suffix.lower() in (".xlsx", ".xlsm") and not x.name.startswith(("~$", "."))
-                           and x.resolve() != skip)
-            if not found:
-                raise InputError("folder holds no .xlsx datasheets", Where(file=item))
-            paths.extend(found)
-        else:
-            paths.append(item)
-    return paths
-
-
-class _Progress:
-    """A one-line progress count on stderr, only when stderr is a terminal and there are many."""
-
-    def __init__(self, total: int, minimum: int = 5) -> None:
-        self.total = total
-        self.on = total >= minimum and sys.stderr.isatty()
-
-    def step(self, i: int, label: str) -> None:
-        if self.on:
-            sys.stderr.write(f"\rchecking {i}/{self.total}: {label[:40]:<40}")
-            sys.stderr.flush()
-
-    def done(self) -> None:
-        if self.on:
-            sys.stderr.write("\r" + " " * 70 + "\r")
-
-
-def build(app_path: str, datasheets: list[str], out: str, units: str = "metric", strict: bool = False,
-          settings: CheckSettings | None = None):
-    """Read, check, compare and write; returns the :class:`~sheetpump.comparison.Comparison`.
-
-    ``settings`` (when given) replaces ``units`` and ``strict``, with the motor settings."""
-    from ..comparison import compare
-    from ..workbooks.comparison_book import write_comparison
-    from ..workbooks.size_series import is_series_workbook
-
-    app = _check._read(_check._read_application, app_path, "application workbook")
-    paths = datasheet_paths(datasheets, app_path)
-    progress = _Progress(len(paths))
-    sheets: list = []
-    for i, path in enumerate(paths, start=1):
-        progress.step(i, Path(path).name)
-        if is_series_workbook(path):
-            from .select import read_series
-
-            sheets.append(read_series(path))
-        else:
-            sheets.append(_check._read(_check._read_datasheet, path, "datasheet workbook"))
-    progress.done()
-    settings = settings or CheckSettings(units=units, strict=strict)
-    inputs = _check.inputs_of(app, app_path, paths)
-    check_outputs([("--output", out)], inputs)
-    sheets, notes = proposed_sizes(sheets, app, settings)
-    comp = compare(sheets, app, settings)
-    if any(notes):
-        comp = replace(comp, candidates=[replace(c, notes=c.notes + n) for c, n in zip(comp.candidates, notes,
-                                                                                       strict=True)])
-    write_comparison(out, comp, inputs=[path for _, path in inputs], units=settings.units)
-    return comp
-
-
-def proposed_sizes(items: list, app: Any, settings: CheckSettings) -> tuple[list, list[tuple[str, ...]]]:
-    """Datasheets for the comparison: a series stands for its proposed size (its largest, failing, where
-    none passes), with notes saying so and what was assumed; a datasheet stands for itself."""
-    from ..selection import SizeSeries, select
-
-    series = [x for x in items if isinstance(x, SizeSeries)]
-    chosen = iter(select(series, app, settings).choices if series else [])
-    sheets, notes = [], []
-    for item in items:
-        if not isinstance(item, SizeSeries):
-            sheets.append(item)
-            notes.append(())
-            continue
-        ch = next(chosen)
-        pick = ch.choice or ch.candidates[-1]
-        sheets.append(pick.datasheet)
-        scaled = [a for a in item.assumptions if a.startswith(f"{pick.datasheet.model}:")]
-        head = (f"proposed size of the series {item.name}" if ch.choice else
-                f"no size of the series {item.name} passes: its largest shown")
-        notes.append((f"{head} ({ch.summary})", *scaled))
-    return sheets, notes
+def _progress(i: int, total: int, label: str) -> None:
+    """A one-line count of the files read on stderr, only when stderr is a terminal and there are many."""
+    if total < 5 or not sys.stderr.isatty():
+        return
+    if label:
+        sys.stderr.write(f"\rchecking {i}/{total}: {label[:40]:<40}")
+    else:  # all read: clear the line
+        sys.stderr.write("\r" + " " * 70 + "\r")
+    sys.stderr.flush()
 
 
 def exit_code(verdicts: list[str], strict: bool) -> int:
@@ -122,7 +35,9 @@ def exit_code(verdicts: list[str], strict: bool) -> int:
 
 
 def run(args: argparse.Namespace) -> int:
-    comp = build(args.app, args.datasheets, args.output, settings=_check.settings_from(args))
+    from ..pipeline import compare_files
+
+    comp = compare_files(args.app, args.datasheets, args.output, _check.settings_from(args), progress=_progress)
     for c in comp.candidates:
         rank = f"rank {c.rank}" if c.rank else "not ranked"
         print(f"{c.result.verdict:4}  {c.datasheet.label}  ({rank})")

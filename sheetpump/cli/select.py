@@ -13,45 +13,22 @@ from __future__ import annotations
 
 import argparse
 import sys
-from typing import Any
 
-from ..files import atomic_write, check_outputs
-from . import check as _check
+from . import check as _check  # the options check, compare and select share
 
 EXIT_OK, EXIT_FAIL = 0, 1
 
 
-def read_series(path: str) -> Any:
-    """Read one series workbook with the command line's error handling."""
-    from ..workbooks.size_series import read_size_series
-
-    return _check._read(read_size_series, path, "series workbook")
-
-
 def run(args: argparse.Namespace) -> int:
-    from ..selection import select
-    from ..selection_report import json_selection, junit_selection, text_selection
-    from ..workbooks.selection_book import write_selection
+    from ..pipeline import select_files
 
-    app = _check._read(_check._read_application, args.app, "application workbook")
-    paths = list(args.series)
-    series = [read_series(path) for path in paths]
-    inputs = _check.inputs_of(app, args.app, []) + [("a series workbook", p) for p in paths]
-    outputs = [("--output", args.output), ("--junit", args.junit), ("--report", args.report)]
-    check_outputs([(option, path) for option, path in outputs if path], inputs)
-    sel = select(series, app, _check.settings_from(args), args.mains_frequency)
-    if args.output:
-        write_selection(args.output, sel, inputs=[p for _, p in inputs], units=args.units)
-    if args.junit:
-        atomic_write(args.junit, junit_selection(sel))
-    text = json_selection(sel) if args.format == "json" else text_selection(sel)
-    if args.report:
-        atomic_write(args.report, text)
-    else:
-        sys.stdout.write(text)
+    done = select_files(args.app, list(args.series), _check.settings_from(args), args.mains_frequency,
+                        output=args.output, report_format=args.format, report=args.report, junit=args.junit)
+    if not args.report:
+        sys.stdout.write(done.report)
     if args.output and args.format == "text" and not args.report:
         print(f"selection written to {args.output}")
-    return EXIT_OK if all(ch.proposed is not None for ch in sel.choices) else EXIT_FAIL
+    return EXIT_OK if all(ch.proposed is not None for ch in done.selection.choices) else EXIT_FAIL
 
 
 def register(sub: argparse._SubParsersAction) -> argparse.ArgumentParser:

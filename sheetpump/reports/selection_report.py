@@ -11,9 +11,10 @@ import math
 import xml.etree.ElementTree as ET
 from typing import Any
 
-from . import SAFETY_CAUTION
-from .report import junit_caution
-from .selection import Selection, worst
+from .. import SAFETY_CAUTION
+from ..selection import Selection, worst
+from .formatting import finite
+from .junit import junit_caution
 
 __all__ = ["json_selection", "junit_selection", "text_selection"]
 
@@ -47,15 +48,14 @@ def text_selection(sel: Selection) -> str:
 
 def _size(c: Any, why: str, proposed: bool) -> dict[str, Any]:
     w = worst(c)
-    num = lambda x: x if x is not None and math.isfinite(x) else None  # noqa: E731
     return {
         "model": c.datasheet.model, "displacement_cm3_per_rev": c.datasheet.displacement * 1e6,
         "verdict": c.result.verdict, "proposed": proposed,
-        "worst_rule": w.rule if w else None, "worst_margin": num(w.margin) if w else None,
-        "flow_margin": num(c.flow_margin), "motor": c.motor.label if c.motor else None,
-        "energy_kwh_per_year": num(c.electrical_energy_per_year / 3.6e6), "price": c.datasheet.price,
-        "cost_over_period": num(c.cost_over_period), "reason": why,
-        "failing": [{"rule": f.rule, "margin": num(f.margin), "message": f.message}
+        "worst_rule": w.rule if w else None, "worst_margin": finite(w.margin) if w else None,
+        "flow_margin": finite(c.flow_margin), "motor": c.motor.label if c.motor else None,
+        "energy_kwh_per_year": finite(c.electrical_energy_per_year / 3.6e6), "price": c.datasheet.price,
+        "cost_over_period": finite(c.cost_over_period), "reason": why,
+        "failing": [{"rule": f.rule, "margin": finite(f.margin), "message": f.message}
                     for f in c.result.findings if f.severity == "fail"],
     }
 

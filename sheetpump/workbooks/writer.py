@@ -32,21 +32,29 @@ from .. import SAFETY_CAUTION_SHORT, __version__
 from ..files import atomic_path
 
 __all__ = [
-    "LINE_HEIGHT", "MARKERS", "PALETTE", "PAPER_SIZES", "PCT", "SIGNED_PCT", "STYLES", "as_stored", "cell_format",
-    "column_width", "creation_time", "display_path", "header_footer", "header_footer_parts", "number_format",
-    "open_book", "page_setup", "text_lines", "text_width", "write_formula", "write_header", "write_value",
+    "LINE_HEIGHT", "MARKERS", "PALETTE", "PAPER_SIZES", "PCT", "SIGNED_PCT", "STYLES", "VERDICT_FILLS", "as_stored",
+    "cell_format", "column_width", "creation_time", "display_path", "header_footer", "header_footer_parts",
+    "number_format", "open_book", "page_setup", "text_lines", "text_width", "write_formula", "write_header",
+    "write_value",
 ]
+
+#: Our own verdict colours (RGB hex), the one definition: the fill of a verdict's cell in every workbook
+#: sheetpump writes (:data:`STYLES`) and of a marked cell in the annotated copy of a datasheet. A soft
+#: green, amber, red, blue (info) and violet (not checked: a cell to fill in).
+VERDICT_FILLS: dict[str, str] = {
+    "pass": "D7EFD9", "warn": "FBE7B5", "fail": "F6CFCB", "info": "E4ECF7", "not checked": "E6DDF3",
+}
 
 #: Our own colours: input cells, headers, and the verdicts (with info and not checked).
 STYLES: dict[str, dict[str, Any]] = {
     "title": {"bold": True, "font_size": 14},
     "header": {"bold": True, "bg_color": "#DCE3EA", "bottom": 1, "text_wrap": True, "valign": "top"},
     "input": {"bg_color": "#FFF6D5", "border": 1, "border_color": "#C9B458"},
-    "pass": {"bg_color": "#D7EFD9", "font_color": "#1E5B28"},
-    "warn": {"bg_color": "#FBE7B5", "font_color": "#6B4A00"},
-    "fail": {"bg_color": "#F6CFCB", "font_color": "#7A1B12", "bold": True},
-    "info": {"bg_color": "#E4ECF7", "font_color": "#22406B"},
-    "not checked": {"bg_color": "#E6DDF3", "font_color": "#4A2C7A", "italic": True},
+    "pass": {"bg_color": "#" + VERDICT_FILLS["pass"], "font_color": "#1E5B28"},
+    "warn": {"bg_color": "#" + VERDICT_FILLS["warn"], "font_color": "#6B4A00"},
+    "fail": {"bg_color": "#" + VERDICT_FILLS["fail"], "font_color": "#7A1B12", "bold": True},
+    "info": {"bg_color": "#" + VERDICT_FILLS["info"], "font_color": "#22406B"},
+    "not checked": {"bg_color": "#" + VERDICT_FILLS["not checked"], "font_color": "#4A2C7A", "italic": True},
     "note": {"italic": True, "font_color": "#555555", "text_wrap": True, "valign": "top"},
     "caution": {"bold": True, "font_color": "#7A1B12", "text_wrap": True, "valign": "top"},
     "wrap": {"text_wrap": True, "valign": "top"},
