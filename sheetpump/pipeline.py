@@ -156,7 +156,6 @@ def check_files(app_path: str, datasheets: Sequence[str], settings: CheckSetting
     The report's text is returned either way (a face prints it where no ``output`` is given).
     """
     from .comparison import compare
-    from .reports.annotate import annotate as annotate_copy
 
     app = read_application(app_path)
     sheets = [read_datasheet(path) for path in datasheets]
@@ -167,8 +166,11 @@ def check_files(app_path: str, datasheets: Sequence[str], settings: CheckSetting
     shown = [str(target) for target in annotated] if several else [annotate] * len(annotated)  # as typed
     outputs = [*(("--annotate", target) for target in shown), ("--junit", junit), ("--output", output)]
     check_outputs([(option, path) for option, path in outputs if path], inputs_of(app, app_path, datasheets))
-    for path, r, target in zip(datasheets, results, annotated, strict=False):
-        annotate_copy(r, target, source=path)
+    if annotated:
+        from .reports.annotate import annotate as annotate_copy
+
+        for path, r, target in zip(datasheets, results, annotated, strict=True):
+            annotate_copy(r, target, source=path)
     if junit:
         from .reports.junit import junit_report
 
