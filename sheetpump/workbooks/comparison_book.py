@@ -150,16 +150,31 @@ _DUTY_HEADER_ROW = 3
 _NO_FLOW = "none required"
 
 
-def _duty_sheet(book: Any, name: str, candidate: Candidate, units: str, paper: str) -> dict[str, str]:
-    """Write one candidate's duty sheet; returns cell references of its totals (for the summary)."""
-    f = book.styles
-    sheet = book.add_worksheet(name)
-    cols, labels, note = _resample(candidate)
-    app = candidate.result.application
-    sheet.write_string(0, 0, f"{name}: duty of {candidate.datasheet.label} on {app.name}", f["title"])
-    sheet.write_string(1, 0, note or "One row per duty segment. Columns with a blue header are live formulas.",
-                       cell_format(book, "note", text_wrap=False))
-    u = {k: _unit(units, k) for k in (PRESSURE, SPEED, FLOW, POWER, TORQUE, TEMPERATURE, VISCOSITY)}
+@dataclass(frozen=True)
+class _DutySheet:
+    """Where a candidate's duty sheet put its rows: what the Summary links to and the charts plot.
+
+    ``first``/``last`` are the 0-based rows of the first and last duty row; ``totals`` the absolute cell
+    references of its totals by key (none for a binned series, whose bins are not the whole truth).
+    """
+
+    name: str
+    first: int
+    last: int
+    binned: bool
+    totals: dict[str, str]
+
+
+@dataclass(frozen=True)
+class _Factors:
+    """Display-unit factors of a duty sheet's formulas: pressure x flow -> power, and power x s -> Wh."""
+
+    hydraulic: float
+    energy: float
+
+
+def _duty_values(cols: dict[str, np.ndarray], u: dict[Kind, str]) -> tuple[dict[str, np.ndarray], _Factors]:
+    """Every column of a duty sheet in display units, the formula columns computed as the sheet does."""
     # the factor that turns pressure x flow in the display units into the display power unit
     hyd = float(from_si(from_si(1.0, PRESSURE, u[PRESSURE]) ** -1 * from_si(1.0, FLOW, u[FLOW]) ** -1,
                         POWER, u[POWER]))
@@ -174,6 +189,12 @@ def _duty_sheet(book: Any, name: str, candidate: Candidate, units: str, paper: s
         shown["flow_margin"] = np.where(shown["required"] > 0, shown["delivered"] / shown["required"] - 1.0, np.nan)
     shown["energy"] = shown["input_power"] * power_si_per_display * shown["duration"] * wh_per_j
     shown["heat"] = shown["loss"] + shown["surplus"]
+    return shown, _Factors(hyd, power_si_per_display * wh_per_j)
+
+
+def _duty_header(book: Any, sheet: Any, cols: dict[str, np.ndarray], shown: dict[str, np.ndarray],
+                 labels: list[str], u: dict[Kind, str]) -> tuple[list[str], list[Any]]:
+    """Write the header row of a duty sheet and size its columns; returns the headers and cell formats."""
     headers, widths, formats = [], [], []
     for key, head, kind, num, _formula in _DUTY_COLUMNS:
         text = head.format(u[kind]) if kind is not None else head
@@ -190,48 +211,58 @@ def _duty_sheet(book: Any, name: str, candidate: Candidate, units: str, paper: s
         headers.append(f"max pressure [{u[PRESSURE]}]")
         widths.append(column_width(headers[-1], shown["pressure_max"], number_format(shown["pressure_max"])))
         formats.append(cell_format(book, num_format=number_format(shown["pressure_max"])))
-    write_header(sheet, _DUTY_HEADER_ROW, headers, widths, f["header"])
+    write_header(sheet, _DUTY_HEADER_ROW, headers, widths, book.styles["header"])
     for c, (_key, _h, _k, _n, formula) in enumerate(_DUTY_COLUMNS):
         if formula:
             sheet.write_string(_DUTY_HEADER_ROW, c, headers[c], cell_format(book, "header", "info"))
-    first = _DUTY_HEADER_ROW + 1
-    cell = lambda r, key: xl_rowcol_to_cell(r, _DUTY_COL[key])  # noqa: E731
-    for i, label in enumerate(labels):
-        r = first + i
-        write_value(sheet, r, 0, label, formats[0])
-        for key, _h, _k, _n, formula in _DUTY_COLUMNS[1:]:
-            if not formula:
-                c = _DUTY_COL[key]
-                write_value(sheet, r, c, float(shown[key][i]), formats[c])
-        p, q, qr, pin, t = (cell(r, k) for k in ("pressure", "delivered", "required", "input_power", "duration"))
-        h = cell(r, "hydraulic")
-        write_formula(sheet, r, _DUTY_COL["hydraulic"], f"={p}*{q}*{hyd!r}", float(shown["hydraulic"][i]),
-                      formats[_DUTY_COL["hydraulic"]])
-        write_formula(sheet, r, _DUTY_COL["loss"], f"={pin}-{h}", float(shown["loss"][i]), formats[_DUTY_COL["loss"]])
-        if shown["required"][i] > 0:
-            write_formula(sheet, r, _DUTY_COL["flow_margin"], f"={q}/{qr}-1", float(shown["flow_margin"][i]),
-                          formats[_DUTY_COL["flow_margin"]])
-        else:
-            write_value(sheet, r, _DUTY_COL["flow_margin"], _NO_FLOW, cell_format(book, align="right"))
-        write_formula(sheet, r, _DUTY_COL["energy"], f"={pin}*{t}*{power_si_per_display * wh_per_j!r}",
-                      float(shown["energy"][i]), formats[_DUTY_COL["energy"]])
-        # the surplus flow leaves at the pump's pressure (the duty's): heat never above the power drawn
-        surplus = float(shown["surplus"][i])
-        if note or not math.isfinite(surplus):  # a bin's mean surplus is not its mean flows' surplus
-            write_value(sheet, r, _DUTY_COL["surplus"], surplus, formats[_DUTY_COL["surplus"]])
-        else:
-            write_formula(sheet, r, _DUTY_COL["surplus"], f"=MAX({q}-{qr},0)*{p}*{hyd!r}", surplus,
-                          formats[_DUTY_COL["surplus"]])
-        write_formula(sheet, r, _DUTY_COL["heat"], f"={cell(r, 'loss')}+{cell(r, 'surplus')}",
-                      float(shown["heat"][i]), formats[_DUTY_COL["heat"]])
-        if "pressure_max" in cols:
-            write_value(sheet, r, len(_DUTY_COLUMNS), float(shown["pressure_max"][i]), formats[-1])
-    last = first + len(labels) - 1
-    total_row = last + 2
+    return headers, formats
+
+
+def _duty_cell(r: int, key: str) -> str:
+    return xl_rowcol_to_cell(r, _DUTY_COL[key])
+
+
+def _duty_row(book: Any, sheet: Any, r: int, label: str, values: dict[str, float], formats: list[Any],
+              factors: _Factors, binned: bool) -> None:
+    """Write one row of a duty sheet: the plain values, then the live formulas with their values."""
+    write_value(sheet, r, 0, label, formats[0])
+    for key, _h, _k, _n, formula in _DUTY_COLUMNS[1:]:
+        if not formula:
+            c = _DUTY_COL[key]
+            write_value(sheet, r, c, values[key], formats[c])
+    cell = _duty_cell
+    p, q, qr, pin, t = (cell(r, k) for k in ("pressure", "delivered", "required", "input_power", "duration"))
+    h = cell(r, "hydraulic")
+    hyd = factors.hydraulic
+
+    def formula(key: str, text: str) -> None:
+        write_formula(sheet, r, _DUTY_COL[key], text, values[key], formats[_DUTY_COL[key]])
+
+    formula("hydraulic", f"={p}*{q}*{hyd!r}")
+    formula("loss", f"={pin}-{h}")
+    if values["required"] > 0:
+        formula("flow_margin", f"={q}/{qr}-1")
+    else:
+        write_value(sheet, r, _DUTY_COL["flow_margin"], _NO_FLOW, cell_format(book, align="right"))
+    formula("energy", f"={pin}*{t}*{factors.energy!r}")
+    # the surplus flow leaves at the pump's pressure (the duty's): heat never above the power drawn
+    surplus = values["surplus"]
+    if binned or not math.isfinite(surplus):  # a bin's mean surplus is not its mean flows' surplus
+        write_value(sheet, r, _DUTY_COL["surplus"], surplus, formats[_DUTY_COL["surplus"]])
+    else:
+        formula("surplus", f"=MAX({q}-{qr},0)*{p}*{hyd!r}")
+    formula("heat", f"={cell(r, 'loss')}+{cell(r, 'surplus')}")
+    if "pressure_max" in values:
+        write_value(sheet, r, len(_DUTY_COLUMNS), values["pressure_max"], formats[-1])
+
+
+def _duty_totals(shown: dict[str, np.ndarray], first: int, last: int, u: dict[Kind, str]
+                 ) -> list[tuple[str, str, str, str, float]]:
+    """The totals below a duty sheet: key, label, column key, formula, and the value the formula gives."""
+    cell = _duty_cell
     col = lambda key: f"{cell(first, key)}:{cell(last, key)}"  # noqa: E731
     d, pin = shown["duration"], shown["input_power"]
-    # key, label, column, formula, value (what the formula gives, computed here)
-    totals = [
+    return [
         ("cycle", "cycle time [s]", "duration", f"=SUM({col('duration')})", float(d.sum())),
         ("peak_power", f"peak input power [{u[POWER]}]", "input_power", f"=MAX({col('input_power')})",
          float(pin.max())),
@@ -252,18 +283,13 @@ def _duty_sheet(book: Any, name: str, candidate: Candidate, units: str, paper: s
          f"=SUMPRODUCT({col('heat')},{col('duration')})/SUM({col('duration')})",
          float(np.sum(shown["heat"] * d) / d.sum())),
     ]
+
+
+def _write_duty_totals(book: Any, sheet: Any, name: str, totals: list[tuple[str, str, str, str, float]],
+                       total_row: int, exact: dict[str, float | None] | None) -> dict[str, str]:
+    """Write the totals from ``total_row`` on: live formulas, or for a binned series the checker's figures
+    over every sample (``exact``); returns the cell references of the live ones."""
     refs: dict[str, str] = {}
-    if note:
-        # Binned means understate peaks and RMS: give the checker's figures over every sample instead.
-        fig = candidate.result.drive
-        exact = {"cycle": float(np.sum(fig.duration)), "peak_power": _show(fig.peak_power, POWER, units),
-                 "rms_power": _show(fig.rms_power, POWER, units),
-                 "peak_torque": _show(fig.peak_torque, TORQUE, units),
-                 "mean_loss": _show(fig.mean_power_loss, POWER, units),
-                 "energy": fig.energy_per_cycle * wh_per_j,
-                 "mean_surplus": _show(fig.mean_surplus_heat, POWER, units),
-                 "mean_heat": _show(fig.mean_heat, POWER, units)}
-        sheet.write_string(total_row - 1, 0, "over every sample (not the bins above):", f["note"])
     for k, (key, text, c_key, formula, value) in enumerate(totals):
         r = total_row + k
         c = _DUTY_COL[c_key]
@@ -274,19 +300,57 @@ def _duty_sheet(book: Any, name: str, candidate: Candidate, units: str, paper: s
         else:
             sheet.write_string(r, 0, text, label)
         num = cell_format(book, bold=True, top=1, bottom=1,
-                          num_format=number_format([exact[key] if note else value]))
-        if note:
+                          num_format=number_format([exact[key] if exact else value]))
+        if exact:
             write_value(sheet, r, c, exact[key], num)
         else:
             write_formula(sheet, r, c, formula, value, num)
             refs[key] = f"'{name}'!{xl_rowcol_to_cell(r, c, row_abs=True, col_abs=True)}"
-    sheet.freeze_panes(_DUTY_HEADER_ROW + 1, 1)
-    last_col = len(headers) - 1
-    page_setup(sheet, app.name, paper=paper, title_rows=(_DUTY_HEADER_ROW, _DUTY_HEADER_ROW), title_columns=(0, 0),
-               area=(0, 0, total_row + len(totals) - 1, last_col))
-    sheet._sheetpump_rows = (first, last)  # for the charts
-    sheet._sheetpump_binned = bool(note)
     return refs
+
+
+def _exact_totals(candidate: Candidate, units: str) -> dict[str, float | None]:
+    """The checker's drive figures over every sample, as the totals of a binned duty sheet show them."""
+    fig = candidate.result.drive
+    return {"cycle": float(np.sum(fig.duration)), "peak_power": _show(fig.peak_power, POWER, units),
+            "rms_power": _show(fig.rms_power, POWER, units),
+            "peak_torque": _show(fig.peak_torque, TORQUE, units),
+            "mean_loss": _show(fig.mean_power_loss, POWER, units),
+            "energy": fig.energy_per_cycle * float(from_si(1.0, ENERGY, "Wh")),
+            "mean_surplus": _show(fig.mean_surplus_heat, POWER, units),
+            "mean_heat": _show(fig.mean_heat, POWER, units)}
+
+
+def _duty_sheet(book: Any, name: str, candidate: Candidate, units: str, paper: str) -> _DutySheet:
+    """Write one candidate's duty sheet; returns where its rows and totals are (for the summary, the charts)."""
+    f = book.styles
+    sheet = book.add_worksheet(name)
+    cols, labels, note = _resample(candidate)
+    app = candidate.result.application
+    sheet.write_string(0, 0, f"{name}: duty of {candidate.datasheet.label} on {app.name}", f["title"])
+    sheet.write_string(1, 0, note or "One row per duty segment. Columns with a blue header are live formulas.",
+                       cell_format(book, "note", text_wrap=False))
+    u = {k: _unit(units, k) for k in (PRESSURE, SPEED, FLOW, POWER, TORQUE, TEMPERATURE, VISCOSITY)}
+    shown, factors = _duty_values(cols, u)
+    headers, formats = _duty_header(book, sheet, cols, shown, labels, u)
+    first = _DUTY_HEADER_ROW + 1
+    keys = [key for key in shown if key != "segment"]
+    for i, label in enumerate(labels):
+        _duty_row(book, sheet, first + i, label, {key: float(shown[key][i]) for key in keys}, formats, factors,
+                  bool(note))
+    last = first + len(labels) - 1
+    total_row = last + 2
+    totals = _duty_totals(shown, first, last, u)
+    exact = None
+    if note:
+        # Binned means understate peaks and RMS: give the checker's figures over every sample instead.
+        exact = _exact_totals(candidate, units)
+        sheet.write_string(total_row - 1, 0, "over every sample (not the bins above):", f["note"])
+    refs = _write_duty_totals(book, sheet, name, totals, total_row, exact)
+    sheet.freeze_panes(_DUTY_HEADER_ROW + 1, 1)
+    page_setup(sheet, app.name, paper=paper, title_rows=(_DUTY_HEADER_ROW, _DUTY_HEADER_ROW), title_columns=(0, 0),
+               area=(0, 0, total_row + len(totals) - 1, len(headers) - 1))
+    return _DutySheet(name, first, last, bool(note), refs)
 
 
 def _fmt_margin(margin: float | None) -> str:  # as SIGNED_PCT shows a number
@@ -576,7 +640,7 @@ def _suction_assumptions(app: Any) -> list[tuple[str, Any, str | None]]:
     ]
 
 
-def _curves_and_charts(book: Any, comp: Comparison, units: str, duty_sheets: list[Any], paper: str) -> None:
+def _curves_and_charts(book: Any, comp: Comparison, units: str, duties: list[_DutySheet], paper: str) -> None:
     curves = book.add_worksheet("Curves")
     charts = book.add_worksheet("Charts")
     f = book.styles
@@ -638,8 +702,7 @@ def _curves_and_charts(book: Any, comp: Comparison, units: str, duty_sheets: lis
             for i, v in enumerate(np.asarray(values, float)):
                 write_value(curves, 3 + i, c0 + j, float(v), fmts[j])
         ref = lambda c: ["Curves", 3, c, 2 + _CURVE_POINTS, c]  # noqa: E731
-        first, last = duty_sheets[k]._sheetpump_rows
-        sheet = duty_sheets[k].name
+        first, last, sheet = duties[k].first, duties[k].last, duties[k].name
         at = lambda key, s=sheet, a=first, b=last: [s, a, _DUTY_COL[key], b, _DUTY_COL[key]]  # noqa: E731
         eff.add_series({"name": name_of(f"{ds.label}"), "categories": ref(c0), "values": ref(c0 + 2),
                         **_series_style(k, "total")})
@@ -737,10 +800,9 @@ def _curves_and_charts(book: Any, comp: Comparison, units: str, duty_sheets: lis
                             "values": ["Curves", r0 + 2, cx + 1, r0 + 1 + len(xs), cx + 1],
                             "line": {"color": "#000000" if label.startswith("min.") else "#555555",
                                      "width": 2, "dash_type": dash}, "marker": {"type": "none"}})
-        first, last = duty_sheets[k]._sheetpump_rows
-        sheet = duty_sheets[k].name
+        first, last, sheet = duties[k].first, duties[k].last, duties[k].name
         n_rows = last - first + 1
-        if n_rows <= len(PALETTE) and not duty_sheets[k]._sheetpump_binned:
+        if n_rows <= len(PALETTE) and not duties[k].binned:
             # the duty's points coloured and shaped by segment, alike in every envelope chart (the bands are grey)
             for i in range(n_rows):
                 env.add_series({"name": [sheet, first + i, 0], "categories": [sheet, first + i, 3, first + i, 3],
@@ -957,15 +1019,14 @@ def write_comparison(target: str | os.PathLike[str], comp: Comparison,
     with open_book(target, title=f"Pump comparison: {comp.application.name}") as book:
         summary_placeholder = book.add_worksheet("Summary")
         names = [f"Duty {i + 1}" for i in range(len(comp.candidates))]
-        refs = [_duty_sheet(book, n, c, units, paper) for n, c in zip(names, comp.candidates, strict=True)]
-        duty_sheets = [book.get_worksheet_by_name(n) for n in names]
+        duties = [_duty_sheet(book, n, c, units, paper) for n, c in zip(names, comp.candidates, strict=True)]
         # XlsxWriter keeps sheet order of creation: fill the placeholder in place
         book.worksheets_objs.remove(summary_placeholder)
         del book.sheetnames["Summary"]
-        _summary(book, comp, units, refs, paper, base)
+        _summary(book, comp, units, [d.totals for d in duties], paper, base)
         summary = book.worksheets_objs.pop()
         book.worksheets_objs.insert(0, summary)
-        _curves_and_charts(book, comp, units, duty_sheets, paper)
+        _curves_and_charts(book, comp, units, duties, paper)
         _findings(book, comp, units, paper, base)
         _assumptions(book, comp, inputs, paper, base)
         for i, ws in enumerate(book.worksheets_objs):
