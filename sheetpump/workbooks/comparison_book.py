@@ -382,38 +382,16 @@ class _Row:
 _NUMERIC = {"num", "int", "pct", "spct", "n0", "n1", "n2", "n3"}
 
 
-def _summary_rows(comp: Comparison, units: str, duty_refs: list[dict[str, str]], base: str
-                  ) -> list[_Row | None]:
-    """Every line of the Summary, in order (None: a gap). Add a line here and it is laid out and printed
-    like the others."""
+def _datasheet_rows(comp: Comparison, units: str, base: str) -> list[_Row]:
+    """Summary lines of what each datasheet states, and the pulsation frequency over the duty's speeds."""
     app = comp.application
-    cands = comp.candidates
-    ds = [c.datasheet for c in cands]
+    ds = [c.datasheet for c in comp.candidates]
     u = lambda kind: _unit(units, kind)  # noqa: E731
-    rows: list[_Row | None] = []
-
-    def line(label: str, values: Sequence[Any], style: str | list[str | None] | None = None) -> None:
-        rows.append(_Row(label, list(values), style))
-
-    line("supplier", [d.supplier for d in ds], "wrap")
-    line("model", [d.model for d in ds], "wrap")
-    line("datasheet file", [display_path(d.file, base) if d.file else "" for d in ds], "wrap")
     disp_unit = "cm^3/rev" if units == "metric" else "in^3/rev"
-    line(f"displacement [{disp_unit}]", [float(from_si(d.displacement, DISPLACEMENT, disp_unit)) for d in ds], "num")
-    line(f"speed range [{u(SPEED)}]",
-         [f"{_show(d.speed_min, SPEED, units):.4g} – {_show(d.speed_max, SPEED, units):.4g}" for d in ds])
-    line(f"continuous pressure [{u(PRESSURE)}]", [_show(d.pressure_continuous, PRESSURE, units) for d in ds], "int")
-    line(f"intermittent pressure [{u(PRESSURE)}]", [_show(d.pressure_intermittent, PRESSURE, units) for d in ds],
-         "int")
-    line(f"peak pressure [{u(PRESSURE)}]", [_show(d.pressure_peak, PRESSURE, units) for d in ds], "int")
-    line(f"price [{app.currency}]", [d.price for d in ds], "int")
     mass_unit = "kg" if units == "metric" else "lb"
-    line(f"mass [{mass_unit}]", [None if d.mass is None else float(from_si(d.mass, MASS, mass_unit)) for d in ds],
-         "num")
-    line("noise [dB(A)]", [d.noise for d in ds], "int")
     speeds = app.duty.speed
     lo, hi = float(np.min(speeds)), float(np.max(speeds))
-    pulsation = []
+    pulsation: list[Any] = []
     for d in ds:
         if not d.teeth:
             pulsation.append("teeth not stated")
@@ -422,23 +400,48 @@ def _summary_rows(comp: Comparison, units: str, duty_refs: list[dict[str, str]],
         else:
             pulsation.append(f"{float(pump.pulsation_frequency(d.teeth, lo)):.0f} – "
                              f"{float(pump.pulsation_frequency(d.teeth, hi)):.0f}")
-    line("pulsation frequency, teeth x speed / 60 [Hz]", pulsation, "int")
-    rows.append(None)
-    line("verdict", [c.result.verdict for c in cands], [c.result.verdict for c in cands])
-    line("worst margin", [c.result.worst_margin for c in cands], "spct")
-    line("delivered-flow margin", [c.flow_margin for c in cands], "spct")
-    for label, values, style in _suction_rows(cands, units):
-        line(label, values, style)
-    rules = [r for r in RULES if any(f.rule == r for c in cands for f in c.result.findings)]
-    for rule in rules:
+    return [
+        _Row("supplier", [d.supplier for d in ds], "wrap"),
+        _Row("model", [d.model for d in ds], "wrap"),
+        _Row("datasheet file", [display_path(d.file, base) if d.file else "" for d in ds], "wrap"),
+        _Row(f"displacement [{disp_unit}]", [float(from_si(d.displacement, DISPLACEMENT, disp_unit)) for d in ds],
+             "num"),
+        _Row(f"speed range [{u(SPEED)}]",
+             [f"{_show(d.speed_min, SPEED, units):.4g} – {_show(d.speed_max, SPEED, units):.4g}" for d in ds]),
+        _Row(f"continuous pressure [{u(PRESSURE)}]", [_show(d.pressure_continuous, PRESSURE, units) for d in ds],
+             "int"),
+        _Row(f"intermittent pressure [{u(PRESSURE)}]",
+             [_show(d.pressure_intermittent, PRESSURE, units) for d in ds], "int"),
+        _Row(f"peak pressure [{u(PRESSURE)}]", [_show(d.pressure_peak, PRESSURE, units) for d in ds], "int"),
+        _Row(f"price [{app.currency}]", [d.price for d in ds], "int"),
+        _Row(f"mass [{mass_unit}]",
+             [None if d.mass is None else float(from_si(d.mass, MASS, mass_unit)) for d in ds], "num"),
+        _Row("noise [dB(A)]", [d.noise for d in ds], "int"),
+        _Row("pulsation frequency, teeth x speed / 60 [Hz]", pulsation, "int"),
+    ]
+
+
+def _verdict_rows(cands: Sequence[Candidate], units: str) -> list[_Row]:
+    """Summary lines of the verdicts: overall, the margins, the suction side, and every rule that spoke."""
+    rows = [_Row("verdict", [c.result.verdict for c in cands], [c.result.verdict for c in cands]),
+            _Row("worst margin", [c.result.worst_margin for c in cands], "spct"),
+            _Row("delivered-flow margin", [c.flow_margin for c in cands], "spct")]
+    rows += [_Row(label, values, style) for label, values, style in _suction_rows(cands, units)]
+    for rule in [r for r in RULES if any(f.rule == r for c in cands for f in c.result.findings)]:
         texts, styles = [], []
         for c in cands:
             found = [f for f in c.result.findings if f.rule == rule]
             texts.append(_finding_text(found[0]) if found else "not stated")
             styles.append(found[0].severity if found else None)
-        line(f"{rule}: {RULES[rule]}", texts, styles)
-    rows.append(None)
-    # drive figures: live links to each duty sheet's totals, with the checker's values stored
+        rows.append(_Row(f"{rule}: {RULES[rule]}", texts, styles))
+    return rows
+
+
+def _drive_rows(cands: Sequence[Candidate], units: str, duty_refs: list[dict[str, str]]) -> list[_Row]:
+    """Summary lines of the drive figures: live links to each duty sheet's totals, the checker's values
+    stored."""
+    u = lambda kind: _unit(units, kind)  # noqa: E731
+    rows = []
     for key, label, kind, attr in (
         ("peak_power", f"peak input power [{u(POWER)}]", POWER, "peak_power"),
         ("rms_power", f"RMS input power [{u(POWER)}]", POWER, "rms_power"),
@@ -450,28 +453,45 @@ def _summary_rows(comp: Comparison, units: str, duty_refs: list[dict[str, str]],
     ):
         values = [_show(getattr(c.result.drive, attr), kind, units) for c in cands]
         # a resampled series has no link: the duty sheet's bins are not the whole truth
-        formulas = [f"={refs[key]}" if key in refs else None for refs in duty_refs]
+        formulas: list[str | None] = [f"={refs[key]}" if key in refs else None for refs in duty_refs]
         rows.append(_Row(label, values, "num", formulas))
-    line("surplus flow crosses", [c.result.drive.surplus_path for c in cands], "wrap")
-    line("motor chosen", [c.motor.label if c.motor else "none" for c in cands],
-         [None if c.motor else "fail" for c in cands])
-    line(f"motor sized on: RMS load [{u(POWER)}]", [_show(c.motor_rms, POWER, units) for c in cands], "num")
-    line("RMS load taken", [c.motor_rms_basis for c in cands], "wrap")
-    line(f"motor sized on: peak load [{u(POWER)}]",
-         [_show(max(c.result.drive.peak_power, c.motor_rms), POWER, units) for c in cands], "num")
-    line("criterion that binds the motor size", [c.motor.binding if c.motor else "" for c in cands], "wrap")
-    line("motor load (of its rating)", [c.motor_note for c in cands], "wrap")
-    line("motor full-load efficiency", [c.motor.efficiency if c.motor else None for c in cands], "pct")
-    line("electrical energy per cycle [Wh] (at the motor's part-load efficiency)",
-         [c.electrical_energy_per_cycle / 3600.0 for c in cands], "num")
-    line("electrical energy per year [kWh]", [c.electrical_energy_per_year / 3.6e6 for c in cands], "int")
-    line(f"energy cost per year [{app.currency}]", [c.energy_cost_per_year for c in cands], "int")
-    line(f"cost over {app.evaluation_years:g} years [{app.currency}]", [c.cost_over_period for c in cands], "int")
-    line("rank (passing candidates, by cost over the period)", [c.rank if c.rank else "not ranked" for c in cands],
-         "int")
-    defaults = f"defaults used for: {', '.join(app.defaulted)}" if app.defaulted else ""
-    line("notes", ["; ".join([*c.notes, defaults] if defaults else c.notes) for c in cands], "wrap")
+    rows.append(_Row("surplus flow crosses", [c.result.drive.surplus_path for c in cands], "wrap"))
     return rows
+
+
+def _motor_and_cost_rows(comp: Comparison, units: str) -> list[_Row]:
+    """Summary lines of the motor chosen, the energy and its cost, the ranking and the notes."""
+    app, cands = comp.application, comp.candidates
+    u = lambda kind: _unit(units, kind)  # noqa: E731
+    defaults = f"defaults used for: {', '.join(app.defaulted)}" if app.defaulted else ""
+    return [
+        _Row("motor chosen", [c.motor.label if c.motor else "none" for c in cands],
+             [None if c.motor else "fail" for c in cands]),
+        _Row(f"motor sized on: RMS load [{u(POWER)}]", [_show(c.motor_rms, POWER, units) for c in cands], "num"),
+        _Row("RMS load taken", [c.motor_rms_basis for c in cands], "wrap"),
+        _Row(f"motor sized on: peak load [{u(POWER)}]",
+             [_show(max(c.result.drive.peak_power, c.motor_rms), POWER, units) for c in cands], "num"),
+        _Row("criterion that binds the motor size", [c.motor.binding if c.motor else "" for c in cands], "wrap"),
+        _Row("motor load (of its rating)", [c.motor_note for c in cands], "wrap"),
+        _Row("motor full-load efficiency", [c.motor.efficiency if c.motor else None for c in cands], "pct"),
+        _Row("electrical energy per cycle [Wh] (at the motor's part-load efficiency)",
+             [c.electrical_energy_per_cycle / 3600.0 for c in cands], "num"),
+        _Row("electrical energy per year [kWh]", [c.electrical_energy_per_year / 3.6e6 for c in cands], "int"),
+        _Row(f"energy cost per year [{app.currency}]", [c.energy_cost_per_year for c in cands], "int"),
+        _Row(f"cost over {app.evaluation_years:g} years [{app.currency}]", [c.cost_over_period for c in cands],
+             "int"),
+        _Row("rank (passing candidates, by cost over the period)",
+             [c.rank if c.rank else "not ranked" for c in cands], "int"),
+        _Row("notes", ["; ".join([*c.notes, defaults] if defaults else c.notes) for c in cands], "wrap"),
+    ]
+
+
+def _summary_rows(comp: Comparison, units: str, duty_refs: list[dict[str, str]], base: str
+                  ) -> list[_Row | None]:
+    """Every line of the Summary, in order (None: a gap). Add a line in one of its parts and it is laid
+    out and printed like the others."""
+    return [*_datasheet_rows(comp, units, base), None, *_verdict_rows(comp.candidates, units), None,
+            *_drive_rows(comp.candidates, units, duty_refs), *_motor_and_cost_rows(comp, units)]
 
 
 def _summary(book: Any, comp: Comparison, units: str, duty_refs: list[dict[str, str]], paper: str,
