@@ -495,6 +495,41 @@ def _summary_rows(comp: Comparison, units: str, duty_refs: list[dict[str, str]],
             *_drive_rows(comp.candidates, units, duty_refs), *_motor_and_cost_rows(comp, units)]
 
 
+def _summary_line(book: Any, sheet: Any, row: int, r: _Row, label_fmt: Any, widths: tuple[int, int]) -> None:
+    """Write one line of the Summary at ``row``: its label, then one cell per candidate."""
+    label_w, cand_w = widths
+    sheet.write_string(row, 0, r.label, label_fmt)
+    lines = text_lines(r.label, label_w)
+    numeric = r.style if isinstance(r.style, str) and r.style in _NUMERIC else None
+    num = None
+    if numeric in ("pct", "spct"):
+        num = PCT if numeric == "pct" else SIGNED_PCT
+    elif numeric == "int" or numeric == "n0":
+        num = "#,##0"
+    elif numeric:
+        num = number_format(r.values)
+    for c, value in enumerate(r.values, start=1):
+        style = r.style[c - 1] if isinstance(r.style, list) else None
+        # a thin line between candidates; numbers right, texts left and indented: they never run together
+        edge = {"left": 1, "left_color": "#BFBFBF"}
+        if isinstance(value, (int, float)) and not isinstance(value, bool):
+            fmt = cell_format(book, style, num_format=num or number_format([value]), align="right", **edge)
+        elif numeric:
+            # a text in a row of numbers ("not ranked" beside a rank) stands right like them
+            fmt = cell_format(book, style, "wrap", align="right", **edge)
+            lines = max(lines, text_lines(value, cand_w - 2))
+        else:
+            fmt = cell_format(book, style, "wrap", indent=1, **edge)
+            lines = max(lines, text_lines(value, cand_w - 2))
+        formula = r.formulas[c - 1] if r.formulas else None
+        if formula:
+            write_formula(sheet, row, c, formula, value, fmt)
+        else:
+            write_value(sheet, row, c, value, fmt)
+    if lines > 1:
+        sheet.set_row(row, LINE_HEIGHT * lines)
+
+
 def _summary(book: Any, comp: Comparison, units: str, duty_refs: list[dict[str, str]], paper: str,
              base: str) -> None:
     f = book.styles
@@ -547,36 +582,7 @@ def _summary(book: Any, comp: Comparison, units: str, duty_refs: list[dict[str, 
         if r is None:
             row += 1
             continue
-        sheet.write_string(row, 0, r.label, label_fmt)
-        lines = text_lines(r.label, label_w)
-        numeric = r.style if isinstance(r.style, str) and r.style in _NUMERIC else None
-        num = None
-        if numeric in ("pct", "spct"):
-            num = PCT if numeric == "pct" else SIGNED_PCT
-        elif numeric == "int" or numeric == "n0":
-            num = "#,##0"
-        elif numeric:
-            num = number_format(r.values)
-        for c, value in enumerate(r.values, start=1):
-            style = r.style[c - 1] if isinstance(r.style, list) else None
-            # a thin line between candidates; numbers right, texts left and indented: they never run together
-            edge = {"left": 1, "left_color": "#BFBFBF"}
-            if isinstance(value, (int, float)) and not isinstance(value, bool):
-                fmt = cell_format(book, style, num_format=num or number_format([value]), align="right", **edge)
-            elif numeric:
-                # a text in a row of numbers ("not ranked" beside a rank) stands right like them
-                fmt = cell_format(book, style, "wrap", align="right", **edge)
-                lines = max(lines, text_lines(value, cand_w - 2))
-            else:
-                fmt = cell_format(book, style, "wrap", indent=1, **edge)
-                lines = max(lines, text_lines(value, cand_w - 2))
-            formula = r.formulas[c - 1] if r.formulas else None
-            if formula:
-                write_formula(sheet, row, c, formula, value, fmt)
-            else:
-                write_value(sheet, row, c, value, fmt)
-        if lines > 1:
-            sheet.set_row(row, LINE_HEIGHT * lines)
+        _summary_line(book, sheet, row, r, label_fmt, (label_w, cand_w))
         row += 1
     sheet.freeze_panes(head + 1, 1)
     # at most two pages: one wide, two tall; the candidates' names and the labels repeat on each
@@ -965,14 +971,11 @@ def _where_text(where: Where, base: str) -> str:
     return str(where)
 
 
-def _assumptions(book: Any, comp: Comparison, inputs: Sequence[str | os.PathLike[str]], paper: str,
-                 base: str) -> None:
-    f = book.styles
-    sheet = book.add_worksheet("Assumptions")
+def _assumption_rows(comp: Comparison) -> list[tuple[str, Any, str | None]]:
+    """The Assumptions sheet's settings: label, value, number format (a share shows as a percentage)."""
     app, oil = comp.application, comp.application.oil
     settings = comp.settings
-    # label, value, number format (settings entered as a share show as a percentage)
-    rows: list[tuple[str, Any, str | None]] = [
+    return [
         ("application", app.name, None),
         ("relief-valve setting [bar]", float(from_si(app.relief_setting, PRESSURE, "bar")), "#,##0.#"),
         ("overshoot allowed", app.overshoot, "0.#%"),
@@ -1016,6 +1019,32 @@ def _assumptions(book: Any, comp: Comparison, inputs: Sequence[str | os.PathLike
         ("settings not given (defaults used)", ", ".join(app.defaulted) or "none", None),
         ("sheetpump version", __version__, None),
     ]
+
+
+def _motor_ratings(book: Any, sheet: Any, r: int, standard: str, label: Any) -> int:
+    """Write the standard motor ratings and their full-load efficiencies from row ``r`` on; returns the
+    last row written."""
+    series = drive.IEC_RATINGS_KW if standard == "IEC" else drive.NEMA_RATINGS_HP
+    unit = "kW" if standard == "IEC" else "hp"
+    sheet.write_string(r, 0, f"standard motor ratings [{unit}]", label)
+    sheet.write_string(r, 1, "full-load efficiency", label)
+    rating_fmt = cell_format(book, num_format="#,##0.###", align="left")
+    eff_fmt = cell_format(book, num_format=PCT, align="left")
+    for rating in series:
+        r += 1
+        write_value(sheet, r, 0, rating, rating_fmt)
+        watts = rating * (1000.0 if unit == "kW" else drive.HP)
+        write_value(sheet, r, 1, float(drive.motor_efficiency(watts, standard)), eff_fmt)
+    return r
+
+
+def _assumptions(book: Any, comp: Comparison, inputs: Sequence[str | os.PathLike[str]], paper: str,
+                 base: str) -> None:
+    """Write the Assumptions sheet: the caution, the settings, the input files and the motor ratings."""
+    f = book.styles
+    sheet = book.add_worksheet("Assumptions")
+    app = comp.application
+    rows = _assumption_rows(comp)
     label_w, value_w = 40, 70
     sheet.set_column(0, 0, label_w)
     sheet.set_column(1, 1, value_w)
@@ -1038,18 +1067,7 @@ def _assumptions(book: Any, comp: Comparison, inputs: Sequence[str | os.PathLike
         r += 1
         write_value(sheet, r, 0, display_path(path, base), left)
         write_value(sheet, r, 1, sha256(path), left)
-    r += 2
-    series = drive.IEC_RATINGS_KW if app.motor_standard == "IEC" else drive.NEMA_RATINGS_HP
-    unit = "kW" if app.motor_standard == "IEC" else "hp"
-    sheet.write_string(r, 0, f"standard motor ratings [{unit}]", label)
-    sheet.write_string(r, 1, "full-load efficiency", label)
-    rating_fmt = cell_format(book, num_format="#,##0.###", align="left")
-    eff_fmt = cell_format(book, num_format=PCT, align="left")
-    for rating in series:
-        r += 1
-        write_value(sheet, r, 0, rating, rating_fmt)
-        watts = rating * (1000.0 if unit == "kW" else drive.HP)
-        write_value(sheet, r, 1, float(drive.motor_efficiency(watts, app.motor_standard)), eff_fmt)
+    r = _motor_ratings(book, sheet, r + 2, app.motor_standard, label)
     page_setup(sheet, app.name, paper=paper, landscape=False, area=(0, 0, r, 1))
 
 
