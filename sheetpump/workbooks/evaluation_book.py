@@ -27,6 +27,7 @@ from __future__ import annotations
 
 import math
 import os
+from dataclasses import dataclass
 from pathlib import Path
 from typing import Any
 
@@ -355,10 +356,8 @@ def _write_summary(sheet: Any, e: Evaluation, f: _Formats, source: str | None) -
 
 
 # -- Points ----------------------------------------------------------------------------------------------
-def _write_points(sheet: Any, e: Evaluation, f: _Formats, v_cell: str
-                  ) -> tuple[np.ndarray, dict[str, int]]:
-    """Write the Points sheet; return the sheet row of each point (-1: not shown) and the column of each key."""
-    t, pe = e.table, e.points
+def _points_columns(t: Any) -> list[tuple[str, str, int]]:
+    """The Points sheet's columns for table ``t``: key, header, width [characters]."""
     power_measured = t.torque is None
     cols: list[tuple[str, str, int]] = [  # key, header, width
         ("row", "row in the file", 8),
@@ -387,6 +386,91 @@ def _write_points(sheet: Any, e: Evaluation, f: _Formats, v_cell: str
         ("m_et", "model η_t [-]", 10),
         ("extrap", "model outside the measured ranges", 26),
     ]
+    return cols
+
+
+@dataclass(frozen=True)
+class _PointsSheet:
+    """What every row of the Points sheet is written with: the sheet, its formats, the column of each key,
+    the displacement cell, and the table's values in the sheet's units."""
+
+    sheet: Any
+    f: _Formats
+    col: dict[str, int]
+    v_cell: str
+    shown: dict[str, np.ndarray]  # speed, pressure, flow, torque, power, viscosity, mu [display units]
+
+    def cell(self, key: str, r: int) -> str:
+        return xl_rowcol_to_cell(r, self.col[key])
+
+
+def _measured_cells(ps: _PointsSheet, e: Evaluation, r: int, i: int, ok: bool) -> None:
+    """The measured cells of point ``i`` at row ``r``, and torque from power or power from torque."""
+    sheet, f, col, cell = ps.sheet, ps.f, ps.col, ps.cell
+    t = e.table
+    write_value(sheet, r, col["row"], int(t.rows[i]) if t.rows.size else i + 1)
+    write_value(sheet, r, col["speed"], _num(ps.shown["speed"][i]), f.input[1])
+    write_value(sheet, r, col["pressure"], _num(ps.shown["pressure"][i]), f.input[2])
+    write_value(sheet, r, col["flow"], _num(ps.shown["flow"][i]), f.input[3])
+    n_c, t_c, w_c = cell("speed", r), cell("torque", r), cell("power", r)
+    if t.torque is not None:
+        write_value(sheet, r, col["torque"], _num(from_si(t.torque[i], TORQUE)), f.input[3])
+        if ok:  # P [kW] = 2π·n [rpm]·T [N·m]/60000
+            write_formula(sheet, r, col["power"], f"=2*PI()*{n_c}*{t_c}/60000", float(ps.shown["power"][i]),
+                          f.value[4])
+    else:
+        write_value(sheet, r, col["power"], _num(from_si(t.input_power[i], POWER)), f.input[4])
+        if ok:
+            write_formula(sheet, r, col["torque"], f"={w_c}*60000/(2*PI()*{n_c})", float(ps.shown["torque"][i]),
+                          f.value[3])
+    from_temperature = t.viscosity is None and t.temperature is not None
+    write_value(sheet, r, col["viscosity"], _num(ps.shown["viscosity"][i]),
+                f.value[3] if from_temperature else f.input[3])
+    if t.temperature is not None:
+        write_value(sheet, r, col["temperature"], _num(from_si(t.temperature[i], TEMPERATURE)), f.input[1])
+    write_value(sheet, r, col["density"], _num(e.density[i]), f.value[1])
+
+
+def _point_row(ps: _PointsSheet, e: Evaluation, r: int, i: int) -> None:
+    """Write point ``i`` at row ``r``: measured cells, the live formulas of the efficiencies and powers
+    (with their values), its flags and the model's efficiencies."""
+    sheet, f, col, cell, v_cell = ps.sheet, ps.f, ps.col, ps.cell, ps.v_cell
+    pe = e.points
+    ok = bool(np.isfinite(pe.volumetric[i]))  # evaluated (neither missing nor impossible)
+    _measured_cells(ps, e, r, i, ok)
+    n_c, p_c, q_c = cell("speed", r), cell("pressure", r), cell("flow", r)
+    t_c, w_c = cell("torque", r), cell("power", r)
+    mu = ps.shown["mu"]
+    if np.isfinite(mu[i]):  # μ [mPa·s] = ν [mm²/s]·ρ [kg/m³]/1000
+        write_formula(sheet, r, col["mu"], f"={cell('viscosity', r)}*{cell('density', r)}/1000",
+                      float(mu[i]), f.value[3])
+    if ok:
+        qth = float(from_si(pe.geometric_flow[i], FLOW))
+        phyd = float(from_si(pe.hydraulic_power[i], POWER))
+        write_formula(sheet, r, col["qth"], f"={v_cell}*{n_c}/1000", qth, f.value[3])  # L/min = cm³·rpm/1000
+        write_formula(sheet, r, col["ev"], f"={q_c}/{cell('qth', r)}", float(pe.volumetric[i]), f.eff)
+        # η_hm = V·Δp/(2π·T) = V [cm³]·Δp [bar]/(20π·T [N·m])
+        write_formula(sheet, r, col["ehm"], f"={v_cell}*{p_c}/(20*PI()*{t_c})", float(pe.hydromechanical[i]),
+                      f.eff)
+        write_formula(sheet, r, col["phyd"], f"={p_c}*{q_c}/600", phyd, f.value[4])  # kW = bar·L/min/600
+        write_formula(sheet, r, col["et"], f"={cell('phyd', r)}/{w_c}", float(pe.total[i]), f.eff)
+        write_formula(sheet, r, col["loss"], f"={w_c}-{cell('phyd', r)}", float(from_si(pe.power_loss[i], POWER)),
+                      f.value[4])
+    flags = pe.flags[i]
+    write_value(sheet, r, col["flags"], "; ".join(flags) if flags else "ok", f.fail if flags else f.ok)
+    pr = e.prediction
+    if pr is not None and ok:
+        write_value(sheet, r, col["m_ev"], _num(pr.volumetric[i]), f.eff)
+        write_value(sheet, r, col["m_ehm"], _num(pr.hydromechanical[i]), f.eff)
+        write_value(sheet, r, col["m_et"], _num(pr.total[i]), f.eff)
+        write_value(sheet, r, col["extrap"], str(pr.extrapolation[i]) or "no")
+
+
+def _write_points(sheet: Any, e: Evaluation, f: _Formats, v_cell: str
+                  ) -> tuple[np.ndarray, dict[str, int]]:
+    """Write the Points sheet; return the sheet row of each point (-1: not shown) and the column of each key."""
+    t, pe = e.table, e.points
+    cols = _points_columns(t)
     col = {key: i for i, (key, _, _) in enumerate(cols)}
     write_value(sheet, 0, 0, f"{_TITLE}: points", f.title)
     write_value(sheet, 1, 0, "Shaded: measured. Formulas use the displacement on the Summary sheet "
@@ -398,66 +482,16 @@ def _write_points(sheet: Any, e: Evaluation, f: _Formats, v_cell: str
         write_value(sheet, 2, 0, f"The table has {t.size:,} points; this sheet shows {shown.size:,} of them, every "
                     f"{step}th in this order, and the charts draw these. Summary's figures and flag counts "
                     "cover every point; `sheetpump evaluate --format json` lists each one.", f.note_line)
-
-    def cell(key: str, r: int) -> str:
-        return xl_rowcol_to_cell(r, col[key])
-
-    n_rpm = from_si(t.speed, SPEED)
-    p_bar = from_si(t.pressure, PRESSURE)
-    q_lpm = from_si(t.flow, FLOW)
-    torque = from_si(pe.torque, TORQUE)
-    p_in = from_si(pe.input_power, POWER)
-    measured_torque = t.torque if t.torque is not None else None
-    measured_power = t.input_power if t.torque is None else None
-    nu = from_si(e.viscosity, VISCOSITY)
-    mu = from_si(e.dynamic_viscosity, DYN_VISCOSITY)
+    values = {"speed": from_si(t.speed, SPEED), "pressure": from_si(t.pressure, PRESSURE),
+              "flow": from_si(t.flow, FLOW), "torque": from_si(pe.torque, TORQUE),
+              "power": from_si(pe.input_power, POWER), "viscosity": from_si(e.viscosity, VISCOSITY),
+              "mu": from_si(e.dynamic_viscosity, DYN_VISCOSITY)}
+    ps = _PointsSheet(sheet, f, col, v_cell, values)
     rows = np.full(t.size, -1)
     for k, i in enumerate(shown.tolist()):
         r = _HEADER_ROW + 1 + k
         rows[i] = r
-        ok = bool(np.isfinite(pe.volumetric[i]))  # evaluated (neither missing nor impossible)
-        write_value(sheet, r, col["row"], int(t.rows[i]) if t.rows.size else i + 1)
-        write_value(sheet, r, col["speed"], _num(n_rpm[i]), f.input[1])
-        write_value(sheet, r, col["pressure"], _num(p_bar[i]), f.input[2])
-        write_value(sheet, r, col["flow"], _num(q_lpm[i]), f.input[3])
-        n_c, p_c, q_c = cell("speed", r), cell("pressure", r), cell("flow", r)
-        t_c, w_c = cell("torque", r), cell("power", r)
-        if measured_torque is not None:
-            write_value(sheet, r, col["torque"], _num(from_si(measured_torque[i], TORQUE)), f.input[3])
-            if ok:  # P [kW] = 2π·n [rpm]·T [N·m]/60000
-                write_formula(sheet, r, col["power"], f"=2*PI()*{n_c}*{t_c}/60000", float(p_in[i]), f.value[4])
-        else:
-            write_value(sheet, r, col["power"], _num(from_si(measured_power[i], POWER)), f.input[4])
-            if ok:
-                write_formula(sheet, r, col["torque"], f"={w_c}*60000/(2*PI()*{n_c})", float(torque[i]), f.value[3])
-        from_temperature = t.viscosity is None and t.temperature is not None
-        write_value(sheet, r, col["viscosity"], _num(nu[i]), f.value[3] if from_temperature else f.input[3])
-        if t.temperature is not None:
-            write_value(sheet, r, col["temperature"], _num(from_si(t.temperature[i], TEMPERATURE)), f.input[1])
-        write_value(sheet, r, col["density"], _num(e.density[i]), f.value[1])
-        if np.isfinite(mu[i]):  # μ [mPa·s] = ν [mm²/s]·ρ [kg/m³]/1000
-            write_formula(sheet, r, col["mu"], f"={cell('viscosity', r)}*{cell('density', r)}/1000",
-                          float(mu[i]), f.value[3])
-        if ok:
-            qth = float(from_si(pe.geometric_flow[i], FLOW))
-            phyd = float(from_si(pe.hydraulic_power[i], POWER))
-            write_formula(sheet, r, col["qth"], f"={v_cell}*{n_c}/1000", qth, f.value[3])  # L/min = cm³·rpm/1000
-            write_formula(sheet, r, col["ev"], f"={q_c}/{cell('qth', r)}", float(pe.volumetric[i]), f.eff)
-            # η_hm = V·Δp/(2π·T) = V [cm³]·Δp [bar]/(20π·T [N·m])
-            write_formula(sheet, r, col["ehm"], f"={v_cell}*{p_c}/(20*PI()*{t_c})", float(pe.hydromechanical[i]),
-                          f.eff)
-            write_formula(sheet, r, col["phyd"], f"={p_c}*{q_c}/600", phyd, f.value[4])  # kW = bar·L/min/600
-            write_formula(sheet, r, col["et"], f"={cell('phyd', r)}/{w_c}", float(pe.total[i]), f.eff)
-            write_formula(sheet, r, col["loss"], f"={w_c}-{cell('phyd', r)}", float(from_si(pe.power_loss[i], POWER)),
-                          f.value[4])
-        flags = pe.flags[i]
-        write_value(sheet, r, col["flags"], "; ".join(flags) if flags else "ok", f.fail if flags else f.ok)
-        pr = e.prediction
-        if pr is not None and ok:
-            write_value(sheet, r, col["m_ev"], _num(pr.volumetric[i]), f.eff)
-            write_value(sheet, r, col["m_ehm"], _num(pr.hydromechanical[i]), f.eff)
-            write_value(sheet, r, col["m_et"], _num(pr.total[i]), f.eff)
-            write_value(sheet, r, col["extrap"], str(pr.extrapolation[i]) or "no")
+        _point_row(ps, e, r, i)
     sheet.freeze_panes(_HEADER_ROW + 1, 1)
     last = _HEADER_ROW + max(shown.size, 1)
     sheet.autofilter(_HEADER_ROW, 0, last, len(cols) - 1)
