@@ -59,6 +59,25 @@ def test_demo_verdicts_follow_from_hand_arithmetic(result, found):
     assert flow.severity == "fail"
     assert flow.limit == pytest.approx(36 * 1.05 / 60000, rel=1e-9)  # float rounding only
     assert flow.measured < 22 * 1470 / 1000 / 60000
+    assert flow.measured * 60000 == pytest.approx(31.4, abs=0.05)  # the README's "31.4 L/min after leakage"
+
+
+def test_demo_warnings_are_the_ones_the_readme_gives(found):
+    """The two "warn" pumps of the README's table warn for the reasons it gives, and for no other."""
+    def flagged(label: str) -> dict[str, str]:
+        return {rule: f.severity for rule, f in found[label].items() if f.severity not in ("pass", "info")}
+
+    # MT-G28: "every duty pressure within its ratings, but the press's 250 bar relief setting is above its
+    # 230 bar continuous rating" (the relief rule of DESIGN §6; figures of the invented demo data)
+    mt = "Marrow & Tepp Hydraulics MT-G28"
+    assert flagged(mt) == {"pressure.relief-stall": "warn"}
+    relief = found[mt]["pressure.relief-stall"]
+    assert relief.measured == pytest.approx(250e5, rel=1e-12) and relief.limit == pytest.approx(230e5, rel=1e-12)
+    # SL-32: "passes every rating it states; its maximum inlet pressure is not stated (not checked), and its
+    # table is at one speed and one viscosity, so the efficiencies ... are extrapolated"
+    sl = "Sandlow Pumpen SL-32"
+    assert flagged(sl) == {"inlet.max": "not checked", "performance.basis": "warn"}
+    assert "extrapolat" in found[sl]["performance.basis"].message
 
 
 def test_demo_cold_start_starves_the_inch_pound_pump(result, found):

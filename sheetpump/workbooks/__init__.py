@@ -3,7 +3,7 @@
 * :mod:`.templates` — the datasheet and application formats, declared once, and the blank templates;
 * :mod:`.readers` — ``read_datasheet`` and ``read_application`` (SI dataclasses that remember each
   value's file, sheet and cell);
-* :mod:`.series` — ``read_series``: a measured time series (CSV or xlsx) as a duty;
+* :mod:`.time_series` — ``read_series``: a measured time series (CSV or xlsx) as a duty;
 * :mod:`.safe` — the one guarded way every reader opens a file;
 * :mod:`.writer` and the modules built on it — the workbooks sheetpump writes (XlsxWriter).
 
@@ -19,7 +19,7 @@ __all__ = ["read_application", "read_datasheet", "read_series", "write_template"
 _LAZY = {
     "read_datasheet": "readers",
     "read_application": "readers",
-    "read_series": "series",
+    "read_series": "time_series",
     "write_template": "templates",
 }
 

@@ -33,6 +33,7 @@ from xlsxwriter.utility import xl_rowcol_to_cell
 from .. import SAFETY_CAUTION, __version__, performance
 from ..checks import DISPLAY_UNITS, RULES, Finding
 from ..comparison import Candidate, Comparison
+from ..datasheet import Datasheet
 from ..errors import Where
 from ..files import sha256
 from ..physics import drive, fluid, pump
@@ -150,16 +151,31 @@ _DUTY_HEADER_ROW = 3
 _NO_FLOW = "none required"
 
 
-def _duty_sheet(book: Any, name: str, candidate: Candidate, units: str, paper: str) -> dict[str, str]:
-    """Write one candidate's duty sheet; returns cell references of its totals (for the summary)."""
-    f = book.styles
-    sheet = book.add_worksheet(name)
-    cols, labels, note = _resample(candidate)
-    app = candidate.result.application
-    sheet.write_string(0, 0, f"{name}: duty of {candidate.datasheet.label} on {app.name}", f["title"])
-    sheet.write_string(1, 0, note or "One row per duty segment. Columns with a blue header are live formulas.",
-                       cell_format(book, "note", text_wrap=False))
-    u = {k: _unit(units, k) for k in (PRESSURE, SPEED, FLOW, POWER, TORQUE, TEMPERATURE, VISCOSITY)}
+@dataclass(frozen=True)
+class _DutySheet:
+    """Where a candidate's duty sheet put its rows: what the Summary links to and the charts plot.
+
+    ``first``/``last`` are the 0-based rows of the first and last duty row; ``totals`` the absolute cell
+    references of its totals by key (none for a binned series, whose bins are not the whole truth).
+    """
+
+    name: str
+    first: int
+    last: int
+    binned: bool
+    totals: dict[str, str]
+
+
+@dataclass(frozen=True)
+class _Factors:
+    """Display-unit factors of a duty sheet's formulas: pressure x flow -> power, and power x s -> Wh."""
+
+    hydraulic: float
+    energy: float
+
+
+def _duty_values(cols: dict[str, np.ndarray], u: dict[Kind, str]) -> tuple[dict[str, np.ndarray], _Factors]:
+    """Every column of a duty sheet in display units, the formula columns computed as the sheet does."""
     # the factor that turns pressure x flow in the display units into the display power unit
     hyd = float(from_si(from_si(1.0, PRESSURE, u[PRESSURE]) ** -1 * from_si(1.0, FLOW, u[FLOW]) ** -1,
                         POWER, u[POWER]))
@@ -174,6 +190,12 @@ def _duty_sheet(book: Any, name: str, candidate: Candidate, units: str, paper: s
         shown["flow_margin"] = np.where(shown["required"] > 0, shown["delivered"] / shown["required"] - 1.0, np.nan)
     shown["energy"] = shown["input_power"] * power_si_per_display * shown["duration"] * wh_per_j
     shown["heat"] = shown["loss"] + shown["surplus"]
+    return shown, _Factors(hyd, power_si_per_display * wh_per_j)
+
+
+def _duty_header(book: Any, sheet: Any, cols: dict[str, np.ndarray], shown: dict[str, np.ndarray],
+                 labels: list[str], u: dict[Kind, str]) -> tuple[list[str], list[Any]]:
+    """Write the header row of a duty sheet and size its columns; returns the headers and cell formats."""
     headers, widths, formats = [], [], []
     for key, head, kind, num, _formula in _DUTY_COLUMNS:
         text = head.format(u[kind]) if kind is not None else head
@@ -190,48 +212,58 @@ def _duty_sheet(book: Any, name: str, candidate: Candidate, units: str, paper: s
         headers.append(f"max pressure [{u[PRESSURE]}]")
         widths.append(column_width(headers[-1], shown["pressure_max"], number_format(shown["pressure_max"])))
         formats.append(cell_format(book, num_format=number_format(shown["pressure_max"])))
-    write_header(sheet, _DUTY_HEADER_ROW, headers, widths, f["header"])
+    write_header(sheet, _DUTY_HEADER_ROW, headers, widths, book.styles["header"])
     for c, (_key, _h, _k, _n, formula) in enumerate(_DUTY_COLUMNS):
         if formula:
             sheet.write_string(_DUTY_HEADER_ROW, c, headers[c], cell_format(book, "header", "info"))
-    first = _DUTY_HEADER_ROW + 1
-    cell = lambda r, key: xl_rowcol_to_cell(r, _DUTY_COL[key])  # noqa: E731
-    for i, label in enumerate(labels):
-        r = first + i
-        write_value(sheet, r, 0, label, formats[0])
-        for key, _h, _k, _n, formula in _DUTY_COLUMNS[1:]:
-            if not formula:
-                c = _DUTY_COL[key]
-                write_value(sheet, r, c, float(shown[key][i]), formats[c])
-        p, q, qr, pin, t = (cell(r, k) for k in ("pressure", "delivered", "required", "input_power", "duration"))
-        h = cell(r, "hydraulic")
-        write_formula(sheet, r, _DUTY_COL["hydraulic"], f"={p}*{q}*{hyd!r}", float(shown["hydraulic"][i]),
-                      formats[_DUTY_COL["hydraulic"]])
-        write_formula(sheet, r, _DUTY_COL["loss"], f"={pin}-{h}", float(shown["loss"][i]), formats[_DUTY_COL["loss"]])
-        if shown["required"][i] > 0:
-            write_formula(sheet, r, _DUTY_COL["flow_margin"], f"={q}/{qr}-1", float(shown["flow_margin"][i]),
-                          formats[_DUTY_COL["flow_margin"]])
-        else:
-            write_value(sheet, r, _DUTY_COL["flow_margin"], _NO_FLOW, cell_format(book, align="right"))
-        write_formula(sheet, r, _DUTY_COL["energy"], f"={pin}*{t}*{power_si_per_display * wh_per_j!r}",
-                      float(shown["energy"][i]), formats[_DUTY_COL["energy"]])
-        # the surplus flow leaves at the pump's pressure (the duty's): heat never above the power drawn
-        surplus = float(shown["surplus"][i])
-        if note or not math.isfinite(surplus):  # a bin's mean surplus is not its mean flows' surplus
-            write_value(sheet, r, _DUTY_COL["surplus"], surplus, formats[_DUTY_COL["surplus"]])
-        else:
-            write_formula(sheet, r, _DUTY_COL["surplus"], f"=MAX({q}-{qr},0)*{p}*{hyd!r}", surplus,
-                          formats[_DUTY_COL["surplus"]])
-        write_formula(sheet, r, _DUTY_COL["heat"], f"={cell(r, 'loss')}+{cell(r, 'surplus')}",
-                      float(shown["heat"][i]), formats[_DUTY_COL["heat"]])
-        if "pressure_max" in cols:
-            write_value(sheet, r, len(_DUTY_COLUMNS), float(shown["pressure_max"][i]), formats[-1])
-    last = first + len(labels) - 1
-    total_row = last + 2
+    return headers, formats
+
+
+def _duty_cell(r: int, key: str) -> str:
+    return xl_rowcol_to_cell(r, _DUTY_COL[key])
+
+
+def _duty_row(book: Any, sheet: Any, r: int, label: str, values: dict[str, float], formats: list[Any],
+              factors: _Factors, binned: bool) -> None:
+    """Write one row of a duty sheet: the plain values, then the live formulas with their values."""
+    write_value(sheet, r, 0, label, formats[0])
+    for key, _h, _k, _n, formula in _DUTY_COLUMNS[1:]:
+        if not formula:
+            c = _DUTY_COL[key]
+            write_value(sheet, r, c, values[key], formats[c])
+    cell = _duty_cell
+    p, q, qr, pin, t = (cell(r, k) for k in ("pressure", "delivered", "required", "input_power", "duration"))
+    h = cell(r, "hydraulic")
+    hyd = factors.hydraulic
+
+    def formula(key: str, text: str) -> None:
+        write_formula(sheet, r, _DUTY_COL[key], text, values[key], formats[_DUTY_COL[key]])
+
+    formula("hydraulic", f"={p}*{q}*{hyd!r}")
+    formula("loss", f"={pin}-{h}")
+    if values["required"] > 0:
+        formula("flow_margin", f"={q}/{qr}-1")
+    else:
+        write_value(sheet, r, _DUTY_COL["flow_margin"], _NO_FLOW, cell_format(book, align="right"))
+    formula("energy", f"={pin}*{t}*{factors.energy!r}")
+    # the surplus flow leaves at the pump's pressure (the duty's): heat never above the power drawn
+    surplus = values["surplus"]
+    if binned or not math.isfinite(surplus):  # a bin's mean surplus is not its mean flows' surplus
+        write_value(sheet, r, _DUTY_COL["surplus"], surplus, formats[_DUTY_COL["surplus"]])
+    else:
+        formula("surplus", f"=MAX({q}-{qr},0)*{p}*{hyd!r}")
+    formula("heat", f"={cell(r, 'loss')}+{cell(r, 'surplus')}")
+    if "pressure_max" in values:
+        write_value(sheet, r, len(_DUTY_COLUMNS), values["pressure_max"], formats[-1])
+
+
+def _duty_totals(shown: dict[str, np.ndarray], first: int, last: int, u: dict[Kind, str]
+                 ) -> list[tuple[str, str, str, str, float]]:
+    """The totals below a duty sheet: key, label, column key, formula, and the value the formula gives."""
+    cell = _duty_cell
     col = lambda key: f"{cell(first, key)}:{cell(last, key)}"  # noqa: E731
     d, pin = shown["duration"], shown["input_power"]
-    # key, label, column, formula, value (what the formula gives, computed here)
-    totals = [
+    return [
         ("cycle", "cycle time [s]", "duration", f"=SUM({col('duration')})", float(d.sum())),
         ("peak_power", f"peak input power [{u[POWER]}]", "input_power", f"=MAX({col('input_power')})",
          float(pin.max())),
@@ -252,18 +284,13 @@ def _duty_sheet(book: Any, name: str, candidate: Candidate, units: str, paper: s
          f"=SUMPRODUCT({col('heat')},{col('duration')})/SUM({col('duration')})",
          float(np.sum(shown["heat"] * d) / d.sum())),
     ]
+
+
+def _write_duty_totals(book: Any, sheet: Any, name: str, totals: list[tuple[str, str, str, str, float]],
+                       total_row: int, exact: dict[str, float | None] | None) -> dict[str, str]:
+    """Write the totals from ``total_row`` on: live formulas, or for a binned series the checker's figures
+    over every sample (``exact``); returns the cell references of the live ones."""
     refs: dict[str, str] = {}
-    if note:
-        # Binned means understate peaks and RMS: give the checker's figures over every sample instead.
-        fig = candidate.result.drive
-        exact = {"cycle": float(np.sum(fig.duration)), "peak_power": _show(fig.peak_power, POWER, units),
-                 "rms_power": _show(fig.rms_power, POWER, units),
-                 "peak_torque": _show(fig.peak_torque, TORQUE, units),
-                 "mean_loss": _show(fig.mean_power_loss, POWER, units),
-                 "energy": fig.energy_per_cycle * wh_per_j,
-                 "mean_surplus": _show(fig.mean_surplus_heat, POWER, units),
-                 "mean_heat": _show(fig.mean_heat, POWER, units)}
-        sheet.write_string(total_row - 1, 0, "over every sample (not the bins above):", f["note"])
     for k, (key, text, c_key, formula, value) in enumerate(totals):
         r = total_row + k
         c = _DUTY_COL[c_key]
@@ -274,19 +301,57 @@ def _duty_sheet(book: Any, name: str, candidate: Candidate, units: str, paper: s
         else:
             sheet.write_string(r, 0, text, label)
         num = cell_format(book, bold=True, top=1, bottom=1,
-                          num_format=number_format([exact[key] if note else value]))
-        if note:
+                          num_format=number_format([exact[key] if exact else value]))
+        if exact:
             write_value(sheet, r, c, exact[key], num)
         else:
             write_formula(sheet, r, c, formula, value, num)
             refs[key] = f"'{name}'!{xl_rowcol_to_cell(r, c, row_abs=True, col_abs=True)}"
-    sheet.freeze_panes(_DUTY_HEADER_ROW + 1, 1)
-    last_col = len(headers) - 1
-    page_setup(sheet, app.name, paper=paper, title_rows=(_DUTY_HEADER_ROW, _DUTY_HEADER_ROW), title_columns=(0, 0),
-               area=(0, 0, total_row + len(totals) - 1, last_col))
-    sheet._sheetpump_rows = (first, last)  # for the charts
-    sheet._sheetpump_binned = bool(note)
     return refs
+
+
+def _exact_totals(candidate: Candidate, units: str) -> dict[str, float | None]:
+    """The checker's drive figures over every sample, as the totals of a binned duty sheet show them."""
+    fig = candidate.result.drive
+    return {"cycle": float(np.sum(fig.duration)), "peak_power": _show(fig.peak_power, POWER, units),
+            "rms_power": _show(fig.rms_power, POWER, units),
+            "peak_torque": _show(fig.peak_torque, TORQUE, units),
+            "mean_loss": _show(fig.mean_power_loss, POWER, units),
+            "energy": fig.energy_per_cycle * float(from_si(1.0, ENERGY, "Wh")),
+            "mean_surplus": _show(fig.mean_surplus_heat, POWER, units),
+            "mean_heat": _show(fig.mean_heat, POWER, units)}
+
+
+def _duty_sheet(book: Any, name: str, candidate: Candidate, units: str, paper: str) -> _DutySheet:
+    """Write one candidate's duty sheet; returns where its rows and totals are (for the summary, the charts)."""
+    f = book.styles
+    sheet = book.add_worksheet(name)
+    cols, labels, note = _resample(candidate)
+    app = candidate.result.application
+    sheet.write_string(0, 0, f"{name}: duty of {candidate.datasheet.label} on {app.name}", f["title"])
+    sheet.write_string(1, 0, note or "One row per duty segment. Columns with a blue header are live formulas.",
+                       cell_format(book, "note", text_wrap=False))
+    u = {k: _unit(units, k) for k in (PRESSURE, SPEED, FLOW, POWER, TORQUE, TEMPERATURE, VISCOSITY)}
+    shown, factors = _duty_values(cols, u)
+    headers, formats = _duty_header(book, sheet, cols, shown, labels, u)
+    first = _DUTY_HEADER_ROW + 1
+    keys = [key for key in shown if key != "segment"]
+    for i, label in enumerate(labels):
+        _duty_row(book, sheet, first + i, label, {key: float(shown[key][i]) for key in keys}, formats, factors,
+                  bool(note))
+    last = first + len(labels) - 1
+    total_row = last + 2
+    totals = _duty_totals(shown, first, last, u)
+    exact = None
+    if note:
+        # Binned means understate peaks and RMS: give the checker's figures over every sample instead.
+        exact = _exact_totals(candidate, units)
+        sheet.write_string(total_row - 1, 0, "over every sample (not the bins above):", f["note"])
+    refs = _write_duty_totals(book, sheet, name, totals, total_row, exact)
+    sheet.freeze_panes(_DUTY_HEADER_ROW + 1, 1)
+    page_setup(sheet, app.name, paper=paper, title_rows=(_DUTY_HEADER_ROW, _DUTY_HEADER_ROW), title_columns=(0, 0),
+               area=(0, 0, total_row + len(totals) - 1, len(headers) - 1))
+    return _DutySheet(name, first, last, bool(note), refs)
 
 
 def _fmt_margin(margin: float | None) -> str:  # as SIGNED_PCT shows a number
@@ -318,38 +383,16 @@ class _Row:
 _NUMERIC = {"num", "int", "pct", "spct", "n0", "n1", "n2", "n3"}
 
 
-def _summary_rows(comp: Comparison, units: str, duty_refs: list[dict[str, str]], base: str
-                  ) -> list[_Row | None]:
-    """Every line of the Summary, in order (None: a gap). Add a line here and it is laid out and printed
-    like the others."""
+def _datasheet_rows(comp: Comparison, units: str, base: str) -> list[_Row]:
+    """Summary lines of what each datasheet states, and the pulsation frequency over the duty's speeds."""
     app = comp.application
-    cands = comp.candidates
-    ds = [c.datasheet for c in cands]
+    ds = [c.datasheet for c in comp.candidates]
     u = lambda kind: _unit(units, kind)  # noqa: E731
-    rows: list[_Row | None] = []
-
-    def line(label: str, values: Sequence[Any], style: str | list[str | None] | None = None) -> None:
-        rows.append(_Row(label, list(values), style))
-
-    line("supplier", [d.supplier for d in ds], "wrap")
-    line("model", [d.model for d in ds], "wrap")
-    line("datasheet file", [display_path(d.file, base) if d.file else "" for d in ds], "wrap")
     disp_unit = "cm^3/rev" if units == "metric" else "in^3/rev"
-    line(f"displacement [{disp_unit}]", [float(from_si(d.displacement, DISPLACEMENT, disp_unit)) for d in ds], "num")
-    line(f"speed range [{u(SPEED)}]",
-         [f"{_show(d.speed_min, SPEED, units):.4g} – {_show(d.speed_max, SPEED, units):.4g}" for d in ds])
-    line(f"continuous pressure [{u(PRESSURE)}]", [_show(d.pressure_continuous, PRESSURE, units) for d in ds], "int")
-    line(f"intermittent pressure [{u(PRESSURE)}]", [_show(d.pressure_intermittent, PRESSURE, units) for d in ds],
-         "int")
-    line(f"peak pressure [{u(PRESSURE)}]", [_show(d.pressure_peak, PRESSURE, units) for d in ds], "int")
-    line(f"price [{app.currency}]", [d.price for d in ds], "int")
     mass_unit = "kg" if units == "metric" else "lb"
-    line(f"mass [{mass_unit}]", [None if d.mass is None else float(from_si(d.mass, MASS, mass_unit)) for d in ds],
-         "num")
-    line("noise [dB(A)]", [d.noise for d in ds], "int")
     speeds = app.duty.speed
     lo, hi = float(np.min(speeds)), float(np.max(speeds))
-    pulsation = []
+    pulsation: list[Any] = []
     for d in ds:
         if not d.teeth:
             pulsation.append("teeth not stated")
@@ -358,23 +401,48 @@ def _summary_rows(comp: Comparison, units: str, duty_refs: list[dict[str, str]],
         else:
             pulsation.append(f"{float(pump.pulsation_frequency(d.teeth, lo)):.0f} – "
                              f"{float(pump.pulsation_frequency(d.teeth, hi)):.0f}")
-    line("pulsation frequency, teeth x speed / 60 [Hz]", pulsation, "int")
-    rows.append(None)
-    line("verdict", [c.result.verdict for c in cands], [c.result.verdict for c in cands])
-    line("worst margin", [c.result.worst_margin for c in cands], "spct")
-    line("delivered-flow margin", [c.flow_margin for c in cands], "spct")
-    for label, values, style in _suction_rows(cands, units):
-        line(label, values, style)
-    rules = [r for r in RULES if any(f.rule == r for c in cands for f in c.result.findings)]
-    for rule in rules:
+    return [
+        _Row("supplier", [d.supplier for d in ds], "wrap"),
+        _Row("model", [d.model for d in ds], "wrap"),
+        _Row("datasheet file", [display_path(d.file, base) if d.file else "" for d in ds], "wrap"),
+        _Row(f"displacement [{disp_unit}]", [float(from_si(d.displacement, DISPLACEMENT, disp_unit)) for d in ds],
+             "num"),
+        _Row(f"speed range [{u(SPEED)}]",
+             [f"{_show(d.speed_min, SPEED, units):.4g} – {_show(d.speed_max, SPEED, units):.4g}" for d in ds]),
+        _Row(f"continuous pressure [{u(PRESSURE)}]", [_show(d.pressure_continuous, PRESSURE, units) for d in ds],
+             "int"),
+        _Row(f"intermittent pressure [{u(PRESSURE)}]",
+             [_show(d.pressure_intermittent, PRESSURE, units) for d in ds], "int"),
+        _Row(f"peak pressure [{u(PRESSURE)}]", [_show(d.pressure_peak, PRESSURE, units) for d in ds], "int"),
+        _Row(f"price [{app.currency}]", [d.price for d in ds], "int"),
+        _Row(f"mass [{mass_unit}]",
+             [None if d.mass is None else float(from_si(d.mass, MASS, mass_unit)) for d in ds], "num"),
+        _Row("noise [dB(A)]", [d.noise for d in ds], "int"),
+        _Row("pulsation frequency, teeth x speed / 60 [Hz]", pulsation, "int"),
+    ]
+
+
+def _verdict_rows(cands: Sequence[Candidate], units: str) -> list[_Row]:
+    """Summary lines of the verdicts: overall, the margins, the suction side, and every rule that spoke."""
+    rows = [_Row("verdict", [c.result.verdict for c in cands], [c.result.verdict for c in cands]),
+            _Row("worst margin", [c.result.worst_margin for c in cands], "spct"),
+            _Row("delivered-flow margin", [c.flow_margin for c in cands], "spct")]
+    rows += [_Row(label, values, style) for label, values, style in _suction_rows(cands, units)]
+    for rule in [r for r in RULES if any(f.rule == r for c in cands for f in c.result.findings)]:
         texts, styles = [], []
         for c in cands:
             found = [f for f in c.result.findings if f.rule == rule]
             texts.append(_finding_text(found[0]) if found else "not stated")
             styles.append(found[0].severity if found else None)
-        line(f"{rule}: {RULES[rule]}", texts, styles)
-    rows.append(None)
-    # drive figures: live links to each duty sheet's totals, with the checker's values stored
+        rows.append(_Row(f"{rule}: {RULES[rule]}", texts, styles))
+    return rows
+
+
+def _drive_rows(cands: Sequence[Candidate], units: str, duty_refs: list[dict[str, str]]) -> list[_Row]:
+    """Summary lines of the drive figures: live links to each duty sheet's totals, the checker's values
+    stored."""
+    u = lambda kind: _unit(units, kind)  # noqa: E731
+    rows = []
     for key, label, kind, attr in (
         ("peak_power", f"peak input power [{u(POWER)}]", POWER, "peak_power"),
         ("rms_power", f"RMS input power [{u(POWER)}]", POWER, "rms_power"),
@@ -386,28 +454,80 @@ def _summary_rows(comp: Comparison, units: str, duty_refs: list[dict[str, str]],
     ):
         values = [_show(getattr(c.result.drive, attr), kind, units) for c in cands]
         # a resampled series has no link: the duty sheet's bins are not the whole truth
-        formulas = [f"={refs[key]}" if key in refs else None for refs in duty_refs]
+        formulas: list[str | None] = [f"={refs[key]}" if key in refs else None for refs in duty_refs]
         rows.append(_Row(label, values, "num", formulas))
-    line("surplus flow crosses", [c.result.drive.surplus_path for c in cands], "wrap")
-    line("motor chosen", [c.motor.label if c.motor else "none" for c in cands],
-         [None if c.motor else "fail" for c in cands])
-    line(f"motor sized on: RMS load [{u(POWER)}]", [_show(c.motor_rms, POWER, units) for c in cands], "num")
-    line("RMS load taken", [c.motor_rms_basis for c in cands], "wrap")
-    line(f"motor sized on: peak load [{u(POWER)}]",
-         [_show(max(c.result.drive.peak_power, c.motor_rms), POWER, units) for c in cands], "num")
-    line("criterion that binds the motor size", [c.motor.binding if c.motor else "" for c in cands], "wrap")
-    line("motor load (of its rating)", [c.motor_note for c in cands], "wrap")
-    line("motor full-load efficiency", [c.motor.efficiency if c.motor else None for c in cands], "pct")
-    line("electrical energy per cycle [Wh] (at the motor's part-load efficiency)",
-         [c.electrical_energy_per_cycle / 3600.0 for c in cands], "num")
-    line("electrical energy per year [kWh]", [c.electrical_energy_per_year / 3.6e6 for c in cands], "int")
-    line(f"energy cost per year [{app.currency}]", [c.energy_cost_per_year for c in cands], "int")
-    line(f"cost over {app.evaluation_years:g} years [{app.currency}]", [c.cost_over_period for c in cands], "int")
-    line("rank (passing candidates, by cost over the period)", [c.rank if c.rank else "not ranked" for c in cands],
-         "int")
-    defaults = f"defaults used for: {', '.join(app.defaulted)}" if app.defaulted else ""
-    line("notes", ["; ".join([*c.notes, defaults] if defaults else c.notes) for c in cands], "wrap")
+    rows.append(_Row("surplus flow crosses", [c.result.drive.surplus_path for c in cands], "wrap"))
     return rows
+
+
+def _motor_and_cost_rows(comp: Comparison, units: str) -> list[_Row]:
+    """Summary lines of the motor chosen, the energy and its cost, the ranking and the notes."""
+    app, cands = comp.application, comp.candidates
+    u = lambda kind: _unit(units, kind)  # noqa: E731
+    defaults = f"defaults used for: {', '.join(app.defaulted)}" if app.defaulted else ""
+    return [
+        _Row("motor chosen", [c.motor.label if c.motor else "none" for c in cands],
+             [None if c.motor else "fail" for c in cands]),
+        _Row(f"motor sized on: RMS load [{u(POWER)}]", [_show(c.motor_rms, POWER, units) for c in cands], "num"),
+        _Row("RMS load taken", [c.motor_rms_basis for c in cands], "wrap"),
+        _Row(f"motor sized on: peak load [{u(POWER)}]",
+             [_show(max(c.result.drive.peak_power, c.motor_rms), POWER, units) for c in cands], "num"),
+        _Row("criterion that binds the motor size", [c.motor.binding if c.motor else "" for c in cands], "wrap"),
+        _Row("motor load (of its rating)", [c.motor_note for c in cands], "wrap"),
+        _Row("motor full-load efficiency", [c.motor.efficiency if c.motor else None for c in cands], "pct"),
+        _Row("electrical energy per cycle [Wh] (at the motor's part-load efficiency)",
+             [c.electrical_energy_per_cycle / 3600.0 for c in cands], "num"),
+        _Row("electrical energy per year [kWh]", [c.electrical_energy_per_year / 3.6e6 for c in cands], "int"),
+        _Row(f"energy cost per year [{app.currency}]", [c.energy_cost_per_year for c in cands], "int"),
+        _Row(f"cost over {app.evaluation_years:g} years [{app.currency}]", [c.cost_over_period for c in cands],
+             "int"),
+        _Row("rank (passing candidates, by cost over the period)",
+             [c.rank if c.rank else "not ranked" for c in cands], "int"),
+        _Row("notes", ["; ".join([*c.notes, defaults] if defaults else c.notes) for c in cands], "wrap"),
+    ]
+
+
+def _summary_rows(comp: Comparison, units: str, duty_refs: list[dict[str, str]], base: str
+                  ) -> list[_Row | None]:
+    """Every line of the Summary, in order (None: a gap). Add a line in one of its parts and it is laid
+    out and printed like the others."""
+    return [*_datasheet_rows(comp, units, base), None, *_verdict_rows(comp.candidates, units), None,
+            *_drive_rows(comp.candidates, units, duty_refs), *_motor_and_cost_rows(comp, units)]
+
+
+def _summary_line(book: Any, sheet: Any, row: int, r: _Row, label_fmt: Any, widths: tuple[int, int]) -> None:
+    """Write one line of the Summary at ``row``: its label, then one cell per candidate."""
+    label_w, cand_w = widths
+    sheet.write_string(row, 0, r.label, label_fmt)
+    lines = text_lines(r.label, label_w)
+    numeric = r.style if isinstance(r.style, str) and r.style in _NUMERIC else None
+    num = None
+    if numeric in ("pct", "spct"):
+        num = PCT if numeric == "pct" else SIGNED_PCT
+    elif numeric == "int" or numeric == "n0":
+        num = "#,##0"
+    elif numeric:
+        num = number_format(r.values)
+    for c, value in enumerate(r.values, start=1):
+        style = r.style[c - 1] if isinstance(r.style, list) else None
+        # a thin line between candidates; numbers right, texts left and indented: they never run together
+        edge = {"left": 1, "left_color": "#BFBFBF"}
+        if isinstance(value, (int, float)) and not isinstance(value, bool):
+            fmt = cell_format(book, style, num_format=num or number_format([value]), align="right", **edge)
+        elif numeric:
+            # a text in a row of numbers ("not ranked" beside a rank) stands right like them
+            fmt = cell_format(book, style, "wrap", align="right", **edge)
+            lines = max(lines, text_lines(value, cand_w - 2))
+        else:
+            fmt = cell_format(book, style, "wrap", indent=1, **edge)
+            lines = max(lines, text_lines(value, cand_w - 2))
+        formula = r.formulas[c - 1] if r.formulas else None
+        if formula:
+            write_formula(sheet, row, c, formula, value, fmt)
+        else:
+            write_value(sheet, row, c, value, fmt)
+    if lines > 1:
+        sheet.set_row(row, LINE_HEIGHT * lines)
 
 
 def _summary(book: Any, comp: Comparison, units: str, duty_refs: list[dict[str, str]], paper: str,
@@ -462,36 +582,7 @@ def _summary(book: Any, comp: Comparison, units: str, duty_refs: list[dict[str, 
         if r is None:
             row += 1
             continue
-        sheet.write_string(row, 0, r.label, label_fmt)
-        lines = text_lines(r.label, label_w)
-        numeric = r.style if isinstance(r.style, str) and r.style in _NUMERIC else None
-        num = None
-        if numeric in ("pct", "spct"):
-            num = PCT if numeric == "pct" else SIGNED_PCT
-        elif numeric == "int" or numeric == "n0":
-            num = "#,##0"
-        elif numeric:
-            num = number_format(r.values)
-        for c, value in enumerate(r.values, start=1):
-            style = r.style[c - 1] if isinstance(r.style, list) else None
-            # a thin line between candidates; numbers right, texts left and indented: they never run together
-            edge = {"left": 1, "left_color": "#BFBFBF"}
-            if isinstance(value, (int, float)) and not isinstance(value, bool):
-                fmt = cell_format(book, style, num_format=num or number_format([value]), align="right", **edge)
-            elif numeric:
-                # a text in a row of numbers ("not ranked" beside a rank) stands right like them
-                fmt = cell_format(book, style, "wrap", align="right", **edge)
-                lines = max(lines, text_lines(value, cand_w - 2))
-            else:
-                fmt = cell_format(book, style, "wrap", indent=1, **edge)
-                lines = max(lines, text_lines(value, cand_w - 2))
-            formula = r.formulas[c - 1] if r.formulas else None
-            if formula:
-                write_formula(sheet, row, c, formula, value, fmt)
-            else:
-                write_value(sheet, row, c, value, fmt)
-        if lines > 1:
-            sheet.set_row(row, LINE_HEIGHT * lines)
+        _summary_line(book, sheet, row, r, label_fmt, (label_w, cand_w))
         row += 1
     sheet.freeze_panes(head + 1, 1)
     # at most two pages: one wide, two tall; the candidates' names and the labels repeat on each
@@ -576,46 +667,42 @@ def _suction_assumptions(app: Any) -> list[tuple[str, Any, str | None]]:
     ]
 
 
-def _curves_and_charts(book: Any, comp: Comparison, units: str, duty_sheets: list[Any], paper: str) -> None:
-    curves = book.add_worksheet("Curves")
-    charts = book.add_worksheet("Charts")
-    f = book.styles
-    app = comp.application
-    duty = app.duty
-    oil = app.oil
-    cands = comp.candidates
-    weights = duty.duration / duty.duration.sum()
-    n_mean = float(np.sum(duty.speed * weights))
-    t_mean = float(np.sum(duty.temperature * weights))
-    nu_mean = float(fluid.viscosity_at(t_mean, oil.nu1, oil.t1, oil.nu2, oil.t2))
-    pu, qu, su = _unit(units, PRESSURE), _unit(units, FLOW), "rpm"
-    head_fmt, group_fmt = f["header"], cell_format(book, "header", text_wrap=False)
-    curves.write_string(0, 0, f"Curves at the duty's mean speed {from_si(n_mean, SPEED, 'rpm'):.0f} rpm and "
-                        f"mean oil temperature {from_si(t_mean, TEMPERATURE, _unit(units, TEMPERATURE)):.0f} "
-                        f"{_unit(units, TEMPERATURE)}; below them the required flow and each candidate's "
-                        "speed-pressure envelope", cell_format(book, "note", text_wrap=False))
-    # rows of the three blocks: curves, required flow, envelopes; then chart labels that hold input text
-    req_cols, req_labels, _ = _resample(cands[0]) if cands else ({}, [], "")
-    m = len(req_labels)
-    row_req = 3 + _CURVE_POINTS + 1
-    row_env = row_req + 2 + m + 1
-    env_block = 10
-    label_row = [row_env + env_block * len(cands) + 1]
+@dataclass
+class _CurvesSheet:
+    """The Curves sheet being written: its display units, formats, and the next free row for a chart name
+    that must be taken from a cell."""
 
-    def name_of(text: str) -> Any:
+    sheet: Any
+    pu: str
+    qu: str
+    head_fmt: Any
+    group_fmt: Any
+    fmts: list[Any]  # pressure, volumetric efficiency, total efficiency, flow
+    next_label: int = 0
+
+    def name_of(self, text: str) -> Any:
+        """A chart or series name: the text, or a reference to a cell holding it."""
         # a "!" in a literal series name reads as a sheet reference: such a name is taken from a cell
         if "!" not in text and not text.startswith("="):
             return text
-        r = label_row[0]
-        label_row[0] += 1
-        curves.write_string(r, 0, text)
+        r = self.next_label
+        self.next_label += 1
+        self.sheet.write_string(r, 0, text)
         return ["Curves", r, 0]
 
-    # block 1: efficiency and flow curves, four columns per candidate
+
+_CURVE_WIDTHS = (10, 11, 11, 10)  # columns of one candidate's curves block [characters]
+
+
+def _efficiency_curves(book: Any, cs: _CurvesSheet, cands: Sequence[Candidate], duties: list[_DutySheet],
+                       n_mean: float, nu_mean: float) -> tuple[Any, Any, Any, dict[str, float]]:
+    """Block 1 of Curves: each candidate's efficiency and flow curves at the duty's mean speed and
+    viscosity, four columns each; the three charts of them with the duty's points; the lowest efficiency
+    each chart shows."""
+    curves, pu, qu, fmts = cs.sheet, cs.pu, cs.qu, cs.fmts
     heads = (f"pressure [{pu}]", "volumetric efficiency", "total efficiency", f"delivered flow [{qu}]")
-    widths = [10, 11, 11, 10] * max(len(cands), 1)
-    write_header(curves, 2, list(heads) * len(cands), widths[:4 * len(cands)], head_fmt)
-    fmts = [cell_format(book, num_format=x) for x in ("#,##0", PCT, PCT, "#,##0.0")]
+    widths = list(_CURVE_WIDTHS) * max(len(cands), 1)
+    write_header(curves, 2, list(heads) * len(cands), widths[:4 * len(cands)], cs.head_fmt)
     eff = book.add_chart({"type": "scatter", "subtype": "straight"})
     vol = book.add_chart({"type": "scatter", "subtype": "straight"})
     flow = book.add_chart({"type": "scatter", "subtype": "straight"})
@@ -632,50 +719,59 @@ def _curves_and_charts(book: Any, comp: Comparison, units: str, duty_sheets: lis
                               float(np.nanmin(cand.result.drive.total_efficiency)))
         lowest["volumetric"] = min(lowest["volumetric"], float(np.nanmin(est.volumetric_efficiency)),
                                    float(np.nanmin(cand.result.drive.volumetric_efficiency)))
-        curves.merge_range(1, c0, 1, c0 + 3, ds.label, group_fmt)
+        curves.merge_range(1, c0, 1, c0 + 3, ds.label, cs.group_fmt)
         for j, values in enumerate((from_si(p, PRESSURE, pu), est.volumetric_efficiency, est.total_efficiency,
                                     from_si(est.flow, FLOW, qu))):
             for i, v in enumerate(np.asarray(values, float)):
                 write_value(curves, 3 + i, c0 + j, float(v), fmts[j])
         ref = lambda c: ["Curves", 3, c, 2 + _CURVE_POINTS, c]  # noqa: E731
-        first, last = duty_sheets[k]._sheetpump_rows
-        sheet = duty_sheets[k].name
+        first, last, sheet = duties[k].first, duties[k].last, duties[k].name
         at = lambda key, s=sheet, a=first, b=last: [s, a, _DUTY_COL[key], b, _DUTY_COL[key]]  # noqa: E731
-        eff.add_series({"name": name_of(f"{ds.label}"), "categories": ref(c0), "values": ref(c0 + 2),
+        eff.add_series({"name": cs.name_of(f"{ds.label}"), "categories": ref(c0), "values": ref(c0 + 2),
                         **_series_style(k, "total")})
-        eff.add_series({"name": name_of(f"{ds.label} at the duty"), "categories": at("pressure"),
+        eff.add_series({"name": cs.name_of(f"{ds.label} at the duty"), "categories": at("pressure"),
                         "values": at("total_eff"), **_points_style(k)})
-        vol.add_series({"name": name_of(f"{ds.label}"), "categories": ref(c0), "values": ref(c0 + 1),
+        vol.add_series({"name": cs.name_of(f"{ds.label}"), "categories": ref(c0), "values": ref(c0 + 1),
                         **_series_style(k, "volumetric")})
-        vol.add_series({"name": name_of(f"{ds.label} at the duty"), "categories": at("pressure"),
+        vol.add_series({"name": cs.name_of(f"{ds.label} at the duty"), "categories": at("pressure"),
                         "values": at("vol_eff"), **_points_style(k)})
-        flow.add_series({"name": name_of(f"{ds.label} delivered"), "categories": ref(c0), "values": ref(c0 + 3),
-                         **_series_style(k, "flow")})
-    # block 2: the required flow at the duty's pressures, and with the margin asked
-    if cands:
-        curves.write_string(row_req, 0, "required flow at the duty's points", group_fmt)
-        req_heads = [f"pressure [{pu}]", f"required flow [{qu}]",
-                     f"required + {app.flow_margin:.0%} margin [{qu}]"]
-        order = np.argsort(req_cols["pressure"], kind="stable")
-        p_req = np.asarray(from_si(req_cols["pressure"][order], PRESSURE, pu), float)
-        q_req = np.asarray(from_si(req_cols["required"][order], FLOW, qu), float)
-        for i in range(m):
-            write_value(curves, row_req + 2 + i, 0, float(p_req[i]), fmts[0])
-            write_value(curves, row_req + 2 + i, 1, float(q_req[i]), fmts[3])
-            write_value(curves, row_req + 2 + i, 2, float(q_req[i] * (1 + app.flow_margin)), fmts[3])
-        for c, text in enumerate(req_heads):
-            curves.write_string(row_req + 1, c, text, head_fmt)
-        curves.set_row(row_req + 1, LINE_HEIGHT * max(text_lines(t, w * 0.9) for t, w in zip(req_heads, widths,
-                                                                                             strict=False)))
-        rng = lambda c: ["Curves", row_req + 2, c, row_req + 1 + m, c]  # noqa: E731
-        flow.add_series({"name": "required (duty)", "categories": rng(0), "values": rng(1),
-                         "marker": {"type": "diamond", "size": 8, "fill": {"color": "#000000"},
-                                    "border": {"color": "#000000"}}, "line": {"none": True}})
-        if app.flow_margin > 0:
-            flow.add_series({"name": f"required + {app.flow_margin:.0%} margin", "categories": rng(0),
-                             "values": rng(2),
-                             "marker": {"type": "triangle", "size": 8, "fill": {"none": True},
-                                        "border": {"color": "#000000", "width": 1.25}}, "line": {"none": True}})
+        flow.add_series({"name": cs.name_of(f"{ds.label} delivered"), "categories": ref(c0),
+                         "values": ref(c0 + 3), **_series_style(k, "flow")})
+    return eff, vol, flow, lowest
+
+
+def _required_flow(cs: _CurvesSheet, app: Any, req_cols: dict[str, np.ndarray], row_req: int, flow: Any) -> None:
+    """Block 2 of Curves: the required flow at the duty's pressures, and with the margin asked; both as
+    points on the flow chart."""
+    curves, pu, qu, fmts = cs.sheet, cs.pu, cs.qu, cs.fmts
+    m = len(req_cols["pressure"])
+    curves.write_string(row_req, 0, "required flow at the duty's points", cs.group_fmt)
+    req_heads = [f"pressure [{pu}]", f"required flow [{qu}]",
+                 f"required + {app.flow_margin:.0%} margin [{qu}]"]
+    order = np.argsort(req_cols["pressure"], kind="stable")
+    p_req = np.asarray(from_si(req_cols["pressure"][order], PRESSURE, pu), float)
+    q_req = np.asarray(from_si(req_cols["required"][order], FLOW, qu), float)
+    for i in range(m):
+        write_value(curves, row_req + 2 + i, 0, float(p_req[i]), fmts[0])
+        write_value(curves, row_req + 2 + i, 1, float(q_req[i]), fmts[3])
+        write_value(curves, row_req + 2 + i, 2, float(q_req[i] * (1 + app.flow_margin)), fmts[3])
+    for c, text in enumerate(req_heads):
+        curves.write_string(row_req + 1, c, text, cs.head_fmt)
+    curves.set_row(row_req + 1, LINE_HEIGHT * max(text_lines(t, w * 0.9) for t, w in zip(req_heads, _CURVE_WIDTHS,
+                                                                                         strict=False)))
+    rng = lambda c: ["Curves", row_req + 2, c, row_req + 1 + m, c]  # noqa: E731
+    flow.add_series({"name": "required (duty)", "categories": rng(0), "values": rng(1),
+                     "marker": {"type": "diamond", "size": 8, "fill": {"color": "#000000"},
+                                "border": {"color": "#000000"}}, "line": {"none": True}})
+    if app.flow_margin > 0:
+        flow.add_series({"name": f"required + {app.flow_margin:.0%} margin", "categories": rng(0),
+                         "values": rng(2),
+                         "marker": {"type": "triangle", "size": 8, "fill": {"none": True},
+                                    "border": {"color": "#000000", "width": 1.25}}, "line": {"none": True}})
+
+
+def _set_efficiency_charts(eff: Any, vol: Any, flow: Any, lowest: dict[str, float], pu: str, qu: str) -> None:
+    """Titles, axes, legends and sizes of the efficiency and flow charts."""
     for chart, title, quantity in ((eff, "Total efficiency against pressure", "total"),
                                    (vol, "Volumetric efficiency against pressure", "volumetric")):
         chart.set_title({"name": title, "name_font": {"size": 12}})
@@ -689,10 +785,103 @@ def _curves_and_charts(book: Any, comp: Comparison, units: str, duty_sheets: lis
         chart.set_legend({"position": "bottom"})
         chart.set_size({"width": _CHART_W, "height": _CHART_H})
     flow.set_size({"width": 2 * _CHART_W + _CHART_GAP, "height": _CHART_H})
+
+
+def _envelope_outlines(ds: Datasheet, pu: str, su: str) -> list[tuple[str, list[float], list[float], str]]:
+    """The outlines of a datasheet's speed-pressure envelope: label, speeds, pressures, dash type."""
+    lo, hi = float(from_si(ds.speed_min, SPEED, su)), float(from_si(ds.speed_max, SPEED, su))
+    bands = [("continuous", ds.pressure_continuous, 0.0, "solid")]
+    if ds.pressure_intermittent:
+        bands.append(("intermittent", ds.pressure_intermittent, ds.pressure_continuous, "dash"))
+    bands.append(("peak", ds.pressure_peak, ds.pressure_intermittent or ds.pressure_continuous, "round_dot"))
+    outlines: list[tuple[str, list[float], list[float], str]] = []
+    for label, top, bottom, dash in bands:
+        top_d, bot_d = float(from_si(top, PRESSURE, pu)), float(from_si(bottom, PRESSURE, pu))
+        outlines.append((f"{label} band", [lo, hi, hi, lo, lo], [bot_d, bot_d, top_d, top_d, bot_d], dash))
+    if ds.speed_min_high_pressure and ds.high_pressure_threshold is not None:
+        raised = float(from_si(ds.speed_min_high_pressure, SPEED, su))
+        thr = float(from_si(ds.high_pressure_threshold, PRESSURE, pu))
+        top = float(from_si(ds.pressure_peak, PRESSURE, pu))
+        outlines.append((f"min. {raised:.0f} {su}", [lo, raised, raised],
+                         [thr, thr, top], "dash_dot"))
+    return outlines
+
+
+def _envelope_chart(book: Any, cs: _CurvesSheet, ds: Datasheet, duty: _DutySheet, r0: int,
+                    axes: tuple[float, float]) -> Any:
+    """Block 3 of Curves for one candidate, from row ``r0``: its speed-pressure envelope, and the chart of
+    it with the duty's points, on the shared ``axes`` (most speed, most pressure)."""
+    curves, pu, su = cs.sheet, cs.pu, "rpm"
+    seg_fmt = cell_format(book, num_format="#,##0")
+    env = book.add_chart({"type": "scatter", "subtype": "straight"})
+    curves.merge_range(r0, 0, r0, 7, f"{ds.label}: speed-pressure envelope [{su}, {pu}]", cs.group_fmt)
+    lines = 1
+    for j, (label, xs, ys, dash) in enumerate(_envelope_outlines(ds, pu, su)):
+        cx = 2 * j
+        curves.write_string(r0 + 1, cx, f"{label}: speed", cs.head_fmt)
+        curves.write_string(r0 + 1, cx + 1, "pressure", cs.head_fmt)
+        lines = max(lines, text_lines(f"{label}: speed", 9))
+        curves.set_row(r0 + 1, LINE_HEIGHT * lines)
+        for i, (x, y) in enumerate(zip(xs, ys, strict=True)):
+            write_value(curves, r0 + 2 + i, cx, x, seg_fmt)
+            write_value(curves, r0 + 2 + i, cx + 1, y, seg_fmt)
+        env.add_series({"name": label, "categories": ["Curves", r0 + 2, cx, r0 + 1 + len(xs), cx],
+                        "values": ["Curves", r0 + 2, cx + 1, r0 + 1 + len(xs), cx + 1],
+                        "line": {"color": "#000000" if label.startswith("min.") else "#555555",
+                                 "width": 2, "dash_type": dash}, "marker": {"type": "none"}})
+    first, last, sheet = duty.first, duty.last, duty.name
+    n_rows = last - first + 1
+    if n_rows <= len(PALETTE) and not duty.binned:
+        # the duty's points coloured and shaped by segment, alike in every envelope chart (the bands are grey)
+        for i in range(n_rows):
+            env.add_series({"name": [sheet, first + i, 0], "categories": [sheet, first + i, 3, first + i, 3],
+                            "values": [sheet, first + i, 2, first + i, 2], **_points_style(i, 7)})
+    else:
+        env.add_series({"name": "duty points", "categories": [sheet, first, 3, last, 3],
+                        "values": [sheet, first, 2, last, 2], "marker": {"type": "circle", "size": 5},
+                        "line": {"none": True}})
+    env.set_title({"name": cs.name_of(f"Speed-pressure envelope: {ds.label}"), "name_font": {"size": 12}})
+    env.set_x_axis({"name": f"speed [{su}]", "min": 0, "max": axes[0]})
+    env.set_y_axis({"name": f"pressure [{pu}]", "min": 0, "max": axes[1]})
+    # one plot area for every envelope chart, so the shared axes also have the same length on paper
+    env.set_legend({"position": "bottom", "layout": {"x": 0.05, "y": 0.75, "width": 0.9, "height": 0.24}})
+    env.set_plotarea({"layout": {"x": 0.14, "y": 0.14, "width": 0.8, "height": 0.5}})
+    env.set_size({"width": _CHART_W, "height": _CHART_H})
+    return env
+
+
+def _curves_and_charts(book: Any, comp: Comparison, units: str, duties: list[_DutySheet], paper: str) -> None:
+    """Write the Curves sheet (the data of the charts) and the Charts sheet (native charts of it)."""
+    curves = book.add_worksheet("Curves")
+    charts = book.add_worksheet("Charts")
+    app = comp.application
+    duty = app.duty
+    oil = app.oil
+    cands = comp.candidates
+    weights = duty.duration / duty.duration.sum()
+    n_mean = float(np.sum(duty.speed * weights))
+    t_mean = float(np.sum(duty.temperature * weights))
+    nu_mean = float(fluid.viscosity_at(t_mean, oil.nu1, oil.t1, oil.nu2, oil.t2))
+    pu, qu, su = _unit(units, PRESSURE), _unit(units, FLOW), "rpm"
+    group_fmt = cell_format(book, "header", text_wrap=False)
+    curves.write_string(0, 0, f"Curves at the duty's mean speed {from_si(n_mean, SPEED, 'rpm'):.0f} rpm and "
+                        f"mean oil temperature {from_si(t_mean, TEMPERATURE, _unit(units, TEMPERATURE)):.0f} "
+                        f"{_unit(units, TEMPERATURE)}; below them the required flow and each candidate's "
+                        "speed-pressure envelope", cell_format(book, "note", text_wrap=False))
+    # rows of the three blocks: curves, required flow, envelopes; then chart labels that hold input text
+    req_cols, req_labels, _ = _resample(cands[0]) if cands else ({}, [], "")
+    row_req = 3 + _CURVE_POINTS + 1
+    row_env = row_req + 2 + len(req_labels) + 1
+    env_block = 10
+    fmts = [cell_format(book, num_format=x) for x in ("#,##0", PCT, PCT, "#,##0.0")]
+    cs = _CurvesSheet(curves, pu, qu, book.styles["header"], group_fmt, fmts, row_env + env_block * len(cands) + 1)
+    eff, vol, flow, lowest = _efficiency_curves(book, cs, cands, duties, n_mean, nu_mean)
+    if cands:
+        _required_flow(cs, app, req_cols, row_req, flow)
+    _set_efficiency_charts(eff, vol, flow, lowest, pu, qu)
     charts.write_string(0, 0, "Charts: native spreadsheet charts, data on the sheet Curves and the duty sheets; "
                         "one colour and marker per candidate in every chart",
                         cell_format(book, "note", text_wrap=False))
-
     second = {"x_offset": _CHART_W + _CHART_GAP}
     charts.insert_chart(1, 0, eff)
     charts.insert_chart(1, 0, vol, second)
@@ -702,60 +891,8 @@ def _curves_and_charts(book: Any, comp: Comparison, units: str, duty_sheets: lis
                                      + [float(from_si(np.max(duty.speed), SPEED, su))]))
     y_max = _nice_ceiling(1.05 * max([float(from_si(c.datasheet.pressure_peak, PRESSURE, pu)) for c in cands]
                                      + [float(from_si(np.max(duty.pressure), PRESSURE, pu))]))
-    seg_fmt = cell_format(book, num_format="#,##0")
     for k, cand in enumerate(cands):
-        ds = cand.datasheet
-        env = book.add_chart({"type": "scatter", "subtype": "straight"})
-        lo, hi = float(from_si(ds.speed_min, SPEED, su)), float(from_si(ds.speed_max, SPEED, su))
-        bands = [("continuous", ds.pressure_continuous, 0.0, "solid")]
-        if ds.pressure_intermittent:
-            bands.append(("intermittent", ds.pressure_intermittent, ds.pressure_continuous, "dash"))
-        bands.append(("peak", ds.pressure_peak, ds.pressure_intermittent or ds.pressure_continuous, "round_dot"))
-        r0 = row_env + env_block * k
-        curves.merge_range(r0, 0, r0, 7, f"{ds.label}: speed-pressure envelope [{su}, {pu}]", group_fmt)
-        outlines: list[tuple[str, list[float], list[float], str]] = []
-        for label, top, bottom, dash in bands:
-            top_d, bot_d = float(from_si(top, PRESSURE, pu)), float(from_si(bottom, PRESSURE, pu))
-            outlines.append((f"{label} band", [lo, hi, hi, lo, lo], [bot_d, bot_d, top_d, top_d, bot_d], dash))
-        if ds.speed_min_high_pressure and ds.high_pressure_threshold is not None:
-            raised = float(from_si(ds.speed_min_high_pressure, SPEED, su))
-            thr = float(from_si(ds.high_pressure_threshold, PRESSURE, pu))
-            top = float(from_si(ds.pressure_peak, PRESSURE, pu))
-            outlines.append((f"min. {raised:.0f} {su}", [lo, raised, raised],
-                             [thr, thr, top], "dash_dot"))
-        lines = 1
-        for j, (label, xs, ys, dash) in enumerate(outlines):
-            cx = 2 * j
-            curves.write_string(r0 + 1, cx, f"{label}: speed", head_fmt)
-            curves.write_string(r0 + 1, cx + 1, "pressure", head_fmt)
-            lines = max(lines, text_lines(f"{label}: speed", 9))
-            curves.set_row(r0 + 1, LINE_HEIGHT * lines)
-            for i, (x, y) in enumerate(zip(xs, ys, strict=True)):
-                write_value(curves, r0 + 2 + i, cx, x, seg_fmt)
-                write_value(curves, r0 + 2 + i, cx + 1, y, seg_fmt)
-            env.add_series({"name": label, "categories": ["Curves", r0 + 2, cx, r0 + 1 + len(xs), cx],
-                            "values": ["Curves", r0 + 2, cx + 1, r0 + 1 + len(xs), cx + 1],
-                            "line": {"color": "#000000" if label.startswith("min.") else "#555555",
-                                     "width": 2, "dash_type": dash}, "marker": {"type": "none"}})
-        first, last = duty_sheets[k]._sheetpump_rows
-        sheet = duty_sheets[k].name
-        n_rows = last - first + 1
-        if n_rows <= len(PALETTE) and not duty_sheets[k]._sheetpump_binned:
-            # the duty's points coloured and shaped by segment, alike in every envelope chart (the bands are grey)
-            for i in range(n_rows):
-                env.add_series({"name": [sheet, first + i, 0], "categories": [sheet, first + i, 3, first + i, 3],
-                                "values": [sheet, first + i, 2, first + i, 2], **_points_style(i, 7)})
-        else:
-            env.add_series({"name": "duty points", "categories": [sheet, first, 3, last, 3],
-                            "values": [sheet, first, 2, last, 2], "marker": {"type": "circle", "size": 5},
-                            "line": {"none": True}})
-        env.set_title({"name": name_of(f"Speed-pressure envelope: {ds.label}"), "name_font": {"size": 12}})
-        env.set_x_axis({"name": f"speed [{su}]", "min": 0, "max": x_max})
-        env.set_y_axis({"name": f"pressure [{pu}]", "min": 0, "max": y_max})
-        # one plot area for every envelope chart, so the shared axes also have the same length on paper
-        env.set_legend({"position": "bottom", "layout": {"x": 0.05, "y": 0.75, "width": 0.9, "height": 0.24}})
-        env.set_plotarea({"layout": {"x": 0.14, "y": 0.14, "width": 0.8, "height": 0.5}})
-        env.set_size({"width": _CHART_W, "height": _CHART_H})
+        env = _envelope_chart(book, cs, cand.datasheet, duties[k], row_env + env_block * k, (x_max, y_max))
         band = 2 + k // 2
         charts.insert_chart(band * _BAND_ROWS + 1, 0, env, second if k % 2 else {})
     bands_used = 2 + (len(cands) + 1) // 2
@@ -763,7 +900,7 @@ def _curves_and_charts(book: Any, comp: Comparison, units: str, duty_sheets: lis
                breaks=[b * _BAND_ROWS for b in range(1, bands_used)])
     curves.freeze_panes(3, 0)
     page_setup(curves, app.name, paper=paper, title_rows=(1, 2),
-               area=(0, 0, max(label_row[0], row_env + env_block * len(cands)) - 1, max(4 * len(cands), 8) - 1))
+               area=(0, 0, max(cs.next_label, row_env + env_block * len(cands)) - 1, max(4 * len(cands), 8) - 1))
 
 
 #: Columns of the Findings sheet: header, width [characters] (None: from content), wrapped.
@@ -834,14 +971,11 @@ def _where_text(where: Where, base: str) -> str:
     return str(where)
 
 
-def _assumptions(book: Any, comp: Comparison, inputs: Sequence[str | os.PathLike[str]], paper: str,
-                 base: str) -> None:
-    f = book.styles
-    sheet = book.add_worksheet("Assumptions")
+def _assumption_rows(comp: Comparison) -> list[tuple[str, Any, str | None]]:
+    """The Assumptions sheet's settings: label, value, number format (a share shows as a percentage)."""
     app, oil = comp.application, comp.application.oil
     settings = comp.settings
-    # label, value, number format (settings entered as a share show as a percentage)
-    rows: list[tuple[str, Any, str | None]] = [
+    return [
         ("application", app.name, None),
         ("relief-valve setting [bar]", float(from_si(app.relief_setting, PRESSURE, "bar")), "#,##0.#"),
         ("overshoot allowed", app.overshoot, "0.#%"),
@@ -885,6 +1019,32 @@ def _assumptions(book: Any, comp: Comparison, inputs: Sequence[str | os.PathLike
         ("settings not given (defaults used)", ", ".join(app.defaulted) or "none", None),
         ("sheetpump version", __version__, None),
     ]
+
+
+def _motor_ratings(book: Any, sheet: Any, r: int, standard: str, label: Any) -> int:
+    """Write the standard motor ratings and their full-load efficiencies from row ``r`` on; returns the
+    last row written."""
+    series = drive.IEC_RATINGS_KW if standard == "IEC" else drive.NEMA_RATINGS_HP
+    unit = "kW" if standard == "IEC" else "hp"
+    sheet.write_string(r, 0, f"standard motor ratings [{unit}]", label)
+    sheet.write_string(r, 1, "full-load efficiency", label)
+    rating_fmt = cell_format(book, num_format="#,##0.###", align="left")
+    eff_fmt = cell_format(book, num_format=PCT, align="left")
+    for rating in series:
+        r += 1
+        write_value(sheet, r, 0, rating, rating_fmt)
+        watts = rating * (1000.0 if unit == "kW" else drive.HP)
+        write_value(sheet, r, 1, float(drive.motor_efficiency(watts, standard)), eff_fmt)
+    return r
+
+
+def _assumptions(book: Any, comp: Comparison, inputs: Sequence[str | os.PathLike[str]], paper: str,
+                 base: str) -> None:
+    """Write the Assumptions sheet: the caution, the settings, the input files and the motor ratings."""
+    f = book.styles
+    sheet = book.add_worksheet("Assumptions")
+    app = comp.application
+    rows = _assumption_rows(comp)
     label_w, value_w = 40, 70
     sheet.set_column(0, 0, label_w)
     sheet.set_column(1, 1, value_w)
@@ -907,18 +1067,7 @@ def _assumptions(book: Any, comp: Comparison, inputs: Sequence[str | os.PathLike
         r += 1
         write_value(sheet, r, 0, display_path(path, base), left)
         write_value(sheet, r, 1, sha256(path), left)
-    r += 2
-    series = drive.IEC_RATINGS_KW if app.motor_standard == "IEC" else drive.NEMA_RATINGS_HP
-    unit = "kW" if app.motor_standard == "IEC" else "hp"
-    sheet.write_string(r, 0, f"standard motor ratings [{unit}]", label)
-    sheet.write_string(r, 1, "full-load efficiency", label)
-    rating_fmt = cell_format(book, num_format="#,##0.###", align="left")
-    eff_fmt = cell_format(book, num_format=PCT, align="left")
-    for rating in series:
-        r += 1
-        write_value(sheet, r, 0, rating, rating_fmt)
-        watts = rating * (1000.0 if unit == "kW" else drive.HP)
-        write_value(sheet, r, 1, float(drive.motor_efficiency(watts, app.motor_standard)), eff_fmt)
+    r = _motor_ratings(book, sheet, r + 2, app.motor_standard, label)
     page_setup(sheet, app.name, paper=paper, landscape=False, area=(0, 0, r, 1))
 
 
@@ -957,15 +1106,14 @@ def write_comparison(target: str | os.PathLike[str], comp: Comparison,
     with open_book(target, title=f"Pump comparison: {comp.application.name}") as book:
         summary_placeholder = book.add_worksheet("Summary")
         names = [f"Duty {i + 1}" for i in range(len(comp.candidates))]
-        refs = [_duty_sheet(book, n, c, units, paper) for n, c in zip(names, comp.candidates, strict=True)]
-        duty_sheets = [book.get_worksheet_by_name(n) for n in names]
+        duties = [_duty_sheet(book, n, c, units, paper) for n, c in zip(names, comp.candidates, strict=True)]
         # XlsxWriter keeps sheet order of creation: fill the placeholder in place
         book.worksheets_objs.remove(summary_placeholder)
         del book.sheetnames["Summary"]
-        _summary(book, comp, units, refs, paper, base)
+        _summary(book, comp, units, [d.totals for d in duties], paper, base)
         summary = book.worksheets_objs.pop()
         book.worksheets_objs.insert(0, summary)
-        _curves_and_charts(book, comp, units, duty_sheets, paper)
+        _curves_and_charts(book, comp, units, duties, paper)
         _findings(book, comp, units, paper, base)
         _assumptions(book, comp, inputs, paper, base)
         for i, ws in enumerate(book.worksheets_objs):

@@ -27,6 +27,7 @@ from __future__ import annotations
 
 import math
 import os
+from dataclasses import dataclass
 from pathlib import Path
 from typing import Any
 
@@ -46,7 +47,6 @@ from ..units import (
     TEMPERATURE,
     TORQUE,
     VISCOSITY,
-    Kind,
     from_si,
 )
 from .writer import (
@@ -82,10 +82,6 @@ _CHARTS = (("ev", 1, "Volumetric efficiency η_v"), ("ehm", 2, "Hydro-mechanical
 # LibreOffice draws the cells the chart is anchored to ~1.2 x wider for want of the Calibri font
 _BAND_ROWS, _CHART_W, _CHART_H = 30, 794, 540
 _TITLE = "Measured performance evaluation"
-
-
-def _si_to(value: float | np.ndarray, kind: Kind, unit: str | None = None) -> Any:
-    return from_si(value, kind, unit)
 
 
 def _num(x: Any) -> float | None:
@@ -152,9 +148,9 @@ def shown_points(e: Evaluation, limit: int = POINTS_SHEET_LIMIT) -> tuple[np.nda
 
 def _group_label(e: Evaluation, k: int) -> str:
     g = e.groups[k]
-    label = f"{_si_to(g.speed, SPEED):.0f} rpm"
+    label = f"{from_si(g.speed, SPEED):.0f} rpm"
     if len({round(x.viscosity, 12) for x in e.groups}) > 1 or len(e.groups) == 1:
-        label += f", {_si_to(g.viscosity, VISCOSITY):.3g} mm²/s"
+        label += f", {from_si(g.viscosity, VISCOSITY):.3g} mm²/s"
     return label
 
 
@@ -175,13 +171,13 @@ def write_evaluation(e: Evaluation, target: str | os.PathLike[str], *, source: s
         points = book.add_worksheet(POINTS)
         charts = book.add_worksheet(CHARTS)
         curves = book.add_worksheet(CURVES)
-        v_cell = _write_summary(summary, e, f, source)
+        v_cell, summary_last = _write_summary(summary, e, f, source)
         rows, columns = _write_points(points, e, f, v_cell)
         curve_cols = _write_curves(curves, e, f)
         _write_charts(book, charts, e, f, rows, columns, curve_cols)
         # print: the header names the table, the footer the version and the caution
         name = f"Measured performance: {source}"
-        page_setup(summary, name, paper=paper, landscape=False, area=(0, 0, summary._sheetpump_last, 4))
+        page_setup(summary, name, paper=paper, landscape=False, area=(0, 0, summary_last, 4))
         page_setup(points, name, paper=paper, title_rows=(_HEADER_ROW, _HEADER_ROW), title_columns=(0, 0),
                    area=(0, 0, _HEADER_ROW + max(len(rows), 1), len(columns) - 1))
         bands = len(_CHARTS)
@@ -193,8 +189,147 @@ def write_evaluation(e: Evaluation, target: str | os.PathLike[str], *, source: s
 
 
 # -- Summary ---------------------------------------------------------------------------------------------
-def _write_summary(sheet: Any, e: Evaluation, f: _Formats, source: str | None) -> str:
-    """Write the Summary sheet; return the absolute reference of the displacement-used cell."""
+class _SummarySheet:
+    """The Summary sheet being written, line by line: its formats and the next free row."""
+
+    def __init__(self, sheet: Any, f: _Formats) -> None:
+        self.sheet, self.f, self.r = sheet, f, 3
+
+    def section(self, title: str, *heads: str) -> None:
+        """A section's header row, one row below the last line."""
+        self.r += 1
+        write_value(self.sheet, self.r, 0, title, self.f.section)
+        for i, h in enumerate(heads, start=1):
+            write_value(self.sheet, self.r, i, h, self.f.section)
+        for i in range(len(heads) + 1, 5):
+            write_value(self.sheet, self.r, i, None, self.f.section)
+        self.r += 1
+
+    def tall(self, row: int, label: str, note: str) -> None:
+        """Give a row the height its wrapped label (column A) and note (column E) need."""
+        lines = max(text_lines(label, 40), text_lines(note, 60 * 1.1))
+        if lines > 1:
+            self.sheet.set_row(row, LINE_HEIGHT * lines)
+
+    def line(self, label: str, value: Any, unit: str = "", fmt: Any = None, note: str = "") -> int:
+        """A line of label, value, unit and note; returns its row."""
+        sheet, r = self.sheet, self.r
+        write_value(sheet, r, 0, label, self.f.label)
+        write_value(sheet, r, 1, value, fmt)
+        write_value(sheet, r, 2, unit)
+        if note:
+            write_value(sheet, r, 4, note, self.f.note)
+        self.tall(r, label, note)
+        self.r += 1
+        return r
+
+
+def _summary_source(s: _SummarySheet, e: Evaluation, source: str | None) -> None:
+    """The Source section: the file, its sheet, how many points (and how many shown), how many flagged."""
+    f, t = s.f, e.table
+    s.section("Source", "value", "unit", "", "")
+    s.line("table file", source)
+    s.line("sheet", t.sheet if t.sheet else "(CSV file)")
+    s.line("points", t.size)
+    shown, step = shown_points(e)
+    if step > 1:
+        s.line("points on the Points sheet and in the charts", int(shown.size), "", None,
+               f"every {step}th point by speed, viscosity and rising pressure: a sheet holds at most 1,048,576 "
+               "rows and a chart of more points shows no more; every figure here covers every point, and "
+               "`sheetpump evaluate --format json` lists each one")
+    flagged = sum(1 for fl in e.points.flags if fl)
+    s.line("points with a plausibility flag", flagged, "", f.fail if flagged else f.ok)
+    s.line("written by", f"sheetpump {__version__}")
+
+
+def _summary_displacement(s: _SummarySheet, e: Evaluation) -> str:
+    """The Displacement section: nominal, derived and their difference, and the one used; returns the
+    absolute reference of the displacement-used cell."""
+    sheet, f = s.sheet, s.f
+    s.section("Displacement", "value", "unit", "std. uncertainty", "")
+    cm3 = "cm³/rev"
+    nominal_row = s.line("nominal displacement", _num(from_si(e.nominal_displacement, DISPLACEMENT))
+                         if e.nominal_displacement is not None else "not given", cm3, f.value[3])
+    if e.derived is not None:
+        derived_row = s.line("derived displacement (ISO 8426 idea)", from_si(e.derived.value, DISPLACEMENT), cm3,
+                             f.value[3], f"from {e.derived.points} points up to "
+                             f"{from_si(e.derived.max_pressure, PRESSURE):.4g} bar: slope of flow on speed, "
+                             "leakage extrapolated to zero pressure")
+        write_value(sheet, derived_row, 3, _num(from_si(e.derived.uncertainty, DISPLACEMENT)), f.value[4])
+    else:
+        derived_row = s.line("derived displacement (ISO 8426 idea)", "not derived", "", None, e.derived_error)
+    if e.derived is not None and e.nominal_displacement is not None:
+        r = s.r
+        write_value(sheet, r, 0, "derived less nominal, relative", f.label)
+        nom, der = xl_rowcol_to_cell(nominal_row, 1), xl_rowcol_to_cell(derived_row, 1)
+        # the values a spreadsheet computes from the cells as stored: a difference of two nearly equal
+        # displacements depends on the last digits kept
+        v_nom, v_der = (as_stored(from_si(x, DISPLACEMENT)) for x in (e.nominal_displacement, e.derived.value))
+        write_formula(sheet, r, 1, f"=({der}-{nom})/{nom}", (v_der - v_nom) / v_nom, f.pct)
+        if e.derived.uncertainty > 0:
+            unc = xl_rowcol_to_cell(derived_row, 3)
+            write_formula(sheet, r, 3, f"=ABS({der}-{nom})/{unc}",
+                          abs(v_der - v_nom) / as_stored(from_si(e.derived.uncertainty, DISPLACEMENT)), f.value[2])
+            write_value(sheet, r, 2, "× std. unc.")
+        flag = bool(e.table_flags)
+        write_value(sheet, r, 4, TABLE_FLAG_TEXT[e.table_flags[0]] if flag else
+                    "agree (within three standard uncertainties or 2 %)", f.fail if flag else f.ok)
+        s.r += 1
+    used_row = s.line("displacement the points are evaluated with", from_si(e.displacement, DISPLACEMENT), cm3,
+                      f.value[3], "nominal" if e.nominal_displacement is not None else "derived")
+    return f"'{SUMMARY}'!{xl_rowcol_to_cell(used_row, 1, True, True)}"
+
+
+def _summary_model(s: _SummarySheet, e: Evaluation) -> None:
+    """The Loss model section: method, coefficients with uncertainties, residuals, measured ranges."""
+    f = s.f
+    s.section("Loss model", "value", "unit", "std. uncertainty", "meaning")
+    m = e.model
+    if m is None:
+        s.line("method", "none", note=e.model_error)
+        return
+    s.line("method", "Wilson's model (least squares)" if m.method == "wilson"
+           else "measured efficiencies interpolated in pressure", note=f"{m.points} points")
+    for c in coefficients(m):
+        row = s.line(str(c["symbol"]), c["value"], str(c["unit"]), f.sci,
+                     str(c["meaning"]) + ("" if c["fitted"] else " — assumed, not fitted"))
+        write_value(s.sheet, row, 3, _num(c["uncertainty"]), f.sci)
+    res = getattr(m, "residuals", None)
+    if res is not None:
+        s.line("flow residual, RMS", from_si(res.flow_rms, FLOW), "L/min", f.value[4], "measured less model")
+        s.line("flow residual, largest", from_si(res.flow_max, FLOW), "L/min", f.value[4])
+        s.line("torque residual, RMS", from_si(res.torque_rms, TORQUE), "N·m", f.value[4])
+        s.line("torque residual, largest", from_si(res.torque_max, TORQUE), "N·m", f.value[4])
+    rg = m.ranges
+    for label, (lo, hi), kind, unit in (("pressure", rg.pressure, PRESSURE, "bar"),
+                                        ("speed", rg.speed, SPEED, "rpm"),
+                                        ("dynamic viscosity", rg.viscosity, DYN_VISCOSITY, "mPa·s")):
+        s.line(f"measured {label}, lowest", from_si(lo, kind), unit, f.value[2])
+        s.line(f"measured {label}, highest", from_si(hi, kind), unit, f.value[2],
+               "the model's predictions outside these ranges are extrapolated" if label == "pressure" else "")
+
+
+def _summary_flags(s: _SummarySheet, e: Evaluation) -> None:
+    """The Plausibility flags section: how many points each flag fired on, and the table's own flags."""
+    f = s.f
+    s.section("Plausibility flags", "points", "", "", "meaning")
+    counts: dict[str, int] = {}
+    for fl in e.points.flags:
+        for code in fl:
+            counts[code] = counts.get(code, 0) + 1
+    for code, text in FLAG_TEXT.items():
+        row = s.line(code, counts.get(code, 0), "", f.fail if counts.get(code) else f.ok)
+        write_value(s.sheet, row, 4, text, f.note)
+        s.tall(row, code, text)
+    for code, text in TABLE_FLAG_TEXT.items():
+        row = s.line(code, 1 if code in e.table_flags else 0, "", f.fail if code in e.table_flags else f.ok)
+        write_value(s.sheet, row, 4, text, f.note)
+        s.tall(row, code, text)
+
+
+def _write_summary(sheet: Any, e: Evaluation, f: _Formats, source: str | None) -> tuple[str, int]:
+    """Write the Summary sheet; return the absolute reference of the displacement-used cell and the last
+    row written."""
     sheet.set_column(0, 0, 40)
     sheet.set_column(1, 1, 16)
     sheet.set_column(2, 2, 12)
@@ -203,139 +338,26 @@ def _write_summary(sheet: Any, e: Evaluation, f: _Formats, source: str | None) -
     write_value(sheet, 0, 0, _TITLE, f.title)
     sheet.merge_range(1, 0, 1, 4, SAFETY_CAUTION, f.caution)
     sheet.set_row(1, LINE_HEIGHT * text_lines(SAFETY_CAUTION, (40 + 16 + 12 + 16 + 60) * 0.85))
-    r = 3
-
-    def section(title: str, *heads: str) -> None:
-        nonlocal r
-        r += 1
-        write_value(sheet, r, 0, title, f.section)
-        for i, h in enumerate(heads, start=1):
-            write_value(sheet, r, i, h, f.section)
-        for i in range(len(heads) + 1, 5):
-            write_value(sheet, r, i, None, f.section)
-        r += 1
-
-    def tall(row: int, label: str, note: str) -> None:
-        """Give a row the height its wrapped label (column A) and note (column E) need."""
-        lines = max(text_lines(label, 40), text_lines(note, 60 * 1.1))
-        if lines > 1:
-            sheet.set_row(row, LINE_HEIGHT * lines)
-
-    def line(label: str, value: Any, unit: str = "", fmt: Any = None, note: str = "") -> int:
-        nonlocal r
-        write_value(sheet, r, 0, label, f.label)
-        write_value(sheet, r, 1, value, fmt)
-        write_value(sheet, r, 2, unit)
-        if note:
-            write_value(sheet, r, 4, note, f.note)
-        tall(r, label, note)
-        r += 1
-        return r - 1
-
-    t = e.table
-    section("Source", "value", "unit", "", "")
-    line("table file", source)
-    line("sheet", t.sheet if t.sheet else "(CSV file)")
-    line("points", t.size)
-    shown, step = shown_points(e)
-    if step > 1:
-        line("points on the Points sheet and in the charts", int(shown.size), "", None,
-             f"every {step}th point by speed, viscosity and rising pressure: a sheet holds at most 1,048,576 "
-             "rows and a chart of more points shows no more; every figure here covers every point, and "
-             "`sheetpump evaluate --format json` lists each one")
-    flagged = sum(1 for fl in e.points.flags if fl)
-    line("points with a plausibility flag", flagged, "", f.fail if flagged else f.ok)
-    line("written by", f"sheetpump {__version__}")
-
-    section("Displacement", "value", "unit", "std. uncertainty", "")
-    cm3 = "cm³/rev"
-    nominal_row = line("nominal displacement", _num(_si_to(e.nominal_displacement, DISPLACEMENT))
-                       if e.nominal_displacement is not None else "not given", cm3, f.value[3])
-    if e.derived is not None:
-        derived_row = line("derived displacement (ISO 8426 idea)", _si_to(e.derived.value, DISPLACEMENT), cm3,
-                           f.value[3], f"from {e.derived.points} points up to "
-                           f"{_si_to(e.derived.max_pressure, PRESSURE):.4g} bar: slope of flow on speed, "
-                           "leakage extrapolated to zero pressure")
-        write_value(sheet, derived_row, 3, _num(_si_to(e.derived.uncertainty, DISPLACEMENT)), f.value[4])
-    else:
-        derived_row = line("derived displacement (ISO 8426 idea)", "not derived", "", None, e.derived_error)
-    if e.derived is not None and e.nominal_displacement is not None:
-        write_value(sheet, r, 0, "derived less nominal, relative", f.label)
-        nom, der = xl_rowcol_to_cell(nominal_row, 1), xl_rowcol_to_cell(derived_row, 1)
-        # the values a spreadsheet computes from the cells as stored: a difference of two nearly equal
-        # displacements depends on the last digits kept
-        v_nom, v_der = (as_stored(_si_to(x, DISPLACEMENT)) for x in (e.nominal_displacement, e.derived.value))
-        write_formula(sheet, r, 1, f"=({der}-{nom})/{nom}", (v_der - v_nom) / v_nom, f.pct)
-        if e.derived.uncertainty > 0:
-            unc = xl_rowcol_to_cell(derived_row, 3)
-            write_formula(sheet, r, 3, f"=ABS({der}-{nom})/{unc}",
-                          abs(v_der - v_nom) / as_stored(_si_to(e.derived.uncertainty, DISPLACEMENT)), f.value[2])
-            write_value(sheet, r, 2, "× std. unc.")
-        flag = bool(e.table_flags)
-        write_value(sheet, r, 4, TABLE_FLAG_TEXT[e.table_flags[0]] if flag else
-                    "agree (within three standard uncertainties or 2 %)", f.fail if flag else f.ok)
-        r += 1
-    used_row = line("displacement the points are evaluated with", _si_to(e.displacement, DISPLACEMENT), cm3,
-                    f.value[3], "nominal" if e.nominal_displacement is not None else "derived")
-    v_cell = f"'{SUMMARY}'!{xl_rowcol_to_cell(used_row, 1, True, True)}"
-
-    section("Loss model", "value", "unit", "std. uncertainty", "meaning")
-    m = e.model
-    if m is None:
-        line("method", "none", note=e.model_error)
-    else:
-        line("method", "Wilson's model (least squares)" if m.method == "wilson"
-             else "measured efficiencies interpolated in pressure", note=f"{m.points} points")
-        for c in coefficients(m):
-            row = line(str(c["symbol"]), c["value"], str(c["unit"]), f.sci,
-                       str(c["meaning"]) + ("" if c["fitted"] else " — assumed, not fitted"))
-            write_value(sheet, row, 3, _num(c["uncertainty"]), f.sci)
-        res = getattr(m, "residuals", None)
-        if res is not None:
-            line("flow residual, RMS", _si_to(res.flow_rms, FLOW), "L/min", f.value[4], "measured less model")
-            line("flow residual, largest", _si_to(res.flow_max, FLOW), "L/min", f.value[4])
-            line("torque residual, RMS", _si_to(res.torque_rms, TORQUE), "N·m", f.value[4])
-            line("torque residual, largest", _si_to(res.torque_max, TORQUE), "N·m", f.value[4])
-        rg = m.ranges
-        for label, (lo, hi), kind, unit in (("pressure", rg.pressure, PRESSURE, "bar"),
-                                            ("speed", rg.speed, SPEED, "rpm"),
-                                            ("dynamic viscosity", rg.viscosity, DYN_VISCOSITY, "mPa·s")):
-            line(f"measured {label}, lowest", _si_to(lo, kind), unit, f.value[2])
-            line(f"measured {label}, highest", _si_to(hi, kind), unit, f.value[2],
-                 "the model's predictions outside these ranges are extrapolated" if label == "pressure" else "")
-
-    section("Notes", "", "", "", "")
+    s = _SummarySheet(sheet, f)
+    _summary_source(s, e, source)
+    v_cell = _summary_displacement(s, e)
+    _summary_model(s, e)
+    s.section("Notes", "", "", "", "")
     for note in all_notes(e):
-        sheet.merge_range(r, 0, r, 4, note, f.note)
-        sheet.set_row(r, LINE_HEIGHT * text_lines(note, (40 + 16 + 12 + 16 + 60) * 0.95))
-        r += 1
-
-    section("Plausibility flags", "points", "", "", "meaning")
-    counts: dict[str, int] = {}
-    for fl in e.points.flags:
-        for code in fl:
-            counts[code] = counts.get(code, 0) + 1
-    for code, text in FLAG_TEXT.items():
-        row = line(code, counts.get(code, 0), "", f.fail if counts.get(code) else f.ok)
-        write_value(sheet, row, 4, text, f.note)
-        tall(row, code, text)
-    for code, text in TABLE_FLAG_TEXT.items():
-        row = line(code, 1 if code in e.table_flags else 0, "", f.fail if code in e.table_flags else f.ok)
-        write_value(sheet, row, 4, text, f.note)
-        tall(row, code, text)
-    r += 1
+        sheet.merge_range(s.r, 0, s.r, 4, note, f.note)
+        sheet.set_row(s.r, LINE_HEIGHT * text_lines(note, (40 + 16 + 12 + 16 + 60) * 0.95))
+        s.r += 1
+    _summary_flags(s, e)
+    r = s.r + 1
     sheet.merge_range(r, 0, r, 4, "Exit code of `sheetpump evaluate`: 0 no flag, 1 a plausibility flag fired, "
                       "2 bad input.", f.note)
     sheet.freeze_panes(2, 0)
-    sheet._sheetpump_last = r
-    return v_cell
+    return v_cell, r
 
 
 # -- Points ----------------------------------------------------------------------------------------------
-def _write_points(sheet: Any, e: Evaluation, f: _Formats, v_cell: str
-                  ) -> tuple[np.ndarray, dict[str, int]]:
-    """Write the Points sheet; return the sheet row of each point (-1: not shown) and the column of each key."""
-    t, pe = e.table, e.points
+def _points_columns(t: Any) -> list[tuple[str, str, int]]:
+    """The Points sheet's columns for table ``t``: key, header, width [characters]."""
     power_measured = t.torque is None
     cols: list[tuple[str, str, int]] = [  # key, header, width
         ("row", "row in the file", 8),
@@ -364,6 +386,91 @@ def _write_points(sheet: Any, e: Evaluation, f: _Formats, v_cell: str
         ("m_et", "model η_t [-]", 10),
         ("extrap", "model outside the measured ranges", 26),
     ]
+    return cols
+
+
+@dataclass(frozen=True)
+class _PointsSheet:
+    """What every row of the Points sheet is written with: the sheet, its formats, the column of each key,
+    the displacement cell, and the table's values in the sheet's units."""
+
+    sheet: Any
+    f: _Formats
+    col: dict[str, int]
+    v_cell: str
+    shown: dict[str, np.ndarray]  # speed, pressure, flow, torque, power, viscosity, mu [display units]
+
+    def cell(self, key: str, r: int) -> str:
+        return xl_rowcol_to_cell(r, self.col[key])
+
+
+def _measured_cells(ps: _PointsSheet, e: Evaluation, r: int, i: int, ok: bool) -> None:
+    """The measured cells of point ``i`` at row ``r``, and torque from power or power from torque."""
+    sheet, f, col, cell = ps.sheet, ps.f, ps.col, ps.cell
+    t = e.table
+    write_value(sheet, r, col["row"], int(t.rows[i]) if t.rows.size else i + 1)
+    write_value(sheet, r, col["speed"], _num(ps.shown["speed"][i]), f.input[1])
+    write_value(sheet, r, col["pressure"], _num(ps.shown["pressure"][i]), f.input[2])
+    write_value(sheet, r, col["flow"], _num(ps.shown["flow"][i]), f.input[3])
+    n_c, t_c, w_c = cell("speed", r), cell("torque", r), cell("power", r)
+    if t.torque is not None:
+        write_value(sheet, r, col["torque"], _num(from_si(t.torque[i], TORQUE)), f.input[3])
+        if ok:  # P [kW] = 2π·n [rpm]·T [N·m]/60000
+            write_formula(sheet, r, col["power"], f"=2*PI()*{n_c}*{t_c}/60000", float(ps.shown["power"][i]),
+                          f.value[4])
+    else:
+        write_value(sheet, r, col["power"], _num(from_si(t.input_power[i], POWER)), f.input[4])
+        if ok:
+            write_formula(sheet, r, col["torque"], f"={w_c}*60000/(2*PI()*{n_c})", float(ps.shown["torque"][i]),
+                          f.value[3])
+    from_temperature = t.viscosity is None and t.temperature is not None
+    write_value(sheet, r, col["viscosity"], _num(ps.shown["viscosity"][i]),
+                f.value[3] if from_temperature else f.input[3])
+    if t.temperature is not None:
+        write_value(sheet, r, col["temperature"], _num(from_si(t.temperature[i], TEMPERATURE)), f.input[1])
+    write_value(sheet, r, col["density"], _num(e.density[i]), f.value[1])
+
+
+def _point_row(ps: _PointsSheet, e: Evaluation, r: int, i: int) -> None:
+    """Write point ``i`` at row ``r``: measured cells, the live formulas of the efficiencies and powers
+    (with their values), its flags and the model's efficiencies."""
+    sheet, f, col, cell, v_cell = ps.sheet, ps.f, ps.col, ps.cell, ps.v_cell
+    pe = e.points
+    ok = bool(np.isfinite(pe.volumetric[i]))  # evaluated (neither missing nor impossible)
+    _measured_cells(ps, e, r, i, ok)
+    n_c, p_c, q_c = cell("speed", r), cell("pressure", r), cell("flow", r)
+    t_c, w_c = cell("torque", r), cell("power", r)
+    mu = ps.shown["mu"]
+    if np.isfinite(mu[i]):  # μ [mPa·s] = ν [mm²/s]·ρ [kg/m³]/1000
+        write_formula(sheet, r, col["mu"], f"={cell('viscosity', r)}*{cell('density', r)}/1000",
+                      float(mu[i]), f.value[3])
+    if ok:
+        qth = float(from_si(pe.geometric_flow[i], FLOW))
+        phyd = float(from_si(pe.hydraulic_power[i], POWER))
+        write_formula(sheet, r, col["qth"], f"={v_cell}*{n_c}/1000", qth, f.value[3])  # L/min = cm³·rpm/1000
+        write_formula(sheet, r, col["ev"], f"={q_c}/{cell('qth', r)}", float(pe.volumetric[i]), f.eff)
+        # η_hm = V·Δp/(2π·T) = V [cm³]·Δp [bar]/(20π·T [N·m])
+        write_formula(sheet, r, col["ehm"], f"={v_cell}*{p_c}/(20*PI()*{t_c})", float(pe.hydromechanical[i]),
+                      f.eff)
+        write_formula(sheet, r, col["phyd"], f"={p_c}*{q_c}/600", phyd, f.value[4])  # kW = bar·L/min/600
+        write_formula(sheet, r, col["et"], f"={cell('phyd', r)}/{w_c}", float(pe.total[i]), f.eff)
+        write_formula(sheet, r, col["loss"], f"={w_c}-{cell('phyd', r)}", float(from_si(pe.power_loss[i], POWER)),
+                      f.value[4])
+    flags = pe.flags[i]
+    write_value(sheet, r, col["flags"], "; ".join(flags) if flags else "ok", f.fail if flags else f.ok)
+    pr = e.prediction
+    if pr is not None and ok:
+        write_value(sheet, r, col["m_ev"], _num(pr.volumetric[i]), f.eff)
+        write_value(sheet, r, col["m_ehm"], _num(pr.hydromechanical[i]), f.eff)
+        write_value(sheet, r, col["m_et"], _num(pr.total[i]), f.eff)
+        write_value(sheet, r, col["extrap"], str(pr.extrapolation[i]) or "no")
+
+
+def _write_points(sheet: Any, e: Evaluation, f: _Formats, v_cell: str
+                  ) -> tuple[np.ndarray, dict[str, int]]:
+    """Write the Points sheet; return the sheet row of each point (-1: not shown) and the column of each key."""
+    t, pe = e.table, e.points
+    cols = _points_columns(t)
     col = {key: i for i, (key, _, _) in enumerate(cols)}
     write_value(sheet, 0, 0, f"{_TITLE}: points", f.title)
     write_value(sheet, 1, 0, "Shaded: measured. Formulas use the displacement on the Summary sheet "
@@ -375,66 +482,16 @@ def _write_points(sheet: Any, e: Evaluation, f: _Formats, v_cell: str
         write_value(sheet, 2, 0, f"The table has {t.size:,} points; this sheet shows {shown.size:,} of them, every "
                     f"{step}th in this order, and the charts draw these. Summary's figures and flag counts "
                     "cover every point; `sheetpump evaluate --format json` lists each one.", f.note_line)
-
-    def cell(key: str, r: int) -> str:
-        return xl_rowcol_to_cell(r, col[key])
-
-    n_rpm = _si_to(t.speed, SPEED)
-    p_bar = _si_to(t.pressure, PRESSURE)
-    q_lpm = _si_to(t.flow, FLOW)
-    torque = _si_to(pe.torque, TORQUE)
-    p_in = _si_to(pe.input_power, POWER)
-    measured_torque = t.torque if t.torque is not None else None
-    measured_power = t.input_power if t.torque is None else None
-    nu = _si_to(e.viscosity, VISCOSITY)
-    mu = _si_to(e.dynamic_viscosity, DYN_VISCOSITY)
+    values = {"speed": from_si(t.speed, SPEED), "pressure": from_si(t.pressure, PRESSURE),
+              "flow": from_si(t.flow, FLOW), "torque": from_si(pe.torque, TORQUE),
+              "power": from_si(pe.input_power, POWER), "viscosity": from_si(e.viscosity, VISCOSITY),
+              "mu": from_si(e.dynamic_viscosity, DYN_VISCOSITY)}
+    ps = _PointsSheet(sheet, f, col, v_cell, values)
     rows = np.full(t.size, -1)
     for k, i in enumerate(shown.tolist()):
         r = _HEADER_ROW + 1 + k
         rows[i] = r
-        ok = bool(np.isfinite(pe.volumetric[i]))  # evaluated (neither missing nor impossible)
-        write_value(sheet, r, col["row"], int(t.rows[i]) if t.rows.size else i + 1)
-        write_value(sheet, r, col["speed"], _num(n_rpm[i]), f.input[1])
-        write_value(sheet, r, col["pressure"], _num(p_bar[i]), f.input[2])
-        write_value(sheet, r, col["flow"], _num(q_lpm[i]), f.input[3])
-        n_c, p_c, q_c = cell("speed", r), cell("pressure", r), cell("flow", r)
-        t_c, w_c = cell("torque", r), cell("power", r)
-        if measured_torque is not None:
-            write_value(sheet, r, col["torque"], _num(_si_to(measured_torque[i], TORQUE)), f.input[3])
-            if ok:  # P [kW] = 2π·n [rpm]·T [N·m]/60000
-                write_formula(sheet, r, col["power"], f"=2*PI()*{n_c}*{t_c}/60000", float(p_in[i]), f.value[4])
-        else:
-            write_value(sheet, r, col["power"], _num(_si_to(measured_power[i], POWER)), f.input[4])
-            if ok:
-                write_formula(sheet, r, col["torque"], f"={w_c}*60000/(2*PI()*{n_c})", float(torque[i]), f.value[3])
-        from_temperature = t.viscosity is None and t.temperature is not None
-        write_value(sheet, r, col["viscosity"], _num(nu[i]), f.value[3] if from_temperature else f.input[3])
-        if t.temperature is not None:
-            write_value(sheet, r, col["temperature"], _num(_si_to(t.temperature[i], TEMPERATURE)), f.input[1])
-        write_value(sheet, r, col["density"], _num(e.density[i]), f.value[1])
-        if np.isfinite(mu[i]):  # μ [mPa·s] = ν [mm²/s]·ρ [kg/m³]/1000
-            write_formula(sheet, r, col["mu"], f"={cell('viscosity', r)}*{cell('density', r)}/1000",
-                          float(mu[i]), f.value[3])
-        if ok:
-            qth = float(_si_to(pe.geometric_flow[i], FLOW))
-            phyd = float(_si_to(pe.hydraulic_power[i], POWER))
-            write_formula(sheet, r, col["qth"], f"={v_cell}*{n_c}/1000", qth, f.value[3])  # L/min = cm³·rpm/1000
-            write_formula(sheet, r, col["ev"], f"={q_c}/{cell('qth', r)}", float(pe.volumetric[i]), f.eff)
-            # η_hm = V·Δp/(2π·T) = V [cm³]·Δp [bar]/(20π·T [N·m])
-            write_formula(sheet, r, col["ehm"], f"={v_cell}*{p_c}/(20*PI()*{t_c})", float(pe.hydromechanical[i]),
-                          f.eff)
-            write_formula(sheet, r, col["phyd"], f"={p_c}*{q_c}/600", phyd, f.value[4])  # kW = bar·L/min/600
-            write_formula(sheet, r, col["et"], f"={cell('phyd', r)}/{w_c}", float(pe.total[i]), f.eff)
-            write_formula(sheet, r, col["loss"], f"={w_c}-{cell('phyd', r)}", float(_si_to(pe.power_loss[i], POWER)),
-                          f.value[4])
-        flags = pe.flags[i]
-        write_value(sheet, r, col["flags"], "; ".join(flags) if flags else "ok", f.fail if flags else f.ok)
-        pr = e.prediction
-        if pr is not None and ok:
-            write_value(sheet, r, col["m_ev"], _num(pr.volumetric[i]), f.eff)
-            write_value(sheet, r, col["m_ehm"], _num(pr.hydromechanical[i]), f.eff)
-            write_value(sheet, r, col["m_et"], _num(pr.total[i]), f.eff)
-            write_value(sheet, r, col["extrap"], str(pr.extrapolation[i]) or "no")
+        _point_row(ps, e, r, i)
     sheet.freeze_panes(_HEADER_ROW + 1, 1)
     last = _HEADER_ROW + max(shown.size, 1)
     sheet.autofilter(_HEADER_ROW, 0, last, len(cols) - 1)
@@ -455,7 +512,7 @@ def _write_curves(sheet: Any, e: Evaluation, f: _Formats) -> list[int]:
             write_value(sheet, 2, c + j, h, f.header)
             sheet.set_column(c + j, c + j, 11)
         for i, p in enumerate(pressure):
-            write_value(sheet, 3 + i, c, float(_si_to(p, PRESSURE)), f.value[2])
+            write_value(sheet, 3 + i, c, float(from_si(p, PRESSURE)), f.value[2])
             for j, arr in enumerate((pred.volumetric, pred.hydromechanical, pred.total), start=1):
                 write_value(sheet, 3 + i, c + j, _num(np.ravel(arr)[i]), f.eff)
     if not e.curves:

@@ -20,7 +20,7 @@ from __future__ import annotations
 import difflib
 import os
 from collections.abc import Mapping, Sequence
-from dataclasses import replace
+from dataclasses import dataclass, replace
 from pathlib import Path
 from typing import Any
 
@@ -165,21 +165,25 @@ def _header(book: Book, sheet: Any) -> tuple[int, int, int]:
                      "keep the template's header row (start from `sheetpump template series`)")
 
 
-def read_size_series(path: str | os.PathLike[str]) -> SizeSeries:
-    """Read a series workbook: one :class:`~sheetpump.datasheet.Datasheet` per size (SI units).
+@dataclass(frozen=True)
+class _Layout:
+    """Where a Series sheet keeps its values: the row of each field, the unit column, the size columns
+    (1-based)."""
 
-    Raises
-    ------
-    InputError
-        Naming the file, sheet, cell and field: an unknown or repeated field, no size column, a value
-        missing in one size column, a repeated model name, and every bad value a datasheet refuses.
-    """
-    book = Book(path)
-    sheet = book.sheet(SERIES_SHEET)
-    header, key_col, unit_col = _header(book, sheet)
-    fields = {f.key: f for f in SERIES_FIELDS}
-    first_size = max(key_col, unit_col) + 1
-    last_col = min(sheet.max_column, _MAX_COLUMNS)
+    sheet: Any
+    rows: dict[str, int]
+    unit_col: int
+    first_size: int
+    last_col: int
+
+    def cell(self, key: str, c: int) -> str:
+        return f"{column_letter(c - 1)}{self.rows[key]}"
+
+
+def _field_rows(book: Book, sheet: Any, header: int, key_col: int, first_size: int, last_col: int,
+                fields: dict[str, Any]) -> dict[str, int]:
+    """The row of each field named below the header; an unknown field with values, a repeated field or
+    no model row is refused."""
     rows: dict[str, int] = {}
     for r, line in enumerate(sheet.iter_rows(min_row=header + 1, max_row=min(sheet.max_row, header + _MAX_ROWS),
                                              max_col=max(last_col, first_size), values_only=True), header + 1):
@@ -202,19 +206,31 @@ def read_size_series(path: str | os.PathLike[str]) -> SizeSeries:
     if "model" not in rows:
         raise InputError("no 'model' row: each size column needs its model", Where(book.file, sheet.title),
                          "keep the template's model row")
+    return rows
+
+
+def _raw_values(book: Book, lay: _Layout) -> tuple[dict[str, dict[int, Any]], list[int]]:
+    """Each field's cell values by size column, and the size columns that hold any value."""
     raw: dict[str, dict[int, Any]] = {}
-    for key, r in rows.items():
+    for key, r in lay.rows.items():
         raw[key] = {}
-        for c in range(first_size, last_col + 1):
-            value = book.value(sheet, f"{column_letter(c - 1)}{r}", key)
+        for c in range(lay.first_size, lay.last_col + 1):
+            value = book.value(lay.sheet, f"{column_letter(c - 1)}{r}", key)
             if value is not None:
                 raw[key][c] = value
     columns = sorted({c for cells in raw.values() for c in cells})
     if not columns:
         raise InputError("no size columns: the series has no values",
-                         book.where(sheet, f"{column_letter(first_size - 1)}{rows['model']}", "model"),
+                         book.where(lay.sheet, f"{column_letter(lay.first_size - 1)}{lay.rows['model']}", "model"),
                          "give one size per column from column C, the model row naming it")
-    cell = lambda key, c: f"{column_letter(c - 1)}{rows[key]}"  # noqa: E731
+    return raw, columns
+
+
+def _converted(book: Book, lay: _Layout, fields: dict[str, Any], raw: dict[str, dict[int, Any]], columns: list[int]
+               ) -> tuple[dict[int, dict[str, Any]], dict[int, dict[str, Where]]]:
+    """Every size's values in SI, and where each came from; a value given in the first size column only
+    holds for the whole series."""
+    sheet, rows, cell = lay.sheet, lay.rows, lay.cell
     got: dict[int, dict[str, Any]] = {c: {} for c in columns}
     origin: dict[int, dict[str, Where]] = {c: {} for c in columns}
     for key, f in fields.items():
@@ -238,22 +254,21 @@ def read_size_series(path: str | os.PathLike[str]) -> SizeSeries:
                     Where(book.file, sheet.title, None, key)
                 continue
             where = book.where(sheet, cell(key, at), key)
-            unit = book.value(sheet, f"{column_letter(unit_col - 1)}{rows[key]}", key, value_cell=False)
-            unit_where = book.where(sheet, f"{column_letter(unit_col - 1)}{rows[key]}", key)
+            unit = book.value(sheet, f"{column_letter(lay.unit_col - 1)}{rows[key]}", key, value_cell=False)
+            unit_where = book.where(sheet, f"{column_letter(lay.unit_col - 1)}{rows[key]}", key)
             if c == at or not shared:
                 got[c][key] = convert(f, cells[at], unit, where, unit_where)
             else:
                 got[c][key] = got[columns[0]][key]
             origin[c][key] = where
-    seen: dict[str, int] = {}
-    for c in columns:
-        model = got[c]["model"]
-        if model in seen:
-            raise InputError(f"model {model!r} names two sizes (also column {column_letter(seen[model] - 1)})",
-                             book.where(sheet, cell("model", c), "model"), "give each size its own model name")
-        seen[model] = c
-    for c in columns:
-        check_datasheet_fields(got[c], lambda key, c=c: origin[c][key])
+    return got, origin
+
+
+def _datasheets(book: Book, fields: dict[str, Any], got: dict[int, dict[str, Any]],
+                origin: dict[int, dict[str, Where]], columns: list[int]
+                ) -> tuple[list[Datasheet], dict[str, tuple[str, float]], list[str]]:
+    """One datasheet per size column, with its performance table (or its frame's, scaled); the sizes whose
+    table was scaled, and the notes saying so."""
     tables = _tables(book, {got[c]["model"]: got[c] for c in columns})
     scaled: dict[str, tuple[str, float]] = {}
     notes: list[str] = []
@@ -274,6 +289,38 @@ def read_size_series(path: str | os.PathLike[str]) -> SizeSeries:
         sources = {fields[k].name: w for k, w in origin[c].items() if values.get(k) is not None}
         kept = {k: v for k, v in values.items() if k not in ("series", "frame")}
         sizes.append(datasheet_from_fields(kept, sources, table, book.file))
+    return sizes, scaled, notes
+
+
+def read_size_series(path: str | os.PathLike[str]) -> SizeSeries:
+    """Read a series workbook: one :class:`~sheetpump.datasheet.Datasheet` per size (SI units).
+
+    Raises
+    ------
+    InputError
+        Naming the file, sheet, cell and field: an unknown or repeated field, no size column, a value
+        missing in one size column, a repeated model name, and every bad value a datasheet refuses.
+    """
+    book = Book(path)
+    sheet = book.sheet(SERIES_SHEET)
+    header, key_col, unit_col = _header(book, sheet)
+    fields = {f.key: f for f in SERIES_FIELDS}
+    first_size = max(key_col, unit_col) + 1
+    last_col = min(sheet.max_column, _MAX_COLUMNS)
+    rows = _field_rows(book, sheet, header, key_col, first_size, last_col, fields)
+    lay = _Layout(sheet, rows, unit_col, first_size, last_col)
+    raw, columns = _raw_values(book, lay)
+    got, origin = _converted(book, lay, fields, raw, columns)
+    seen: dict[str, int] = {}
+    for c in columns:
+        model = got[c]["model"]
+        if model in seen:
+            raise InputError(f"model {model!r} names two sizes (also column {column_letter(seen[model] - 1)})",
+                             book.where(sheet, lay.cell("model", c), "model"), "give each size its own model name")
+        seen[model] = c
+    for c in columns:
+        check_datasheet_fields(got[c], lambda key, c=c: origin[c][key])
+    sizes, scaled, notes = _datasheets(book, fields, got, origin, columns)
     first = got[columns[0]]
     name = " ".join(x for x in (first["supplier"], first.get("series") or "") if x) or Path(book.file).stem
     return SizeSeries(name, tuple(sizes), book.file, scaled, tuple(notes))

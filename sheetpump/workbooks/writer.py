@@ -19,6 +19,7 @@ import datetime as _dt
 import math
 import os
 import textwrap
+import weakref
 from collections.abc import Iterable, Iterator, Sequence
 from contextlib import contextmanager
 from pathlib import Path
@@ -99,6 +100,10 @@ def number_format(values: Iterable[Any], digits: int = 3, most: int = 4) -> str:
     return "#,##0" + ("." + "0" * decimals if decimals else "")
 
 
+#: The formats :func:`cell_format` made, per open workbook (kept here, not on XlsxWriter's object).
+_FORMATS: weakref.WeakKeyDictionary[Any, dict[tuple[tuple[str, str], ...], Any]] = weakref.WeakKeyDictionary()
+
+
 def cell_format(book: Any, *styles: str | None, num_format: str | None = None, **extra: Any) -> Any:
     """The workbook's format of :data:`STYLES` names plus a number format and extras, made once per book."""
     spec: dict[str, Any] = {}
@@ -109,7 +114,7 @@ def cell_format(book: Any, *styles: str | None, num_format: str | None = None, *
         spec["num_format"] = num_format
     spec.update(extra)
     spec.setdefault("valign", "top")  # figures beside a wrapped text stand on its first line
-    cache = book.__dict__.setdefault("_sheetpump_formats", {})
+    cache = _FORMATS.setdefault(book, {})
     key = tuple(sorted((k, str(v)) for k, v in spec.items()))
     if key not in cache:
         cache[key] = book.add_format(spec)
