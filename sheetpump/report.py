@@ -26,7 +26,7 @@ from .checks import DISPLAY_UNITS, FAIL, INFO, NOT_CHECKED, PASS, WARN, CheckRes
 from .comparison import Candidate, Comparison
 from .errors import InputError, Where
 from .files import atomic_path, check_outputs, same_file
-from .units import FLOW, POWER, TORQUE, VISCOSITY, Kind, from_si
+from .units import FLOW, POWER, TORQUE, VISCOSITY, Kind, from_si, pretty_unit
 
 __all__ = ["FILLS", "FINDINGS_SHEET", "annotate", "json_report", "junit_caution", "junit_report", "text_report"]
 
@@ -44,10 +44,6 @@ _FORMULA_STARTS = ("=", "+", "-", "@")
 
 # --------------------------------------------------------------------------------------------------
 # Shared formatting
-
-
-def _pretty(unit: str) -> str:
-    return unit.replace("degC", "°C").replace("degF", "°F").replace("^2", "²").replace("*", "·")
 
 
 def _shown(value: float | str | None, kind: Kind | None, unit: str) -> float | str | None:
@@ -71,7 +67,7 @@ def _value_text(value: float | str | None, kind: Kind | None, unit: str) -> str:
     if kind is not None and kind.name == "efficiency" and not unit:
         return f"{value:.1%}"
     shown = _shown(value, kind, unit)
-    return f"{shown:.4g} {_pretty(unit)}".strip()
+    return f"{shown:.4g} {pretty_unit(unit)}".strip()
 
 
 def _margin_text(margin: float | None) -> str:
@@ -111,7 +107,7 @@ def _failed(f: Finding, strict: bool) -> bool:
 def _show(v: float | None, kind: Kind, units: dict[Kind, str]) -> str:
     if v is None or not math.isfinite(v):
         return "unknown"
-    return f"{from_si(v, kind, units[kind]):.4g} {_pretty(units[kind])}"
+    return f"{from_si(v, kind, units[kind]):.4g} {pretty_unit(units[kind])}"
 
 
 def _money(v: float | None, currency: str) -> str:
@@ -518,7 +514,7 @@ def annotate(result: CheckResult, target: str | os.PathLike[str], source: str | 
         measured = _shown(f.measured, f.kind, f.unit)
         limit = _shown(f.limit, f.kind, f.unit)
         place = lambda w: str(dataclasses.replace(w, file=display_path(w.file, base)) if w.file else w)  # noqa: E731
-        row = (f.rule, f.severity, measured, limit, _pretty(f.unit), _num(f.margin), f.segment, f.count,
+        row = (f.rule, f.severity, measured, limit, pretty_unit(f.unit), _num(f.margin), f.segment, f.count,
                place(f.where), place(f.app_where) if f.app_where is not None else "", f.message)
         numbers = number_format([v for v in (measured, limit) if isinstance(v, float)])
         lines = 1

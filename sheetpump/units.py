@@ -62,6 +62,7 @@ __all__ = [
     "from_si",
     "outside_span",
     "physical_unit",
+    "pretty_unit",
     "registry_cache_folder",
     "span_text",
     "spelling",
@@ -681,3 +682,13 @@ def from_si(value: float | np.ndarray, kind: Kind, unit: str | None = None) -> f
     if offset:
         return (value - offset) / factor
     return value / factor if factor != 1.0 else value
+
+
+def pretty_unit(unit: str) -> str:
+    """A unit as a report shows it: degrees with their sign, a square as a superscript, a product as a
+    middle dot.
+
+    >>> pretty_unit("degC"), pretty_unit("mm^2/s"), pretty_unit("N*m")
+    ('°C', 'mm²/s', 'N·m')
+    """
+    return unit.replace("degC", "°C").replace("degF", "°F").replace("^2", "²").replace("*", "·")
