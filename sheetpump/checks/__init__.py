@@ -9,6 +9,15 @@ the reason and the cell to fill), what was measured, the limit, the margin as a 
 that matters for the duty (pressure, speed, flow, inlet, viscosity, temperature, torque) and is not
 checked makes the pump's verdict at best ``warn``: a ``pass`` means every rating was proven.
 
+The rooms: each rule is a function declared with :func:`~sheetpump.checks.registry.rule` (its id and
+text, hence :data:`RULES`) in the module of its subject: :mod:`~sheetpump.checks.speed`,
+:mod:`~sheetpump.checks.pressure`, :mod:`~sheetpump.checks.flow`, :mod:`~sheetpump.checks.inlet`,
+:mod:`~sheetpump.checks.fluid` (viscosity, temperature, cleanliness) and :mod:`~sheetpump.checks.drive`
+(torque, cold start, rotation, performance basis). :mod:`~sheetpump.checks.findings` holds the result
+types and the verdict, :mod:`~sheetpump.checks.limits` the limit arithmetic,
+:mod:`~sheetpump.checks.context` what every rule reads, :mod:`~sheetpump.checks.motor` the drive figures
+and the motor sizing.
+
 Application margins tighten the limits: an upper rating R with a pressure margin m becomes R·(1 − m), a
 required flow Q becomes Q·(1 + m), a speed range [a, b] becomes [a·(1 + m), b·(1 − m)]. The limit a
 finding reports is the tightened one.
@@ -82,7 +91,7 @@ __all__ = [
     "stretches",
 ]
 
-#: The rules in the order a check lists their findings.
+#: The rules in the order a check lists their findings (every rule of :data:`RULES` once).
 CHECK_ORDER = (
     speed.speed_min, speed.speed_max, speed.speed_min_high_pressure,
     pressure.duty_relief, pressure.pressure_continuous, pressure.intermittent, pressure.intermittent_duration,
