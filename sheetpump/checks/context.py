@@ -9,7 +9,7 @@ of values in messages and the findings of a rule that cannot judge.
 from __future__ import annotations
 
 import math
-from dataclasses import dataclass
+from dataclasses import dataclass, field
 from functools import cached_property
 
 import numpy as np
@@ -66,7 +66,8 @@ class Context:
 
     ``viscosity`` is the oil's kinematic viscosity per segment [m²/s], ``estimate`` the pump's
     efficiencies at the duty's points, ``line`` the inlet pressure computed from the suction line (None
-    without one) and ``motor`` the motor sizing (or why there is none).
+    without one) and ``motor`` the motor sizing (or why there is none). ``memo`` keeps what several
+    rules of one subject share, computed once per check (e.g. the stretches above the continuous rating).
     """
 
     ds: Datasheet
@@ -78,6 +79,7 @@ class Context:
     estimate: performance.Estimate
     line: SuctionTerms | None = None
     motor: MotorSizing | str = ""
+    memo: dict[str, object] = field(default_factory=dict, compare=False, repr=False)
 
     def unit(self, kind: Kind | None) -> str:
         """The unit a report shows ``kind`` in ("" for none)."""

@@ -34,9 +34,12 @@ def _continuous(ctx: Context) -> float:
 
 
 def _above(ctx: Context) -> tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray]:
-    """The segments above the continuous rating, and their stretches ``(first, stop, length)``."""
-    above = ctx.duty.pressure > _continuous(ctx)
-    return (above, *stretches(above, ctx.duty.duration, ctx.duty.wraps))
+    """The segments above the continuous rating, and their stretches ``(first, stop, length)``; computed
+    once per check for the four rules that judge them."""
+    if "pressure.above" not in ctx.memo:
+        above = ctx.duty.pressure > _continuous(ctx)
+        ctx.memo["pressure.above"] = (above, *stretches(above, ctx.duty.duration, ctx.duty.wraps))
+    return ctx.memo["pressure.above"]  # type: ignore[return-value]
 
 
 @rule("pressure.continuous", "pressure at or below the continuous rating (except intermittent stretches)")
