@@ -15,37 +15,25 @@ from functools import cached_property
 import numpy as np
 
 from .. import performance
+from .. import units as u
 from ..datasheet import Datasheet
 from ..duty import Application, Duty
 from ..errors import Where
 from ..physics import fluid
 from ..physics.suction import SuctionTerms
-from ..units import (
-    ABS_PRESSURE,
-    DURATION,
-    EFFICIENCY,
-    FLOW,
-    POWER,
-    PRESSURE,
-    SPEED,
-    TEMPERATURE,
-    TORQUE,
-    VISCOSITY,
-    Kind,
-    from_si,
-    pretty_unit,
-)
+from ..units import Kind, from_si, pretty_unit
 from .findings import INFO, NOT_CHECKED, CheckSettings, Finding, MotorSizing
 
 __all__ = ["DISPLAY_UNITS", "ColdStart", "Context", "not_applicable", "not_checked"]
 
 #: Units a report shows each kind in ("metric" or "imperial"); findings keep SI numbers.
 DISPLAY_UNITS: dict[str, dict[Kind, str]] = {
-    "metric": {PRESSURE: "bar", ABS_PRESSURE: "bara", SPEED: "rpm", FLOW: "L/min", POWER: "kW",
-               TORQUE: "N*m", TEMPERATURE: "degC", VISCOSITY: "mm^2/s", DURATION: "s", EFFICIENCY: ""},
-    "imperial": {PRESSURE: "psi", ABS_PRESSURE: "psia", SPEED: "rpm", FLOW: "gpm", POWER: "hp",
-                 TORQUE: "lbf*ft", TEMPERATURE: "degF", VISCOSITY: "mm^2/s", DURATION: "s",
-                 EFFICIENCY: ""},
+    "metric": {u.PRESSURE: "bar", u.ABS_PRESSURE: "bara", u.SPEED: "rpm", u.FLOW: "L/min", u.POWER: "kW",
+               u.TORQUE: "N*m", u.TEMPERATURE: "degC", u.VISCOSITY: "mm^2/s", u.DURATION: "s",
+               u.EFFICIENCY: ""},
+    "imperial": {u.PRESSURE: "psi", u.ABS_PRESSURE: "psia", u.SPEED: "rpm", u.FLOW: "gpm", u.POWER: "hp",
+                 u.TORQUE: "lbf*ft", u.TEMPERATURE: "degF", u.VISCOSITY: "mm^2/s", u.DURATION: "s",
+                 u.EFFICIENCY: ""},
 }
 
 

@@ -170,14 +170,6 @@ def cold_start_torque(ctx: Context) -> Finding:
                    app_where=app.where("motor_starting_torque" if stated else "cold_start_temperature"))
 
 
-def _rotation_of(text: str, where: Where) -> str:
-    word = rotation_word(text)
-    if word is None:
-        raise InputError(f"{text!r} is not a direction of rotation", where,
-                         "write 'clockwise', 'counter-clockwise' or 'either' (seen from the shaft end)")
-    return word
-
-
 @rule("rotation", "direction of rotation matches the drive",
       not_checked="no rotation on the datasheet or in the application")
 def rotation(ctx: Context) -> Finding:
@@ -195,6 +187,14 @@ def rotation(ctx: Context) -> Finding:
                    message=f"pump {ds.rotation}, drive {app.rotation}: {'matches' if ok else 'does not match'}",
                    measured=app.rotation, limit=ds.rotation, segment="shaft", count=0 if ok else 1, where=where,
                    app_where=app_where)
+
+
+def _rotation_of(text: str, where: Where) -> str:
+    word = rotation_word(text)
+    if word is None:
+        raise InputError(f"{text!r} is not a direction of rotation", where,
+                         "write 'clockwise', 'counter-clockwise' or 'either' (seen from the shaft end)")
+    return word
 
 
 @rule("performance.basis", "what the efficiencies rest on")

@@ -29,26 +29,27 @@ def _inlet_pressure(ctx: Context) -> np.ndarray:
     return ctx.duty.inlet_pressure if ctx.line is None else np.asarray(ctx.line.inlet, float)
 
 
+def _inlet_limit(ctx: Context, rule_id: str, upper: bool) -> Finding:
+    """The inlet pressure of every segment against the datasheet's minimum (or maximum)."""
+    ds = ctx.ds
+    word, name = ("maximum", "inlet_pressure_max") if upper else ("minimum", "inlet_pressure_min")
+    limit = getattr(ds, name)
+    if limit is None:
+        return not_checked(ctx, rule_id, f"the datasheet states no {word} inlet pressure", ds.where(name),
+                           kind=ABS_PRESSURE)
+    inlet = _inlet_pressure(ctx)
+    worst = int(np.argmax(inlet) if upper else np.argmin(inlet))
+    return _computed(ctx, bound(ctx, rule_id, inlet, limit, upper, ABS_PRESSURE, ds.where(name)), worst)
+
+
 @rule("inlet.min", "inlet pressure (absolute) at or above the minimum", not_checked="no minimum inlet pressure stated")
 def inlet_min(ctx: Context) -> Finding:
-    ds = ctx.ds
-    if ds.inlet_pressure_min is None:
-        return not_checked(ctx, "inlet.min", "the datasheet states no minimum inlet pressure",
-                           ds.where("inlet_pressure_min"), kind=ABS_PRESSURE)
-    inlet = _inlet_pressure(ctx)
-    return _computed(ctx, bound(ctx, "inlet.min", inlet, ds.inlet_pressure_min, False, ABS_PRESSURE,
-                                ds.where("inlet_pressure_min")), int(np.argmin(inlet)))
+    return _inlet_limit(ctx, "inlet.min", upper=False)
 
 
 @rule("inlet.max", "inlet pressure (absolute) at or below the maximum", not_checked="no maximum inlet pressure stated")
 def inlet_max(ctx: Context) -> Finding:
-    ds = ctx.ds
-    if ds.inlet_pressure_max is None:
-        return not_checked(ctx, "inlet.max", "the datasheet states no maximum inlet pressure",
-                           ds.where("inlet_pressure_max"), kind=ABS_PRESSURE)
-    inlet = _inlet_pressure(ctx)
-    return _computed(ctx, bound(ctx, "inlet.max", inlet, ds.inlet_pressure_max, True, ABS_PRESSURE,
-                                ds.where("inlet_pressure_max")), int(np.argmax(inlet)))
+    return _inlet_limit(ctx, "inlet.max", upper=True)
 
 
 def _breakdown(ctx: Context, terms: SuctionTerms, i: int | None = None) -> tuple[str, Where]:

@@ -74,21 +74,13 @@ def intermittent(ctx: Context) -> Finding:
 @rule("pressure.intermittent-duration", "longest stretch above continuous within the allowed time",
       not_checked="no longest time stated and the duty goes above continuous")
 def intermittent_duration(ctx: Context) -> Finding:
-    if ctx.ds.pressure_intermittent is None:
-        return not_applicable("pressure.intermittent-duration", _NO_INTERMITTENT,
-                              ctx.ds.where("pressure_intermittent"))
-    return _stretch_rule(ctx, "pressure.intermittent-duration", ctx.ds.intermittent_max_duration,
-                         "intermittent_max_duration", share=False)
+    return _stretch_rule(ctx, "pressure.intermittent-duration", "intermittent_max_duration", share=False)
 
 
 @rule("pressure.intermittent-share", "total time above continuous within the allowed share of the cycle",
       not_checked="no share of the cycle stated and the duty goes above continuous")
 def intermittent_share(ctx: Context) -> Finding:
-    if ctx.ds.pressure_intermittent is None:
-        return not_applicable("pressure.intermittent-share", _NO_INTERMITTENT,
-                              ctx.ds.where("pressure_intermittent"))
-    return _stretch_rule(ctx, "pressure.intermittent-share", ctx.ds.intermittent_max_share,
-                         "intermittent_max_share", share=True)
+    return _stretch_rule(ctx, "pressure.intermittent-share", "intermittent_max_share", share=True)
 
 
 def _stretch_label(ctx: Context, first: int, stop: int) -> str:
@@ -102,9 +94,12 @@ def _stretch_label(ctx: Context, first: int, stop: int) -> str:
     return f"{a}–{b}" + (" (across the cycle's end)" if last < first else "")
 
 
-def _stretch_rule(ctx: Context, rule_id: str, limit: float | None, name: str, share: bool) -> Finding:
+def _stretch_rule(ctx: Context, rule_id: str, name: str, share: bool) -> Finding:
     """The longest stretch above the continuous rating (or all of them as a share of the cycle) against
-    the datasheet's allowed time (or share)."""
+    the datasheet's allowed time (or share), the field ``name``."""
+    if ctx.ds.pressure_intermittent is None:
+        return not_applicable(rule_id, _NO_INTERMITTENT, ctx.ds.where("pressure_intermittent"))
+    limit = getattr(ctx.ds, name)
     _, first, stop, length = _above(ctx)
     where = ctx.ds.where(name)
     kind = EFFICIENCY if share else DURATION
