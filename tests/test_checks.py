@@ -654,6 +654,16 @@ def test_every_rule_appears_for_every_pump_even_with_blank_ratings():
     assert r.counts()[NOT_CHECKED] == 10
 
 
+def test_each_rule_function_gives_the_finding_of_the_rule_it_declares():
+    # the registry's table comes from the rule code: each function declared with @rule(id, ...) gives a
+    # finding with that id, and the check runs every declared rule once
+    from sheetpump.checks import CHECK_ORDER, RULES
+
+    r = check(metric_pump(), app_for(duty(quiet(metric_pump()))))
+    assert [f.rule for f in r.findings] == [fn.rule_id for fn in CHECK_ORDER]
+    assert sorted(fn.rule_id for fn in CHECK_ORDER) == sorted(RULES)
+
+
 def test_a_rule_not_checked_that_matters_makes_the_verdict_at_best_warn():
     from sheetpump.comparison import compare
 

@@ -32,6 +32,7 @@ from typing import Any
 
 import numpy as np
 
+from ..codes import cleanliness_parts, rotation_word
 from ..datasheet import Datasheet, PerformanceTable
 from ..duty import Application, Duty, Oil
 from ..errors import InputError, Where
@@ -78,14 +79,6 @@ MAX_TABLE_ROWS = 100_000
 _EXCEL_ERRORS = ("#NULL!", "#DIV/0!", "#VALUE!", "#REF!", "#NAME?", "#NUM!", "#N/A", "#GETTING_DATA",
                  "#SPILL!", "#CALC!")
 _CELL = re.compile(r"^\$?([A-Za-z]{1,3})\$?([1-9]\d{0,6})$")  # one cell: B11, $B$11
-_ISO4406 = re.compile(r"^(?:(\d{1,2}|-)\s*/\s*)?(\d{1,2})\s*/\s*(\d{1,2})$")
-_ROTATION_WORDS = {
-    "clockwise": "clockwise", "cw": "clockwise", "right": "clockwise", "right-hand": "clockwise",
-    "counter-clockwise": "counter-clockwise", "counterclockwise": "counter-clockwise",
-    "anticlockwise": "counter-clockwise", "anti-clockwise": "counter-clockwise", "ccw": "counter-clockwise",
-    "left": "counter-clockwise", "left-hand": "counter-clockwise",
-    "either": "either", "both": "either", "reversible": "either", "bidirectional": "either",
-}
 
 
 def _is_error_text(value: Any) -> bool:
@@ -362,15 +355,15 @@ def convert(field: Field, value: Any, unit: Any, where: Where, unit_where: Where
     if kind == TEXT:
         text = _text(value)
         if field.key == "cleanliness":
-            match = _ISO4406.match(text)
-            if not match:
+            parts = cleanliness_parts(text)
+            if parts is None:
                 raise InputError(f"{text!r} is not an ISO 4406 code", where, "write e.g. '18/16/13'")
-            text = "/".join(g for g in match.groups() if g is not None)
+            text = "/".join(parts)
         return text
     if kind == CHOICE:
         text = _text(value)
         if field.key == "rotation":
-            chosen = _ROTATION_WORDS.get(text.lower())
+            chosen = rotation_word(text)
         else:
             chosen = next((c for c in field.choices if c.lower() == text.lower()), None)
         if chosen is None:

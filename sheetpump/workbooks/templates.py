@@ -26,6 +26,7 @@ from typing import Any
 
 from .. import SAFETY_CAUTION
 from .. import units as u
+from ..codes import ROTATIONS
 from ..errors import InputError
 from ..units import Kind
 from .writer import PAPER_SIZES, STYLES, open_book, write_value
@@ -79,7 +80,6 @@ UNITS: dict[Kind, tuple[str, ...]] = {
     u.DIAMETER: ("mm", "in", "m"),
 }
 FRACTION_UNITS = ("%", "fraction")
-ROTATIONS = ("clockwise", "counter-clockwise", "either")
 MOTOR_STANDARDS = ("IEC", "NEMA")
 YES_NO = ("yes", "no")
 PAPER_CHOICES = tuple(PAPER_SIZES)  # the paper sizes the writers know
