@@ -11,8 +11,8 @@ from hypothesis import given
 from hypothesis import strategies as st
 
 from sheetpump.catalogue import CATALOGUE
+from sheetpump.errors import PhysicsError
 from sheetpump.physics import pump
-from sheetpump.physics.pump import PhysicsError
 
 REF = pint.UnitRegistry()  # outside reference for conversions, not sheetpump's registry
 

@@ -16,10 +16,9 @@ from pathlib import Path
 from typing import Any
 
 from ..checks import FAIL, CheckResult, CheckSettings
-from ..errors import InputError, Where
+from ..errors import InputError, PhysicsError, Where, as_input_error
 from ..files import atomic_write, check_outputs
 from ..physics import drive
-from ..physics.pump import PhysicsError
 
 EXIT_OK, EXIT_FAIL = 0, 1
 
@@ -50,7 +49,7 @@ def _read(reader: Any, path: str, what: str) -> Any:
     except InputError as exc:
         raise exc.at(file=path) from None
     except PhysicsError as exc:
-        raise InputError(f"{exc.argument} {exc.reason}", Where(file=path, field=exc.argument)) from None
+        raise as_input_error(exc, Where(file=path)) from None
     except OSError as exc:
         raise InputError(f"cannot read the {what} ({exc.strerror or exc})", Where(file=path)) from None
 
