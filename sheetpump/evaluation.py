@@ -59,6 +59,9 @@ TABLE_FLAG_TEXT = {
                           "than three standard uncertainties and more than 2 %",
 }
 
+#: Why neither the displacement is derived nor the model fitted when no point can be used.
+_NO_USABLE_POINT = "no complete, possible point in the table"
+
 #: Points on each model curve (over the measured pressure range).
 CURVE_POINTS = 26
 
@@ -274,18 +277,7 @@ def evaluate_table(
         usable = (np.isfinite(n) & np.isfinite(p) & np.isfinite(q) & np.isfinite(measured) & np.isfinite(mu)
                   & (n > 0) & (p >= 0) & (q >= 0) & (measured > 0) & (mu > 0))
 
-    derived, derived_error = None, ""
-    if usable.any():
-        try:
-            derived = derived_displacement(n[usable], p[usable], q[usable], viscosity=mu[usable])
-        except PhysicsError as exc:
-            derived_error = str(exc)
-    else:
-        derived_error = "no complete, possible point in the table"
-    if derived is not None and not derived.value > 0:  # flow that does not rise with speed
-        derived_error = (f"the flow does not rise with the speed at low pressure (the slope gives "
-                         f"{derived.value * 1e6:.3g} cm^3/rev)")
-        derived = None
+    derived, derived_error = _derived(n, p, q, mu, usable)
     if displacement is not None:
         used = float(displacement)
     elif derived is not None:
@@ -296,8 +288,8 @@ def evaluate_table(
                          "give the nominal displacement, e.g. --displacement '28 cc'")
     try:
         points = evaluate_points(n, p, q, torque=table.torque if table.torque is not None else None,
-                                        input_power=table.input_power if table.torque is None else None,
-                                        displacement=used, viscosity=mu, tolerance=tolerance)
+                                 input_power=table.input_power if table.torque is None else None,
+                                 displacement=used, viscosity=mu, tolerance=tolerance)
     except PhysicsError as exc:
         raise as_input_error(exc, table.where()) from None
 
@@ -308,17 +300,10 @@ def evaluate_table(
         if diff > 3 * u and diff > DISPLACEMENT_TOLERANCE * displacement:
             table_flags.append(DISPLACEMENT_DIFFERS)
 
-    model, model_error, prediction = None, "", None
+    prediction = None
     groups = _groups(n, nu, mu, p, usable)
     curves: list[tuple[np.ndarray, Prediction]] = []
-    if usable.any():
-        try:
-            model = fit_performance(n[usable], p[usable], q[usable], points.torque[usable], mu[usable],
-                                           used)
-        except PhysicsError as exc:
-            model_error = str(exc)
-    else:
-        model_error = "no complete, possible point in the table"
+    model, model_error = _model(n, p, q, points.torque, mu, used, usable)
     if model is not None:
         if (~usable).any():
             notes.append(f"{int((~usable).sum())} point(s) with a missing or impossible value left out of the fit")
@@ -334,6 +319,32 @@ def evaluate_table(
         displacement=used, points=points, derived=derived, derived_error=derived_error, model=model,
         model_error=model_error, prediction=prediction, groups=groups, curves=tuple(curves),
         table_flags=tuple(table_flags), notes=tuple(notes))
+
+
+def _derived(n: np.ndarray, p: np.ndarray, q: np.ndarray, mu: np.ndarray, usable: np.ndarray
+             ) -> tuple[DerivedDisplacement | None, str]:
+    """The displacement derived from the usable points, or None and why not."""
+    if not usable.any():
+        return None, _NO_USABLE_POINT
+    try:
+        derived = derived_displacement(n[usable], p[usable], q[usable], viscosity=mu[usable])
+    except PhysicsError as exc:
+        return None, str(exc)
+    if not derived.value > 0:  # flow that does not rise with speed
+        return None, (f"the flow does not rise with the speed at low pressure (the slope gives "
+                      f"{derived.value * 1e6:.3g} cm^3/rev)")
+    return derived, ""
+
+
+def _model(n: np.ndarray, p: np.ndarray, q: np.ndarray, torque: np.ndarray, mu: np.ndarray, displacement: float,
+           usable: np.ndarray) -> tuple[PerformanceModel | None, str]:
+    """The loss model of the usable points (:func:`fit_performance`), or None and why not."""
+    if not usable.any():
+        return None, _NO_USABLE_POINT
+    try:
+        return fit_performance(n[usable], p[usable], q[usable], torque[usable], mu[usable], displacement), ""
+    except PhysicsError as exc:
+        return None, str(exc)
 
 
 def _blank(pred: Prediction, keep: np.ndarray) -> Prediction:
