@@ -9,11 +9,24 @@ that fits a table made from it and gets it back is a self-consistency check, not
 from __future__ import annotations
 
 import numpy as np
+from hypothesis import strategies as st
 
 from sheetpump.physics.wilson import WilsonModel
 
 TRUE = WilsonModel(28e-6, c_s=1.3e-8, c_f=0.04, c_v=1e5, t_c=1.0)  # invented pump
 RPM = 1 / 60
+
+# Hypothesis strategies of the model's coefficients and operating points.
+coefficients = st.tuples(
+    st.floats(1e-10, 1e-8),   # C_s: at most 95 % slip at the corner of the ranges below
+    st.floats(0.0, 0.2),      # C_f
+    st.floats(0.0, 3e5),      # C_v
+    st.floats(0.0, 5.0),      # T_c [N·m]
+    st.floats(5e-6, 100e-6),  # V [m³/rev]
+)
+speeds = st.floats(10.0, 60.0)         # rev/s
+pressures = st.floats(1e5, 3e7)        # Pa
+viscosities = st.floats(0.005, 0.2)    # Pa·s
 
 
 def grid(speeds_rpm=(1000, 1500, 2000, 2500), pressures_bar=tuple(range(10, 251, 40)),

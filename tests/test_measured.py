@@ -20,9 +20,25 @@ from sheetpump.physics.measured import FLAG_TEXT, MeasuredRanges, evaluate_point
 from sheetpump.physics.wilson import WilsonModel
 
 try:  # tests/ may or may not be a package; both layouts work
-    from tests.measured_tables import RPM, noisy_table, one_curve
+    from tests.measured_tables import (
+        RPM,
+        coefficients,
+        noisy_table,
+        one_curve,
+        pressures,
+        speeds,
+        viscosities,
+    )
 except ImportError:  # pragma: no cover - depends on how pytest was started
-    from measured_tables import RPM, noisy_table, one_curve  # type: ignore[no-redef]
+    from measured_tables import (  # type: ignore[no-redef]
+        RPM,
+        coefficients,
+        noisy_table,
+        one_curve,
+        pressures,
+        speeds,
+        viscosities,
+    )
 
 ureg = pint.UnitRegistry()  # an independent registry: the reference, not ours
 
@@ -67,16 +83,6 @@ def test_textbook_example_imperial():
 
 
 # -- properties ------------------------------------------------------------------------------------
-coefficients = st.tuples(
-    st.floats(1e-10, 1e-8),   # C_s: at most 95 % slip at the corner of the ranges below
-    st.floats(0.0, 0.2),      # C_f
-    st.floats(0.0, 3e5),      # C_v
-    st.floats(0.0, 5.0),      # T_c [N·m]
-    st.floats(5e-6, 100e-6),  # V [m³/rev]
-)
-speeds = st.floats(10.0, 60.0)         # rev/s
-pressures = st.floats(1e5, 3e7)        # Pa
-viscosities = st.floats(0.005, 0.2)    # Pa·s
 
 
 @settings(max_examples=200, deadline=None)

@@ -13,15 +13,30 @@ import math
 import numpy as np
 import pytest
 from hypothesis import given, settings
-from hypothesis import strategies as st
 
 from sheetpump.physics.prediction import fit_performance
 from sheetpump.physics.wilson import WilsonModel, fit_wilson
 
 try:  # tests/ may or may not be a package; both layouts work
-    from tests.measured_tables import RPM, TRUE, noisy_table
+    from tests.measured_tables import (
+        RPM,
+        TRUE,
+        coefficients,
+        noisy_table,
+        pressures,
+        speeds,
+        viscosities,
+    )
 except ImportError:  # pragma: no cover - depends on how pytest was started
-    from measured_tables import RPM, TRUE, noisy_table  # type: ignore[no-redef]
+    from measured_tables import (  # type: ignore[no-redef]
+        RPM,
+        TRUE,
+        coefficients,
+        noisy_table,
+        pressures,
+        speeds,
+        viscosities,
+    )
 
 
 # -- outside sources -------------------------------------------------------------------------------
@@ -39,16 +54,6 @@ def test_wilson_prediction_matches_merritt_efficiency_forms():
     assert float(r.input_power) == pytest.approx(float(r.torque) * omega, rel=1e-12)
 
 
-coefficients = st.tuples(
-    st.floats(1e-10, 1e-8),   # C_s: at most 95 % slip at the corner of the ranges below
-    st.floats(0.0, 0.2),      # C_f
-    st.floats(0.0, 3e5),      # C_v
-    st.floats(0.0, 5.0),      # T_c [N·m]
-    st.floats(5e-6, 100e-6),  # V [m³/rev]
-)
-speeds = st.floats(10.0, 60.0)         # rev/s
-pressures = st.floats(1e5, 3e7)        # Pa
-viscosities = st.floats(0.005, 0.2)    # Pa·s
 
 
 @settings(max_examples=200, deadline=None)

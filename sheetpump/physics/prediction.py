@@ -6,15 +6,8 @@ in pressure (:func:`interpolate_performance`) where the table cannot carry the m
 ``predicted_*`` functions are the ``SP_PREDICT_*`` cell functions: the table and the point to predict
 at, in cell-argument order.
 
-Pure functions of SI numbers or numpy arrays: speed n [rev/s], pressure rise Δp [Pa], flow Q [m³/s],
-torque T [N·m], power P [W], dynamic viscosity μ [Pa·s], displacement V [m³/rev].
-
-References
-----------
-.. [1] Wilson, W. E., Positive-Displacement Pumps and Fluid Motors, Pitman, 1950 (from memory).
-.. [2] Merritt, H. E., Hydraulic Control Systems, Wiley, 1967, ch. 5 (from memory).
-.. [3] ISO 4409, Hydraulic fluid power -- Positive-displacement pumps, motors and integral
-   transmissions -- Methods of testing and presenting basic steady-state performance.
+Pure functions of SI numbers or numpy arrays, in the units and with the references of
+:mod:`sheetpump.physics.wilson`.
 """
 
 from __future__ import annotations
@@ -175,7 +168,7 @@ def fit_performance(
     try:
         return fit_wilson(speed, pressure, flow, torque, viscosity, displacement)
     except ModelError as exc:
-        note = (f"Wilson's model not fitted ({exc.argument} {exc.reason}); measured efficiencies "
+        note = (f"Wilson's model not fitted ({exc}); measured efficiencies "
                 "interpolated linearly in pressure at the measured speed and viscosity")
         return interpolate_performance(speed, pressure, flow, torque, viscosity, displacement, (note,))
 
