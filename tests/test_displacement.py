@@ -19,9 +19,13 @@ from sheetpump.physics.displacement import UNCERTAINTY_FLOOR, derived_displaceme
 from sheetpump.physics.measured import evaluate_points
 
 try:  # tests/ may or may not be a package; both layouts work
-    from tests.measured_tables import grid, noisy_table, practical_table
+    from tests import measured_tables as tables
 except ImportError:  # pragma: no cover - depends on how pytest was started
-    from measured_tables import grid, noisy_table, practical_table  # type: ignore[no-redef]
+    import measured_tables as tables  # type: ignore[no-redef]
+
+grid = tables.grid
+noisy_table = tables.noisy_table
+practical_table = tables.practical_table
 
 ureg = pint.UnitRegistry()  # an independent registry: the reference, not ours
 

@@ -20,25 +20,17 @@ from sheetpump.physics.measured import FLAG_TEXT, MeasuredRanges, evaluate_point
 from sheetpump.physics.wilson import WilsonModel
 
 try:  # tests/ may or may not be a package; both layouts work
-    from tests.measured_tables import (
-        RPM,
-        coefficients,
-        noisy_table,
-        one_curve,
-        pressures,
-        speeds,
-        viscosities,
-    )
+    from tests import measured_tables as tables
 except ImportError:  # pragma: no cover - depends on how pytest was started
-    from measured_tables import (  # type: ignore[no-redef]
-        RPM,
-        coefficients,
-        noisy_table,
-        one_curve,
-        pressures,
-        speeds,
-        viscosities,
-    )
+    import measured_tables as tables  # type: ignore[no-redef]
+
+RPM = tables.RPM
+coefficients = tables.coefficients
+noisy_table = tables.noisy_table
+one_curve = tables.one_curve
+pressures = tables.pressures
+speeds = tables.speeds
+viscosities = tables.viscosities
 
 ureg = pint.UnitRegistry()  # an independent registry: the reference, not ours
 

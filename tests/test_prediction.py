@@ -18,9 +18,14 @@ from sheetpump.physics.measured import evaluate_points
 from sheetpump.physics.prediction import InterpolatedPerformance, fit_performance
 
 try:  # tests/ may or may not be a package; both layouts work
-    from tests.measured_tables import RPM, TRUE, one_curve, practical_table
+    from tests import measured_tables as tables
 except ImportError:  # pragma: no cover - depends on how pytest was started
-    from measured_tables import RPM, TRUE, one_curve, practical_table  # type: ignore[no-redef]
+    import measured_tables as tables  # type: ignore[no-redef]
+
+RPM = tables.RPM
+TRUE = tables.TRUE
+one_curve = tables.one_curve
+practical_table = tables.practical_table
 
 ureg = pint.UnitRegistry()  # an independent registry: the reference, not ours
 

@@ -18,25 +18,17 @@ from sheetpump.physics.prediction import fit_performance
 from sheetpump.physics.wilson import WilsonModel, fit_wilson
 
 try:  # tests/ may or may not be a package; both layouts work
-    from tests.measured_tables import (
-        RPM,
-        TRUE,
-        coefficients,
-        noisy_table,
-        pressures,
-        speeds,
-        viscosities,
-    )
+    from tests import measured_tables as tables
 except ImportError:  # pragma: no cover - depends on how pytest was started
-    from measured_tables import (  # type: ignore[no-redef]
-        RPM,
-        TRUE,
-        coefficients,
-        noisy_table,
-        pressures,
-        speeds,
-        viscosities,
-    )
+    import measured_tables as tables  # type: ignore[no-redef]
+
+RPM = tables.RPM
+TRUE = tables.TRUE
+coefficients = tables.coefficients
+noisy_table = tables.noisy_table
+pressures = tables.pressures
+speeds = tables.speeds
+viscosities = tables.viscosities
 
 
 # -- outside sources -------------------------------------------------------------------------------
