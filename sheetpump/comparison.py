@@ -34,9 +34,8 @@ import numpy as np
 from .checks import FAIL, CheckResult, CheckSettings, check, size_motor
 from .datasheet import Datasheet
 from .duty import Application
-from .errors import InputError, Where
+from .errors import InputError, PhysicsError, Where, as_input_error
 from .physics import drive
-from .physics.pump import PhysicsError
 
 __all__ = ["Candidate", "Comparison", "compare", "compare_results"]
 
@@ -149,8 +148,7 @@ def _checked(ds: Datasheet, app: Application, settings: CheckSettings) -> CheckR
     except InputError as exc:
         raise exc.at(file=ds.file or None) from None
     except PhysicsError as exc:
-        raise InputError(f"{exc.argument} {exc.reason}", Where(file=ds.file or None, field=exc.argument)) \
-            from None
+        raise as_input_error(exc, Where(file=ds.file or None)) from None
 
 
 def compare(datasheets: Sequence[Datasheet], application: Application,

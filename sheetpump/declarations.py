@@ -29,8 +29,7 @@ from typing import Any
 
 import numpy as np
 
-from .errors import InputError, Where
-from .physics.pump import PhysicsError
+from .errors import InputError, PhysicsError, Where
 from .units import Kind, all_finite, check_unit, to_si, unit_factor, ureg
 
 __all__ = ["ERROR_PREFIX", "Arg", "Calculation", "Catalogue", "Choice"]

@@ -31,7 +31,7 @@ from pathlib import Path
 from typing import Any
 
 from . import SAFETY_CAUTION
-from .physics.losses import WilsonModel
+from .physics.wilson import WilsonModel
 from .units import FLOW, POWER, PRESSURE, TORQUE, from_si, to_si
 
 __all__ = ["APPLICATION_FILE", "PUMPS", "SERIES", "DemoResult", "run", "write_inputs", "write_series"]

@@ -12,6 +12,7 @@ from dataclasses import dataclass, field
 import numpy as np
 
 from .errors import Where
+from .physics.fluid import MINERAL_OIL_DENSITY_15
 from .suction import SuctionLine
 
 __all__ = ["Application", "Duty", "Oil"]
@@ -63,7 +64,7 @@ class Oil:
     t1: float  # [K]
     nu2: float  # [m^2/s] at t2
     t2: float  # [K]
-    density_15: float = 870.0  # [kg/m^3] at 15 degC
+    density_15: float = MINERAL_OIL_DENSITY_15  # [kg/m^3] at 15 degC
     grade: int | None = None  # ISO 3448 VG, when given that way
     viscosity_index: float | None = None
     name: str = ""

@@ -7,7 +7,7 @@ text.
 
 from __future__ import annotations
 
-from dataclasses import dataclass, field
+from dataclasses import dataclass, field, replace
 
 
 @dataclass
@@ -72,3 +72,38 @@ class InputError(SheetpumpError):
             **{k: getattr(self.where, k) or where.get(k) for k in ("file", "sheet", "cell", "field")}
         )
         return InputError(self.message, merged, self.hint)
+
+
+class PhysicsError(SheetpumpError, ValueError):
+    """A physically meaningless argument (negative displacement, efficiency outside (0, 1], ...).
+
+    Raised by the pure physics (:mod:`sheetpump.physics`); ``argument`` names the offending parameter so
+    a cell or a message can say which one, ``reason`` says what is wrong with it. Also a ``ValueError``,
+    as a bad argument is.
+    """
+
+    def __init__(self, argument: str, reason: str) -> None:
+        super().__init__(f"{argument} {reason}")
+        self.argument = argument
+        self.reason = reason
+
+
+class ModelError(PhysicsError):
+    """The table cannot carry the model (too few points, or terms that cannot be separated)."""
+
+
+def as_input_error(exc: PhysicsError, where: Where | None = None, context: str = "") -> InputError:
+    """The user's :class:`InputError` for a physics or model error: the one conversion at the faces.
+
+    The message is the error's own text, ``"argument reason"``, after ``context`` (``"the oil: ..."``)
+    where given; the place is ``where`` with its field, when it has none, the argument.
+
+    >>> str(as_input_error(PhysicsError("speed", "must be greater than zero"), Where(file="a.xlsx")))
+    'a.xlsx (speed): speed must be greater than zero'
+    >>> as_input_error(PhysicsError("vi", "must be positive"), Where(field="--vg"), "the oil").message
+    'the oil: vi must be positive'
+    """
+    place = where if where is not None else Where()
+    if not place.field:
+        place = replace(place, field=exc.argument)
+    return InputError(f"{context}: {exc}" if context else str(exc), place)

@@ -5,13 +5,14 @@ A test bench's log or a supplier's performance table (:class:`MeasuredTable`, re
 
 1. gives each point its oil viscosity: the table's viscosity column, or the oil's viscosity at the
    point's temperature (ASTM D341 through :mod:`sheetpump.physics.fluid`), and its dynamic viscosity
-   μ = ν·ρ, which Wilson's model needs; the density ρ is the oil's density at 15 °C (870 kg/m³ unless
-   given, a common value for mineral hydraulic oil) corrected for thermal expansion where the
+   μ = ν·ρ, which Wilson's model needs; the density ρ is the oil's density at 15 °C
+   (:data:`sheetpump.physics.fluid.MINERAL_OIL_DENSITY_15` unless given, a common value for mineral
+   hydraulic oil) corrected for thermal expansion where the
    temperature is known, and taken as it is where it is not;
 2. derives the displacement from the table (the ISO 8426 idea) and compares it with the nominal one;
-3. evaluates every point (:func:`sheetpump.physics.losses.evaluate_points`): η_v, η_hm, η_t, powers
+3. evaluates every point (:func:`sheetpump.physics.measured.evaluate_points`): η_v, η_hm, η_t, powers
    and plausibility flags;
-4. fits the loss model (:func:`sheetpump.physics.losses.fit_performance`: Wilson's model, or
+4. fits the loss model (:func:`sheetpump.physics.prediction.fit_performance`: Wilson's model, or
    interpolation where the table is too small) and predicts each point and a curve per measured
    speed and viscosity.
 
@@ -26,13 +27,16 @@ from dataclasses import dataclass, field
 import numpy as np
 
 from .duty import Oil
-from .errors import InputError, Where
-from .physics import fluid, losses
-from .physics.pump import PhysicsError
+from .errors import InputError, PhysicsError, Where, as_input_error
+from .physics import fluid
+from .physics.displacement import DerivedDisplacement, derived_displacement
+from .physics.measured import DEFAULT_TOLERANCE, PointEvaluation, evaluate_points
+from .physics.prediction import PerformanceModel, fit_performance
+from .physics.table import group_points
+from .physics.wilson import Prediction, WilsonModel
 
 __all__ = [
     "COEFFICIENTS",
-    "DEFAULT_DENSITY_15",
     "DISPLACEMENT_DIFFERS",
     "TABLE_FLAG_TEXT",
     "Evaluation",
@@ -42,10 +46,6 @@ __all__ = [
     "coefficients",
     "evaluate_table",
 ]
-
-#: Density at 15 °C assumed when none is given [kg/m³]: a common value for mineral hydraulic oil
-#: (HM/HLP oils of ISO VG 32 to 68 lie between about 860 and 880 kg/m³; common practice).
-DEFAULT_DENSITY_15 = 870.0
 
 #: Table-level flag: the derived displacement and the nominal one differ by more than three standard
 #: uncertainties *and* more than :data:`DISPLACEMENT_TOLERANCE`.
@@ -58,6 +58,9 @@ TABLE_FLAG_TEXT = {
     DISPLACEMENT_DIFFERS: "the displacement derived from the table differs from the nominal one by more "
                           "than three standard uncertainties and more than 2 %",
 }
+
+#: Why neither the displacement is derived nor the model fitted when no point can be used.
+_NO_USABLE_POINT = "no complete, possible point in the table"
 
 #: Points on each model curve (over the measured pressure range).
 CURVE_POINTS = 26
@@ -99,7 +102,7 @@ class MeasuredTable:
 class Group:
     """Points measured at one speed and one viscosity (within the level tolerance), by rising pressure.
 
-    The groups are those of the plausibility flags (:func:`sheetpump.physics.losses.group_points`).
+    The groups are those of the plausibility flags (:func:`sheetpump.physics.table.group_points`).
     """
 
     speed: float  # mean speed [rev/s]
@@ -123,14 +126,14 @@ class Evaluation:
     dynamic_viscosity: np.ndarray  # [Pa*s]
     nominal_displacement: float | None  # [m^3/rev]
     displacement: float  # the one the points were evaluated with [m^3/rev]
-    points: losses.PointEvaluation
-    derived: losses.DerivedDisplacement | None
+    points: PointEvaluation
+    derived: DerivedDisplacement | None
     derived_error: str
-    model: losses.PerformanceModel | None
+    model: PerformanceModel | None
     model_error: str
-    prediction: losses.Prediction | None
+    prediction: Prediction | None
     groups: tuple[Group, ...]
-    curves: tuple[tuple[np.ndarray, losses.Prediction], ...]
+    curves: tuple[tuple[np.ndarray, Prediction], ...]
     table_flags: tuple[str, ...]
     notes: tuple[str, ...]
 
@@ -150,18 +153,19 @@ class Evaluation:
 def _groups(n: np.ndarray, nu: np.ndarray, mu: np.ndarray, p: np.ndarray, usable: np.ndarray
             ) -> tuple[Group, ...]:
     """Group the usable points by speed level, then viscosity level, as the plausibility flags do
-    (:func:`sheetpump.physics.losses.group_points`: one sort, O(N log N))."""
+    (:func:`sheetpump.physics.table.group_points`: one sort, O(N log N))."""
     return tuple(Group(speed=float(n[members].mean()), viscosity=float(nu[members].mean()),
                        dynamic_viscosity=float(mu[members].mean()), index=members)
-                 for members in losses.group_points(n, p, mu, usable))
+                 for members in group_points(n, p, mu, usable))
 
 
 def _viscosity(table: MeasuredTable, oil: Oil | None, density_15: float | None, viscosity: float | None,
                notes: list[str]) -> tuple[np.ndarray, np.ndarray]:
     """Kinematic viscosity [m²/s] and density [kg/m³] of each point; notes say what was assumed."""
     size = table.size
-    rho15 = density_15 if density_15 is not None else (oil.density_15 if oil is not None else DEFAULT_DENSITY_15)
-    given = density_15 is not None or (oil is not None and oil.density_15 != DEFAULT_DENSITY_15)
+    default = fluid.MINERAL_OIL_DENSITY_15
+    rho15 = density_15 if density_15 is not None else (oil.density_15 if oil is not None else default)
+    given = density_15 is not None or (oil is not None and oil.density_15 != default)
     source = "given" if given else "assumed: a common value for mineral hydraulic oil; give --density to change it"
     if table.viscosity is not None:
         nu = table.viscosity
@@ -176,8 +180,7 @@ def _viscosity(table: MeasuredTable, oil: Oil | None, density_15: float | None, 
         try:
             nu[ok] = fluid.viscosity_at(t[ok], oil.nu1, oil.t1, oil.nu2, oil.t2)
         except PhysicsError as exc:
-            raise InputError(f"the oil's viscosity cannot be had: {exc.argument} {exc.reason}",
-                             table.where("temperature")) from None
+            raise as_input_error(exc, table.where("temperature"), "the oil's viscosity cannot be had") from None
         notes.append(f"viscosity from the oil temperature by ASTM D341 (Walther) through {_oil_text(oil)}")
     elif viscosity is not None:
         nu = np.full(size, float(viscosity))
@@ -192,8 +195,7 @@ def _viscosity(table: MeasuredTable, oil: Oil | None, density_15: float | None, 
         try:
             rho[ok] = fluid.density_at(t[ok], rho15)
         except PhysicsError as exc:
-            raise InputError(f"the oil's density cannot be had: {exc.argument} {exc.reason}",
-                             table.where("temperature")) from None
+            raise as_input_error(exc, table.where("temperature"), "the oil's density cannot be had") from None
         notes.append(f"dynamic viscosity μ = ν·ρ with ρ from {rho15:g} kg/m³ at 15 °C ({source}) and thermal "
                      f"expansion {fluid.MINERAL_OIL_EXPANSION:g} 1/K (common practice for mineral oil) at each "
                      "point's temperature")
@@ -219,7 +221,7 @@ def evaluate_table(
     oil: Oil | None = None,
     density_15: float | None = None,
     viscosity: float | None = None,
-    tolerance: float = losses.DEFAULT_TOLERANCE,
+    tolerance: float = DEFAULT_TOLERANCE,
 ) -> Evaluation:
     """Evaluate a measured table: viscosity, derived displacement, per-point efficiencies, loss model.
 
@@ -232,7 +234,8 @@ def evaluate_table(
     oil : Oil, optional
         The oil, needed when the table gives temperature instead of viscosity.
     density_15 : float, optional
-        Oil density at 15 °C [kg/m³]; default the oil's, else :data:`DEFAULT_DENSITY_15`.
+        Oil density at 15 °C [kg/m³]; default the oil's, else
+        :data:`sheetpump.physics.fluid.MINERAL_OIL_DENSITY_15`.
     viscosity : float, optional
         Kinematic viscosity of every point [m²/s] for a table without viscosity or temperature column.
     tolerance : float, optional
@@ -248,7 +251,7 @@ def evaluate_table(
     Three points of an invented 28 cm³/rev pump at 1500 rpm, 32 mm²/s (Wilson's coefficients C_s =
     1.3e-8, C_f = 0.04, C_v = 1e5, T_c = 1 N·m):
 
-    >>> m = losses.WilsonModel(28e-6, c_s=1.3e-8, c_f=0.04, c_v=1e5, t_c=1.0)
+    >>> m = WilsonModel(28e-6, c_s=1.3e-8, c_f=0.04, c_v=1e5, t_c=1.0)
     >>> p = np.array([50e5, 150e5, 250e5])
     >>> r = m.predict(25.0, p, 32e-6 * 870)
     >>> t = MeasuredTable(speed=np.full(3, 25.0), pressure=p, flow=r.flow, torque=r.torque,
@@ -274,18 +277,7 @@ def evaluate_table(
         usable = (np.isfinite(n) & np.isfinite(p) & np.isfinite(q) & np.isfinite(measured) & np.isfinite(mu)
                   & (n > 0) & (p >= 0) & (q >= 0) & (measured > 0) & (mu > 0))
 
-    derived, derived_error = None, ""
-    if usable.any():
-        try:
-            derived = losses.derived_displacement(n[usable], p[usable], q[usable], viscosity=mu[usable])
-        except PhysicsError as exc:
-            derived_error = f"{exc.argument} {exc.reason}"
-    else:
-        derived_error = "no complete, possible point in the table"
-    if derived is not None and not derived.value > 0:  # flow that does not rise with speed
-        derived_error = (f"the flow does not rise with the speed at low pressure (the slope gives "
-                         f"{derived.value * 1e6:.3g} cm^3/rev)")
-        derived = None
+    derived, derived_error = _derived(n, p, q, mu, usable)
     if displacement is not None:
         used = float(displacement)
     elif derived is not None:
@@ -295,11 +287,11 @@ def evaluate_table(
         raise InputError(f"the displacement cannot be derived from the table ({derived_error})", table.where(),
                          "give the nominal displacement, e.g. --displacement '28 cc'")
     try:
-        points = losses.evaluate_points(n, p, q, torque=table.torque if table.torque is not None else None,
-                                        input_power=table.input_power if table.torque is None else None,
-                                        displacement=used, viscosity=mu, tolerance=tolerance)
+        points = evaluate_points(n, p, q, torque=table.torque if table.torque is not None else None,
+                                 input_power=table.input_power if table.torque is None else None,
+                                 displacement=used, viscosity=mu, tolerance=tolerance)
     except PhysicsError as exc:
-        raise InputError(f"{exc.argument} {exc.reason}", table.where(exc.argument)) from None
+        raise as_input_error(exc, table.where()) from None
 
     table_flags: list[str] = []
     if derived is not None and displacement is not None:
@@ -308,17 +300,10 @@ def evaluate_table(
         if diff > 3 * u and diff > DISPLACEMENT_TOLERANCE * displacement:
             table_flags.append(DISPLACEMENT_DIFFERS)
 
-    model, model_error, prediction = None, "", None
+    prediction = None
     groups = _groups(n, nu, mu, p, usable)
-    curves: list[tuple[np.ndarray, losses.Prediction]] = []
-    if usable.any():
-        try:
-            model = losses.fit_performance(n[usable], p[usable], q[usable], points.torque[usable], mu[usable],
-                                           used)
-        except PhysicsError as exc:
-            model_error = f"{exc.argument} {exc.reason}"
-    else:
-        model_error = "no complete, possible point in the table"
+    curves: list[tuple[np.ndarray, Prediction]] = []
+    model, model_error = _model(n, p, q, points.torque, mu, used, usable)
     if model is not None:
         if (~usable).any():
             notes.append(f"{int((~usable).sum())} point(s) with a missing or impossible value left out of the fit")
@@ -336,11 +321,37 @@ def evaluate_table(
         table_flags=tuple(table_flags), notes=tuple(notes))
 
 
-def _blank(pred: losses.Prediction, keep: np.ndarray) -> losses.Prediction:
+def _derived(n: np.ndarray, p: np.ndarray, q: np.ndarray, mu: np.ndarray, usable: np.ndarray
+             ) -> tuple[DerivedDisplacement | None, str]:
+    """The displacement derived from the usable points, or None and why not."""
+    if not usable.any():
+        return None, _NO_USABLE_POINT
+    try:
+        derived = derived_displacement(n[usable], p[usable], q[usable], viscosity=mu[usable])
+    except PhysicsError as exc:
+        return None, str(exc)
+    if not derived.value > 0:  # flow that does not rise with speed
+        return None, (f"the flow does not rise with the speed at low pressure (the slope gives "
+                      f"{derived.value * 1e6:.3g} cm^3/rev)")
+    return derived, ""
+
+
+def _model(n: np.ndarray, p: np.ndarray, q: np.ndarray, torque: np.ndarray, mu: np.ndarray, displacement: float,
+           usable: np.ndarray) -> tuple[PerformanceModel | None, str]:
+    """The loss model of the usable points (:func:`fit_performance`), or None and why not."""
+    if not usable.any():
+        return None, _NO_USABLE_POINT
+    try:
+        return fit_performance(n[usable], p[usable], q[usable], torque[usable], mu[usable], displacement), ""
+    except PhysicsError as exc:
+        return None, str(exc)
+
+
+def _blank(pred: Prediction, keep: np.ndarray) -> Prediction:
     def f(x: np.ndarray) -> np.ndarray:
         return np.where(keep, x, np.nan)
 
-    return losses.Prediction(
+    return Prediction(
         flow=f(pred.flow), torque=f(pred.torque), volumetric=f(pred.volumetric),
         hydromechanical=f(pred.hydromechanical), total=f(pred.total), input_power=f(pred.input_power),
         extrapolated=pred.extrapolated & keep, extrapolation=np.where(keep, pred.extrapolation, ""))
@@ -355,17 +366,17 @@ COEFFICIENTS = (
 )
 
 
-def coefficients(model: losses.PerformanceModel | None) -> list[dict[str, object]]:
+def coefficients(model: PerformanceModel | None) -> list[dict[str, object]]:
     """Wilson's coefficients of a fitted model as records: symbol, value, unit, uncertainty, meaning, fitted.
 
     ``fitted`` is False for a coefficient assumed rather than fitted (its uncertainty is then NaN).
     Empty for the interpolation fallback (it has no coefficients).
 
-    >>> m = losses.WilsonModel(28e-6, c_s=1.3e-8, c_f=0.04, c_v=1e5, t_c=0.0, notes=("... (T_c = 0) ...",))
+    >>> m = WilsonModel(28e-6, c_s=1.3e-8, c_f=0.04, c_v=1e5, t_c=0.0, notes=("... (T_c = 0) ...",))
     >>> [(c["symbol"], c["unit"], c["fitted"]) for c in coefficients(m)][::3]
     [('C_s', '-', True), ('T_c', 'N*m', False)]
     """
-    if not isinstance(model, losses.WilsonModel):
+    if not isinstance(model, WilsonModel):
         return []
     # fit_wilson always fits C_s, C_f and C_v; T_c only where speed or viscosity varies (else it says
     # "T_c = 0" in a note). An uncertainty may be absent for a fitted one too (no redundant point).

@@ -2,7 +2,7 @@
 
 The answer comes, in this order of preference, from
 
-1. the datasheet's performance table, fitted with a loss model (:func:`sheetpump.physics.losses.
+1. the datasheet's performance table, fitted with a loss model (:func:`sheetpump.physics.prediction.
    fit_performance`, Wilson's model) and evaluated at each duty point; points outside the measured range
    are flagged ``extrapolated``;
 2. a single efficiency stated on the datasheet, applied at every pressure, speed and viscosity (an
@@ -23,7 +23,8 @@ from dataclasses import dataclass
 import numpy as np
 
 from .datasheet import Datasheet
-from .physics import losses
+from .physics import prediction
+from .physics.fluid import MINERAL_OIL_DENSITY_15
 from .physics.pump import TWO_PI
 
 __all__ = ["Estimate", "efficiencies", "estimate"]
@@ -70,7 +71,7 @@ def _from_table(ds: Datasheet, pressure: np.ndarray, speed: np.ndarray, viscosit
     running = n > 0  # the model needs a turning shaft; standing points are filled in by _stopped
     try:
         # Wilson's model wants dynamic viscosity μ = ν·ρ
-        model = losses.fit_performance(
+        model = prediction.fit_performance(
             t_speed, np.asarray(table.pressure, float), np.asarray(table.flow, float), torque,
             np.asarray(table.viscosity, float) * table_density, ds.displacement)
         pred = model.predict(n[running], p[running], nu[running] * rho[running])
@@ -102,7 +103,7 @@ def _from_table(ds: Datasheet, pressure: np.ndarray, speed: np.ndarray, viscosit
 
 
 def estimate(datasheet: Datasheet, pressure: np.ndarray, speed: np.ndarray, viscosity: np.ndarray,
-             density: np.ndarray | float = 870.0, table_density: float | None = None) -> Estimate:
+             density: np.ndarray | float = MINERAL_OIL_DENSITY_15, table_density: float | None = None) -> Estimate:
     r"""Efficiencies, delivered flow, shaft torque and input power of a pump at duty points.
 
     .. math:: Q_e = V n \eta_v, \qquad T = \frac{V \Delta p}{2\pi \eta_{hm}}, \qquad
@@ -119,7 +120,8 @@ def estimate(datasheet: Datasheet, pressure: np.ndarray, speed: np.ndarray, visc
     viscosity : array
         Kinematic viscosity ν of the oil at each point [m²/s].
     density : array or float, optional
-        Oil density ρ at each point [kg/m³] (the loss model works with μ = ν·ρ); default 870.
+        Oil density ρ at each point [kg/m³] (the loss model works with μ = ν·ρ); default
+        :data:`sheetpump.physics.fluid.MINERAL_OIL_DENSITY_15`.
     table_density : float, optional
         Density [kg/m³] to turn the table's kinematic viscosities into dynamic ones (the supplier's
         test oil is rarely stated); default: ``density`` at its mean.

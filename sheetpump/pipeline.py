@@ -26,9 +26,8 @@ from pathlib import Path
 from typing import TYPE_CHECKING, Any
 
 from .checks import CheckSettings
-from .errors import InputError, Where
+from .errors import InputError, PhysicsError, Where, as_input_error
 from .files import atomic_write, check_outputs
-from .physics.pump import PhysicsError
 
 if TYPE_CHECKING:
     from .comparison import Comparison
@@ -60,7 +59,7 @@ def _read(reader: Callable[[str], Any], path: str, what: str) -> Any:
     except InputError as exc:
         raise exc.at(file=path) from None
     except PhysicsError as exc:
-        raise InputError(f"{exc.argument} {exc.reason}", Where(file=path, field=exc.argument)) from None
+        raise as_input_error(exc, Where(file=path)) from None
     except OSError as exc:
         raise InputError(f"cannot read the {what} ({exc.strerror or exc})", Where(file=path)) from None
 

@@ -22,9 +22,8 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from .errors import InputError, Where
+from .errors import InputError, PhysicsError, Where
 from .physics import suction as physics
-from .physics.pump import PhysicsError
 
 __all__ = ["LINE_FIELDS", "TERM_WORDS", "SuctionLine", "dominant", "inlet", "line_from_fields", "value_at"]
 

@@ -525,7 +525,7 @@ def test_table_is_used_through_the_loss_model(monkeypatch):
     fake = types.SimpleNamespace(fit_performance=lambda *a, **k: Fitted())
     import sheetpump.performance as performance
 
-    monkeypatch.setattr(performance, "losses", fake)
+    monkeypatch.setattr(performance, "prediction", fake)
     table = PerformanceTable(np.array([50e5, 250e5]), np.array([6e-4, 5.8e-4]), np.array([25.0, 25.0]),
                              np.array([32e-6, 32e-6]), torque=np.array([30.0, 120.0]))
     ds = metric_pump(performance=table)

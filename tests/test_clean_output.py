@@ -18,7 +18,8 @@ import numpy as np
 import openpyxl
 import pytest
 
-from sheetpump.physics import losses
+from sheetpump.errors import ModelError
+from sheetpump.physics.table import least_squares
 
 DEMO = Path(__file__).resolve().parents[1] / "workbooks" / "demo"
 APP = DEMO / "baling-press.xlsx"
@@ -122,8 +123,8 @@ def test_a_derived_displacement_that_is_not_positive_is_refused_as_such(tmp_path
 def test_the_fit_refuses_non_finite_terms_before_lapack_sees_them() -> None:
     # numpy's lstsq hands NaN to LAPACK, which prints "On entry to DLASCL parameter number 4 had an
     # illegal value" on standard output; the fit refuses first (a ModelError names the fit).
-    with pytest.raises(losses.ModelError, match="too large or too small"):
-        losses._lstsq([np.array([1.0, np.inf, 2.0]), np.ones(3)], np.array([1.0, 2.0, 3.0]), "flow")
+    with pytest.raises(ModelError, match="too large or too small"):
+        least_squares([np.array([1.0, np.inf, 2.0]), np.ones(3)], np.array([1.0, 2.0, 3.0]), "flow")
 
 
 def test_a_drive_speed_typed_in_rev_s_is_echoed_as_typed(tmp_path: Path) -> None:

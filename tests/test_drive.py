@@ -13,8 +13,8 @@ from hypothesis import strategies as st
 from hypothesis.extra import numpy as hnp
 
 from sheetpump.catalogue import CATALOGUE
+from sheetpump.errors import PhysicsError
 from sheetpump.physics import drive
-from sheetpump.physics.pump import PhysicsError
 from sheetpump.units import POWER, to_si
 
 REF = pint.UnitRegistry()  # outside reference for conversions, not sheetpump's registry

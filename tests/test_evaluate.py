@@ -26,7 +26,7 @@ from sheetpump import SAFETY_CAUTION
 from sheetpump.cli import main
 from sheetpump.files import sha256
 from sheetpump.physics import fluid
-from sheetpump.physics.losses import WilsonModel
+from sheetpump.physics.wilson import WilsonModel
 
 try:  # tests/ may or may not be a package; both layouts work
     from tests import libreoffice as lo
@@ -244,7 +244,7 @@ def test_libreoffice_recomputes_the_stored_values(evaluated: dict) -> None:
     # rel 1e-9: two engines evaluating the same formulas on the same stored inputs agree to round-off.
     # abs 1e-8: LibreOffice returns 0 for a difference below about 2^-48 of its operands (its
     # approximate subtraction; from memory), as in "derived less nominal" on this noiseless table; over
-    # the uncertainty's floor of 1e-6 of the displacement (losses.UNCERTAINTY_FLOOR) the "× std. unc."
+    # the uncertainty's floor of 1e-6 of the displacement (displacement.UNCERTAINTY_FLOOR) the "× std. unc."
     # ratio of such a difference is at most 2^-48/1e-6 = 3.6e-9.
     for (sheet, ref), value in got.items():
         assert value == pytest.approx(stored[sheet][ref].value, rel=1e-9, abs=1e-8), (sheet, ref)

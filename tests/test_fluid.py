@@ -18,8 +18,8 @@ from hypothesis import strategies as st
 
 from sheetpump.catalogue import CATALOGUE
 from sheetpump.declarations import ERROR_PREFIX
+from sheetpump.errors import PhysicsError
 from sheetpump.physics import fluid
-from sheetpump.physics.pump import PhysicsError
 
 MM2 = 1e-6  # m²/s per mm²/s (cSt)
 C0 = 273.15

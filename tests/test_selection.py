@@ -23,7 +23,7 @@ from sheetpump.checks import check
 from sheetpump.cli import main
 from sheetpump.duty import Application, Duty, Oil
 from sheetpump.errors import InputError
-from sheetpump.physics.losses import WilsonModel
+from sheetpump.physics.wilson import WilsonModel
 from sheetpump.selection import motor_speeds, select
 from sheetpump.workbooks.size_series import read_size_series, write_series_template
 

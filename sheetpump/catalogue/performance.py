@@ -4,13 +4,14 @@ A table is given as ranges of one length (one row per measured point): speed, pr
 torque and the oil's dynamic viscosity (a single cell for the whole table is fine). The prediction
 functions fit Wilson's loss model to the table (or interpolate the measured efficiencies in pressure
 where the table is too small) and return the value at the asked speed, pressure and viscosity, which
-may be ranges too. The formulas live in :mod:`sheetpump.physics.losses`.
+may be ranges too. The formulas live in :mod:`sheetpump.physics.displacement` (the derived displacement) and
+:mod:`sheetpump.physics.prediction` (the predictions), one written-out function per cell function.
 """
 
 from __future__ import annotations
 
 from ..declarations import Arg, Calculation
-from ..physics import losses
+from ..physics import displacement, prediction
 from ..units import DISPLACEMENT, DYN_VISCOSITY, EFFICIENCY, FLOW, NUMBER, POWER, PRESSURE, SPEED, TORQUE
 from . import CATALOGUE
 
@@ -39,35 +40,35 @@ _AT = (_SPEEDS, _PRESSURES, _FLOWS, _TORQUES, 28, 28, 1800, 200, 28)
 declare = CATALOGUE.declare
 
 declare(Calculation(
-    "SP_DERIVED_DISPLACEMENT", losses.derived_displacement_value, (_N, _P, _Q, _MAXP), DISPLACEMENT,
+    "SP_DERIVED_DISPLACEMENT", displacement.derived_displacement_value, (_N, _P, _Q, _MAXP), DISPLACEMENT,
     "Displacement derived from flow at two or more speeds at low pressure (slope of flow on speed, "
     "extrapolated to zero pressure; ISO 8426 idea).",
     example=(_SPEEDS, _PRESSURES, _FLOWS)))
 declare(Calculation(
-    "SP_DERIVED_DISPLACEMENT_U", losses.derived_displacement_uncertainty, (_N, _P, _Q, _MAXP), DISPLACEMENT,
+    "SP_DERIVED_DISPLACEMENT_U", displacement.derived_displacement_uncertainty, (_N, _P, _Q, _MAXP), DISPLACEMENT,
     "Standard uncertainty of SP_DERIVED_DISPLACEMENT (from the least-squares fit).",
     example=(_SPEEDS, _PRESSURES, _FLOWS)))
 declare(Calculation(
-    "SP_PREDICT_FLOW", losses.predicted_flow, _TABLE, FLOW,
+    "SP_PREDICT_FLOW", prediction.predicted_flow, _TABLE, FLOW,
     "Delivered flow at a speed, pressure and viscosity:" + _FIT,
     example=_AT))
 declare(Calculation(
-    "SP_PREDICT_TORQUE", losses.predicted_torque, _TABLE, TORQUE,
+    "SP_PREDICT_TORQUE", prediction.predicted_torque, _TABLE, TORQUE,
     "Input torque at a speed, pressure and viscosity:" + _FIT,
     example=_AT))
 declare(Calculation(
-    "SP_PREDICT_INPUT_POWER", losses.predicted_input_power, _TABLE, POWER,
+    "SP_PREDICT_INPUT_POWER", prediction.predicted_input_power, _TABLE, POWER,
     "Input power at a speed, pressure and viscosity:" + _FIT,
     example=_AT))
 declare(Calculation(
-    "SP_PREDICT_VOL_EFF", losses.predicted_volumetric_efficiency, _TABLE, EFFICIENCY,
+    "SP_PREDICT_VOL_EFF", prediction.predicted_volumetric_efficiency, _TABLE, EFFICIENCY,
     "Volumetric efficiency at a speed, pressure and viscosity:" + _FIT,
     example=_AT))
 declare(Calculation(
-    "SP_PREDICT_TOTAL_EFF", losses.predicted_total_efficiency, _TABLE, EFFICIENCY,
+    "SP_PREDICT_TOTAL_EFF", prediction.predicted_total_efficiency, _TABLE, EFFICIENCY,
     "Total efficiency at a speed, pressure and viscosity:" + _FIT,
     example=_AT))
 declare(Calculation(
-    "SP_PREDICT_EXTRAPOLATED", losses.predicted_extrapolated, _TABLE, NUMBER,
+    "SP_PREDICT_EXTRAPOLATED", prediction.predicted_extrapolated, _TABLE, NUMBER,
     "1 where the asked speed, pressure or viscosity lies outside the measured table, else 0.",
     example=(*_AT[:6], 2500, 200, 28)))

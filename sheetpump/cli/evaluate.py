@@ -26,11 +26,10 @@ import numpy as np
 
 from .. import SAFETY_CAUTION
 from ..duty import Oil
-from ..errors import InputError, Where
+from ..errors import InputError, PhysicsError, Where, as_input_error
 from ..files import check_outputs
 from ..physics import fluid
-from ..physics.losses import FLAG_TEXT
-from ..physics.pump import PhysicsError
+from ..physics.measured import FLAG_TEXT
 from ..units import (
     DENSITY,
     DISPLACEMENT,
@@ -71,7 +70,7 @@ def _number(value: str | None, name: str) -> float | None:
 
 def oil_from_args(args: argparse.Namespace, density_15: float | None) -> Oil | None:
     """The oil of ``--vg``/``--vi`` or ``--nu40``/``--nu100`` (None when neither is given)."""
-    rho = density_15 if density_15 is not None else 870.0
+    rho = density_15 if density_15 is not None else fluid.MINERAL_OIL_DENSITY_15
     grade, vi = _number(args.vg, "--vg"), _number(args.vi, "--vi")
     nu40 = _option(args.nu40, VISCOSITY, "--nu40")
     nu100 = _option(args.nu100, VISCOSITY, "--nu100")
@@ -90,8 +89,7 @@ def oil_from_args(args: argparse.Namespace, density_15: float | None) -> Oil | N
             fluid.walther_coefficients(nu40, fluid.T40, nu100, fluid.T100)  # refuse an impossible pair now
             return Oil(nu40, fluid.T40, nu100, fluid.T100, density_15=rho)
     except PhysicsError as exc:
-        raise InputError(f"the oil: {exc.argument} {exc.reason}", Where(field="--vg" if grade is not None
-                                                                         else "--nu40")) from None
+        raise as_input_error(exc, Where(field="--vg" if grade is not None else "--nu40"), "the oil") from None
     if vi is not None:
         raise InputError("--vi without --vg", Where(field="--vi"), "e.g. --vg 46 --vi 100")
     return None
@@ -319,7 +317,8 @@ def register(sub: argparse._SubParsersAction) -> argparse.ArgumentParser:
     oil.add_argument("--nu40", metavar="VALUE", help="viscosity at 40 °C, e.g. '46 cSt' (with --nu100)")
     oil.add_argument("--nu100", metavar="VALUE", help="viscosity at 100 °C, e.g. '6.8 cSt'")
     oil.add_argument("--density", metavar="VALUE",
-                     help="oil density at 15 °C, e.g. '870 kg/m^3' (default 870 kg/m³, mineral oil)")
+                     help=f"oil density at 15 °C, e.g. '870 kg/m^3' (default {fluid.MINERAL_OIL_DENSITY_15:g} kg/m³, "
+                          "mineral oil)")
     table = parser.add_argument_group("whole-table values", "for a table without the column")
     table.add_argument("--speed", metavar="VALUE", help="speed of every point, e.g. '1500 rpm'")
     table.add_argument("--viscosity", metavar="VALUE", help="viscosity of every point, e.g. '32 cSt'")

@@ -47,7 +47,8 @@ from dataclasses import dataclass
 import numpy as np
 from numpy.typing import ArrayLike
 
-from .pump import PhysicsError, efficiency, non_negative, plain, positive
+from ..errors import PhysicsError
+from .validate import non_negative, plain, positive, require_efficiency
 
 __all__ = [
     "HP",
@@ -391,7 +392,7 @@ def electrical_energy(shaft_power: ArrayLike, duration: ArrayLike, motor_efficie
     Definition of efficiency, IEC 60034-2-1 (from memory).
     """
     eta = np.asarray(motor_efficiency, dtype=float)
-    efficiency(eta if eta.ndim else float(eta), "motor_efficiency")
+    require_efficiency(eta if eta.ndim else float(eta), "motor_efficiency")
     p, t, ax = _segments(shaft_power, duration, axis, "shaft_power")
     if axis is None:
         if eta.size not in (1, p.size):
@@ -449,7 +450,7 @@ def motor_input_power(shaft_power: ArrayLike, rated_power: ArrayLike,
     eta = np.asarray(full_load_efficiency, dtype=float)
     non_negative(p, "shaft_power")
     positive(rated, "rated_power")
-    efficiency(eta if eta.ndim else float(eta), "full_load_efficiency")
+    require_efficiency(eta if eta.ndim else float(eta), "full_load_efficiency")
     losses = rated * (1.0 / eta - 1.0)
     constant = PART_LOAD_CONSTANT_SHARE * losses
     x = p / rated

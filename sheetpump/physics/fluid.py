@@ -18,10 +18,11 @@ from __future__ import annotations
 import numpy as np
 from numpy.typing import ArrayLike
 
-from .pump import plain, positive, require
+from .validate import plain, positive, require
 
 __all__ = [
     "ISO_VG_GRADES",
+    "MINERAL_OIL_DENSITY_15",
     "MINERAL_OIL_EXPANSION",
     "T40",
     "T100",
@@ -571,6 +572,10 @@ def vg_viscosity(grade: Number, vi: Number, temperature: Number) -> Number:
     nu40, t40, nu100, t100 = oil_points_from_grade(grade, vi)
     return viscosity_at(temperature, nu40, t40, nu100, t100)
 
+
+#: Density of mineral hydraulic oil at 15 °C [kg/m³], assumed where none is given: HM/HLP oils of ISO VG
+#: 32 to 68 lie between about 860 and 880 kg/m³ (common practice).
+MINERAL_OIL_DENSITY_15 = 870.0
 
 #: Volumetric thermal expansion of mineral hydraulic oil [1/K]: common practice (hydraulics handbooks
 #: give 6.5e-4 to 7e-4 1/K; from memory). Give the supplier's value where known.

@@ -21,10 +21,10 @@ from __future__ import annotations
 import math
 
 import numpy as np
-from numpy.typing import ArrayLike
+
+from .validate import non_negative, positive, require, require_efficiency
 
 __all__ = [
-    "PhysicsError",
     "displacement_for_flow",
     "drive_torque",
     "effective_flow",
@@ -43,68 +43,6 @@ __all__ = [
 TWO_PI = 2.0 * math.pi
 
 Number = float | np.ndarray
-
-
-class PhysicsError(ValueError):
-    """A physically meaningless argument (negative displacement, efficiency outside (0, 1], ...).
-
-    ``argument`` names the offending parameter so a cell can say which one.
-    """
-
-    def __init__(self, argument: str, message: str) -> None:
-        super().__init__(f"{argument} {message}")
-        self.argument = argument
-        self.reason = message
-
-
-def require(ok: bool | np.ndarray, argument: str, message: str) -> None:
-    """Raise :class:`PhysicsError` for ``argument`` with ``message`` unless ``ok`` holds everywhere."""
-    # Fast path for Python scalars: a comparison of floats gives a bool.
-    if ok is True:
-        return
-    if ok is False or not np.all(ok):
-        raise PhysicsError(argument, message)
-
-
-def plain(x: ArrayLike) -> float | np.ndarray:
-    """A result as callers want it: a plain float for a scalar (numpy gives 0-d arrays or numpy floats),
-    the array itself otherwise."""
-    return float(x) if np.ndim(x) == 0 else x
-
-
-def _lowest(x: ArrayLike) -> float:
-    # One read pass and no temporary array: the validators run on every call, arrays of 1e6 included.
-    return x.min() if isinstance(x, np.ndarray) and x.size else (float(np.min(x)) if np.size(x) else math.inf)
-
-
-def positive(x: ArrayLike, argument: str) -> None:
-    """Raise :class:`PhysicsError` unless every element of ``x`` is > 0."""
-    if type(x) is float or type(x) is int:
-        if x > 0:
-            return
-    elif _lowest(x) > 0:
-        return
-    raise PhysicsError(argument, "must be greater than zero")
-
-
-def non_negative(x: ArrayLike, argument: str) -> None:
-    """Raise :class:`PhysicsError` unless every element of ``x`` is >= 0."""
-    if type(x) is float or type(x) is int:
-        if x >= 0:
-            return
-    elif _lowest(x) >= 0:
-        return
-    raise PhysicsError(argument, "must not be negative")
-
-
-def efficiency(x: ArrayLike, argument: str) -> None:
-    """Raise :class:`PhysicsError` unless every element of ``x`` lies in (0, 1]."""
-    if type(x) is float or type(x) is int:
-        if 0 < x <= 1:
-            return
-    elif not np.size(x) or (_lowest(x) > 0 and np.max(x) <= 1):
-        return
-    raise PhysicsError(argument, "must lie in (0, 1]; write 92 % as 0.92")
 
 
 def geometric_flow(displacement: Number, speed: Number) -> Number:
@@ -170,7 +108,7 @@ def effective_flow(displacement: Number, speed: Number, volumetric_efficiency: N
     ----------
     ISO 4391; Merritt (1967), ch. 5.
     """
-    efficiency(volumetric_efficiency, "volumetric_efficiency")
+    require_efficiency(volumetric_efficiency, "volumetric_efficiency")
     return geometric_flow(displacement, speed) * volumetric_efficiency
 
 
@@ -206,7 +144,7 @@ def displacement_for_flow(flow: Number, speed: Number, volumetric_efficiency: Nu
     """
     non_negative(flow, "flow")
     positive(speed, "speed")
-    efficiency(volumetric_efficiency, "volumetric_efficiency")
+    require_efficiency(volumetric_efficiency, "volumetric_efficiency")
     return flow / (speed * volumetric_efficiency)
 
 
@@ -240,7 +178,7 @@ def speed_for_flow(flow: Number, displacement: Number, volumetric_efficiency: Nu
     """
     non_negative(flow, "flow")
     positive(displacement, "displacement")
-    efficiency(volumetric_efficiency, "volumetric_efficiency")
+    require_efficiency(volumetric_efficiency, "volumetric_efficiency")
     return flow / (displacement * volumetric_efficiency)
 
 
@@ -313,7 +251,7 @@ def drive_torque(displacement: Number, pressure: Number, hydromechanical_efficie
     """
     non_negative(displacement, "displacement")
     non_negative(pressure, "pressure")
-    efficiency(hydromechanical_efficiency, "hydromechanical_efficiency")
+    require_efficiency(hydromechanical_efficiency, "hydromechanical_efficiency")
     return displacement * pressure / (TWO_PI * hydromechanical_efficiency)
 
 
@@ -380,7 +318,7 @@ def input_power(pressure: Number, flow: Number, total_efficiency: Number) -> Num
     ----------
     ISO 4391; ISO 4409.
     """
-    efficiency(total_efficiency, "total_efficiency")
+    require_efficiency(total_efficiency, "total_efficiency")
     return hydraulic_power(pressure, flow) / total_efficiency
 
 

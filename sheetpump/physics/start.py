@@ -25,8 +25,9 @@ from __future__ import annotations
 
 import math
 
+from ..errors import PhysicsError
 from .drive import HP
-from .pump import PhysicsError, positive
+from .validate import positive
 
 __all__ = [
     "IEC_DESIGN_N_LOCKED_ROTOR",

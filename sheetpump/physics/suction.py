@@ -39,7 +39,8 @@ from functools import lru_cache
 import numpy as np
 from numpy.typing import ArrayLike
 
-from .pump import PhysicsError, non_negative, plain, positive
+from ..errors import PhysicsError
+from .validate import non_negative, plain, positive
 
 __all__ = [
     "FITTINGS",

@@ -36,7 +36,7 @@ from xlsxwriter.utility import xl_rowcol_to_cell
 
 from .. import SAFETY_CAUTION, __version__
 from ..evaluation import TABLE_FLAG_TEXT, Evaluation, all_notes, coefficients
-from ..physics.losses import FLAG_TEXT
+from ..physics.measured import FLAG_TEXT
 from ..units import (
     DISPLACEMENT,
     DYN_VISCOSITY,

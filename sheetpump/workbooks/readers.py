@@ -35,7 +35,8 @@ import numpy as np
 from ..codes import cleanliness_parts, rotation_word
 from ..datasheet import Datasheet, PerformanceTable
 from ..duty import Application, Duty, Oil
-from ..errors import InputError, Where
+from ..errors import InputError, PhysicsError, Where, as_input_error
+from ..physics.fluid import MINERAL_OIL_DENSITY_15
 from ..suction import line_from_fields
 from ..units import Kind, check_span, physical_unit, split_number, unit_factor
 from .safe import holds_formulas, open_workbook
@@ -848,7 +849,7 @@ _APP_ATTRS = {
 def _oil(got: dict[str, Any], w: Callable[[str], Where]) -> Oil:
     grade, vi = got["oil_grade"], got["oil_viscosity_index"]
     points = [got[k] for k in ("oil_viscosity_1", "oil_temperature_1", "oil_viscosity_2", "oil_temperature_2")]
-    density = got["oil_density"] if got["oil_density"] is not None else 870.0
+    density = got["oil_density"] if got["oil_density"] is not None else MINERAL_OIL_DENSITY_15
     name = got["oil_name"] or ""
     if grade is not None:
         if any(p is not None for p in points):
@@ -856,12 +857,11 @@ def _oil(got: dict[str, Any], w: Callable[[str], Where]) -> Oil:
         if vi is None:
             raise InputError("an ISO VG grade needs its viscosity index", w("oil_viscosity_index"))
         from ..physics.fluid import oil_points_from_grade
-        from ..physics.pump import PhysicsError
 
         try:
             nu1, t1, nu2, t2 = oil_points_from_grade(int(grade), vi)
         except PhysicsError as exc:
-            raise InputError(str(exc), w("oil_viscosity_index")) from None
+            raise as_input_error(exc, w("oil_viscosity_index")) from None
         return Oil(float(nu1), float(t1), float(nu2), float(t2), density, int(grade), vi, name)
     if vi is not None:
         raise InputError("a viscosity index is given without its grade", w("oil_grade"))

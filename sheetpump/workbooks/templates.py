@@ -28,6 +28,7 @@ from .. import SAFETY_CAUTION
 from .. import units as u
 from ..codes import ROTATIONS
 from ..errors import InputError
+from ..physics.fluid import MINERAL_OIL_DENSITY_15
 from ..units import Kind
 from .writer import PAPER_SIZES, STYLES, open_book, write_value
 
@@ -223,7 +224,7 @@ APPLICATION_FIELDS: tuple[Field, ...] = (
     _f("Oil", "oil_temperature_1", u.TEMPERATURE, "First temperature (e.g. 40 degC).", check=""),
     _f("Oil", "oil_viscosity_2", u.VISCOSITY, "Viscosity at the second temperature."),
     _f("Oil", "oil_temperature_2", u.TEMPERATURE, "Second temperature (e.g. 100 degC).", check=""),
-    _f("Oil", "oil_density", u.DENSITY, "Density at 15 degC. Empty: 870 kg/m^3."),
+    _f("Oil", "oil_density", u.DENSITY, f"Density at 15 degC. Empty: {MINERAL_OIL_DENSITY_15:g} kg/m^3."),
     _f("Oil", "oil_temperature", u.TEMPERATURE,
        "Oil temperature of duty segments that give none.", check=""),
     _f("Oil", "cold_start_temperature", u.TEMPERATURE, "Lowest oil temperature at a start (cold start).",

@@ -37,7 +37,7 @@ import numpy as np
 
 from sheetpump.cli import main
 from sheetpump.evaluation import evaluate_table
-from sheetpump.physics.losses import WilsonModel
+from sheetpump.physics.wilson import WilsonModel
 from sheetpump.workbooks.measured import read_measured
 
 from .common import compare, row

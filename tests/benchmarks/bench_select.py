@@ -25,7 +25,7 @@ import numpy as np
 from sheetpump.checks import check
 from sheetpump.datasheet import Datasheet, PerformanceTable
 from sheetpump.duty import Application, Duty, Oil
-from sheetpump.physics.losses import WilsonModel
+from sheetpump.physics.wilson import WilsonModel
 from sheetpump.selection import SizeSeries, select
 
 from .common import compare, row
