@@ -72,3 +72,11 @@ class InputError(SheetpumpError):
             **{k: getattr(self.where, k) or where.get(k) for k in ("file", "sheet", "cell", "field")}
         )
         return InputError(self.message, merged, self.hint)
+
+
+class UnsupportedError(Exception):
+    """A workbook uses something outside the columnar subset of :mod:`sheetpump.recalc.columnar`.
+
+    Not an error of the user's: the ``formulas`` engine computes such a workbook instead (and reports
+    what it cannot compute).
+    """
