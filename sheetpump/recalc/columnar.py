@@ -536,7 +536,7 @@ class _Book:
         self.formula_cells: list[list[tuple[int, int]]] = []  # per sheet
 
 
-_FASTCELL_ELEMENT = re.compile(r'<c r="([A-Z]{1,3})([1-9]\d{0,6})"([^>]*?)(?:/>|>(.*?)</c>)', re.S)
+_FAST_CELL_RE = re.compile(r'<c r="([A-Z]{1,3})([1-9]\d{0,6})"([^>]*?)(?:/>|>(.*?)</c>)', re.S)
 
 
 def _cells(text: str) -> Iterator[tuple[int, int, str, str, str]]:
@@ -544,7 +544,7 @@ def _cells(text: str) -> Iterator[tuple[int, int, str, str, str]]:
     if "<sheetData" in text:  # no namespace prefix: try the quick pattern, which wants r= first
         found = []
         matched = 0
-        for m in _FASTCELL_ELEMENT.finditer(text):
+        for m in _FAST_CELL_RE.finditer(text):
             matched += 1
             letters, digits, head, inner = m.groups()
             if not inner:

@@ -38,7 +38,7 @@ from ..duty import Application, Duty, Oil
 from ..errors import InputError, Where
 from ..suction import line_from_fields
 from ..units import Kind, check_span, physical_unit, split_number, unit_factor
-from .refs import CELL_REF, column_letter
+from .refs import CELL_REF, column_letter, split_ref
 from .safe import holds_formulas, open_workbook
 from .templates import (
     APPLICATION_FIELDS,
@@ -140,9 +140,7 @@ class _Book:
                                                   for r in sheet.merged_cells.ranges]
         if not ranges:
             return False
-        from openpyxl.utils.cell import coordinate_to_tuple
-
-        row, col = coordinate_to_tuple(coord.replace("$", ""))
+        row, col = split_ref(coord)
         return any(r0 <= row <= r1 and c0 <= col <= c1 for r0, r1, c0, c1 in ranges)
 
     def value(self, sheet: Any, coord: str, field: str | None = None, *, value_cell: bool = True) -> Any:
