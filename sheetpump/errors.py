@@ -107,3 +107,11 @@ def as_input_error(exc: PhysicsError, where: Where | None = None, context: str =
     if not place.field:
         place = replace(place, field=exc.argument)
     return InputError(f"{context}: {exc}" if context else str(exc), place)
+
+
+class UnsupportedError(Exception):
+    """A workbook uses something outside the columnar subset of :mod:`sheetpump.recalc.columnar`.
+
+    Not an error of the user's: the ``formulas`` engine computes such a workbook instead (and reports
+    what it cannot compute).
+    """

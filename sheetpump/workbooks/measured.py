@@ -42,9 +42,10 @@ import numpy as np
 from .. import units as u
 from ..errors import InputError, Where
 from ..evaluation import MeasuredTable
+from .refs import column_letter
 from .safe import check_file, sheet_members
 from .templates import Column
-from .time_series import column_letter, match_columns, parse_header, read_csv_table, read_xlsx_table
+from .time_series import match_columns, parse_header, read_csv_table, read_xlsx_table
 
 __all__ = ["HEADER_SEARCH_ROWS", "MEASURED_COLUMNS", "read_measured"]
 

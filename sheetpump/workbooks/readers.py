@@ -26,6 +26,7 @@ import functools
 import math
 import os
 import re
+import zipfile
 from collections.abc import Callable, Sequence
 from pathlib import Path
 from typing import Any
@@ -39,6 +40,7 @@ from ..errors import InputError, PhysicsError, Where, as_input_error
 from ..physics.fluid import MINERAL_OIL_DENSITY_15
 from ..suction import line_from_fields
 from ..units import Kind, check_span, physical_unit, split_number, unit_factor
+from .refs import CELL_REF, column_letter, split_ref
 from .safe import holds_formulas, open_workbook
 from .templates import (
     APPLICATION_FIELDS,
@@ -59,7 +61,7 @@ from .templates import (
     Column,
     Field,
 )
-from .time_series import column_letter, match_columns, parse_header, read_series
+from .time_series import match_columns, parse_header, read_series
 
 __all__ = [
     "Book",
@@ -79,7 +81,10 @@ _MAX_ROWS = 20_000  # rows read below the header of a field sheet: one row per f
 MAX_TABLE_ROWS = 100_000
 _EXCEL_ERRORS = ("#NULL!", "#DIV/0!", "#VALUE!", "#REF!", "#NAME?", "#NUM!", "#N/A", "#GETTING_DATA",
                  "#SPILL!", "#CALC!")
-_CELL = re.compile(r"^\$?([A-Za-z]{1,3})\$?([1-9]\d{0,6})$")  # one cell: B11, $B$11
+# What the evaluator may raise on a package it cannot parse besides its InputError: a damaged zip
+# member (zipfile.BadZipFile, OSError), text that is not UTF-8 (ValueError), XML that does not parse
+# (SyntaxError: ElementTree.ParseError), a missing part (KeyError).
+_EVALUATION_ERRORS = (OSError, ValueError, KeyError, SyntaxError, zipfile.BadZipFile)
 
 
 def _is_error_text(value: Any) -> bool:
@@ -129,9 +134,7 @@ class _Book:
                                                   for r in sheet.merged_cells.ranges]
         if not ranges:
             return False
-        from openpyxl.utils.cell import coordinate_to_tuple
-
-        row, col = coordinate_to_tuple(coord.replace("$", ""))
+        row, col = split_ref(coord)
         return any(r0 <= row <= r1 and c0 <= col <= c1 for r0, r1, c0, c1 in ranges)
 
     def value(self, sheet: Any, coord: str, field: str | None = None, *, value_cell: bool = True) -> Any:
@@ -156,11 +159,9 @@ class _Book:
 
     def _evaluate(self, sheet: Any, coord: str, field: str | None, formula: Any) -> Any:
         if self._evaluated is None:
-            try:
-                from ..recalc import evaluate_workbook  # type: ignore[attr-defined]
-            except Exception:  # not installed, or not importable: no evaluation
-                evaluate_workbook = None
-            if evaluate_workbook is None:
+            try:  # imported here: only a workbook with formulas lacking their values needs the engine
+                from ..recalc import evaluate_workbook
+            except ImportError:  # no evaluator importable: the formula is refused below, never read as empty
                 self._evaluated = {}
             else:
                 try:
@@ -169,7 +170,7 @@ class _Book:
                     if exc.where.sheet == sheet.title and exc.where.cell == coord:
                         raise exc.at(field=field) from None  # this very cell: name its field too
                     raise
-                except Exception as exc:  # the evaluator failing is reported as the formula's problem
+                except _EVALUATION_ERRORS as exc:  # a part the evaluator cannot parse: the formula's problem
                     raise InputError(f"the formula {formula} has no stored value and could not be "
                                      f"evaluated ({exc})", self.where(sheet, coord, field),
                                      "open and save the workbook in a spreadsheet program") from None
@@ -203,7 +204,7 @@ class _Book:
         if len(destinations) != 1:
             return None
         title, coord = destinations[0]
-        match = _CELL.match(str(coord))
+        match = CELL_REF.match(str(coord))
         if not match:
             return None
         return title, match.group(1).upper(), int(match.group(2))

@@ -30,6 +30,7 @@ from pathlib import Path
 from typing import Any
 
 from ..errors import InputError, Where
+from .refs import column_number, sheet_parts
 
 __all__ = [
     "MAX_CELLS",
@@ -232,28 +233,11 @@ def open_workbook(path: str | os.PathLike[str], *, data_only: bool = True,
 
 def sheet_members(path: str | os.PathLike[str]) -> dict[str, str]:
     """Map each worksheet's name to its zip member (``xl/worksheets/sheet1.xml``), in workbook order."""
-    from defusedxml import ElementTree
-
-    ns_main = "{http://schemas.openxmlformats.org/spreadsheetml/2006/main}"
-    ns_rel = "{http://schemas.openxmlformats.org/officeDocument/2006/relationships}"
     with zipfile.ZipFile(path) as archive:
-        book = ElementTree.fromstring(archive.read("xl/workbook.xml"))
         try:
-            rels = ElementTree.fromstring(archive.read("xl/_rels/workbook.xml.rels"))
-        except KeyError:
+            return dict(sheet_parts(archive))
+        except KeyError:  # no relationships: no sheet can be found
             return {}
-    targets = {}
-    for rel in rels:
-        target = rel.get("Target", "")
-        target = target.lstrip("/") if target.startswith("/") else "xl/" + target
-        targets[rel.get("Id")] = os.path.normpath(target).replace(os.sep, "/")
-    out = {}
-    sheets = book.find(f"{ns_main}sheets")
-    for sheet in sheets if sheets is not None else ():
-        rid = sheet.get(f"{ns_rel}id")
-        if rid in targets:
-            out[sheet.get("name", "")] = targets[rid]
-    return out
 
 
 #: The start of a formula element (``<f>``, ``<f t="shared" .../>``, ``<x:f>``) in a worksheet's XML.
@@ -283,13 +267,6 @@ _ROW_REF = re.compile(rb'\br="(\d+)"')
 _WIDE_COL = re.compile(rb'c r="([A-Z]{2,3})\d')
 
 
-def _col_index(letters: bytes) -> int:
-    n = 0
-    for ch in letters:
-        n = n * 26 + (ch - 64)
-    return n
-
-
 def check_sheet_extent(path: str | os.PathLike[str], member: str, *, sheet: str = "",
                        max_cells: int = MAX_CELLS) -> tuple[int, int]:
     """Scan a sheet's XML for the last row and column it really holds; refuse a grid over ``max_cells``.
@@ -311,7 +288,7 @@ def check_sheet_extent(path: str | os.PathLike[str], member: str, *, sheet: str 
                 if match:
                     rows = max(rows, int(match.group(1)))
             for letters in set(_WIDE_COL.findall(chunk)):
-                cols = max(cols, _col_index(letters))
+                cols = max(cols, column_number(letters.decode("ascii")))
             tail = chunk[-512:]
     if cols < 26:
         cols = 26  # single-letter columns are not scanned; count them all

@@ -30,6 +30,7 @@ from ..datasheet import Datasheet, PerformanceTable
 from ..errors import InputError, Where
 from ..selection import SizeSeries
 from .readers import Book, check_datasheet_fields, convert, datasheet_from_fields, performance_table, read_table
+from .refs import column_letter
 from .templates import (
     CHOICE,
     DATASHEET_FIELDS,
@@ -41,7 +42,6 @@ from .templates import (
     Field,
     write_top,
 )
-from .time_series import column_letter
 from .writer import open_book, write_value
 
 __all__ = ["SERIES_FIELDS", "SERIES_SHEET", "is_series_workbook", "read_size_series", "write_series_template"]

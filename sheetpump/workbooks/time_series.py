@@ -34,10 +34,11 @@ import numpy as np
 from ..duty import Duty
 from ..errors import InputError, Where
 from ..units import DURATION, Kind, decimal_comma, from_si, outside_span, span_text, unit_factor
+from .refs import column_letter
 from .safe import check_file, check_sheet_extent, sheet_members
 from .templates import SERIES_COLUMNS, Column
 
-__all__ = ["DEFAULT_GAP_FACTOR", "column_letter", "match_columns", "parse_header", "read_csv_table", "read_series",
+__all__ = ["DEFAULT_GAP_FACTOR", "match_columns", "parse_header", "read_csv_table", "read_series",
            "read_xlsx_table"]
 
 #: A step longer than this many median steps is a gap (unless ``max_step`` says otherwise).
@@ -59,16 +60,6 @@ def parse_header(text: Any) -> tuple[str, str | None]:
     if match:
         return " ".join(match.group(1).lower().split()), match.group(2)
     return " ".join(text.lower().split()), None
-
-
-def column_letter(index: int) -> str:
-    """Spreadsheet letters of a 0-based column index: 0 → ``A``, 27 → ``AB``."""
-    letters = ""
-    index += 1
-    while index:
-        index, rem = divmod(index - 1, 26)
-        letters = chr(65 + rem) + letters
-    return letters
 
 
 def match_columns(headers: Sequence[Any], columns: Sequence[Column], *, file: str, sheet: str | None,

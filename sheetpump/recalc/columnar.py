@@ -1,4 +1,4 @@
-"""Fast headless recalculation for the common subset of formulas, a column at a time with numpy.
+"""Recalculation of the common subset of formulas a column at a time with numpy.
 
 :func:`sheetpump.recalc.recalculate` tries this first and falls back to the ``formulas`` engine (the
 correctness reference) whenever the workbook uses anything outside the subset. The subset:
@@ -26,7 +26,7 @@ redone cell by cell with the engine's own rules, so results and error texts are 
 >>> _parse('FROBNICATE(A1)', 1, 1)
 Traceback (most recent call last):
 ...
-sheetpump.recalc_fast.UnsupportedError: function FROBNICATE
+sheetpump.errors.UnsupportedError: function FROBNICATE
 """
 
 from __future__ import annotations
@@ -42,34 +42,30 @@ from typing import Any
 
 import numpy as np
 
-from .catalogue import CATALOGUE
-from .declarations import Calculation
-from .errors import InputError
-from .recalc import (
-    _CELL_RE,
-    _F_RE,
-    CellError,
-    Recalculation,
-    _attrs,
-    _book_sheets,
-    _cached_strings,
-    _cell_ref,
-    _split_ref,
-    _stored_value,
+from ..catalogue import CATALOGUE
+from ..declarations import Calculation
+from ..errors import InputError, UnsupportedError
+from ..workbooks.refs import (
+    CELL_ELEMENT,
+    FORMULA_ELEMENT,
+    MAX_COL,
+    MAX_ROW,
+    attributes,
+    cell_name,
+    cell_ref_attribute,
+    column_number,
+    split_ref,
 )
+from .results import CellError, Recalculation
+from .sheets import book_sheets, cached_strings, stored_value
 
-__all__ = ["UnsupportedError", "recalculate_fast"]
+__all__ = ["recalculate_columns"]
 
-_MAX_ROW, _MAX_COL = 1_048_576, 16_384
 _VALUE = CellError("#VALUE!")
 _DIV0 = CellError("#DIV/0!")
 _NUM = CellError("#NUM!")
 _AGGREGATES = {"SUM", "MIN", "MAX", "AVERAGE"}
 _SIMPLE = {"ABS", "SQRT", "ROUND", "IF"}
-
-
-class UnsupportedError(Exception):
-    """The workbook uses something outside the fast subset: the engine computes it instead."""
 
 
 # ------------------------------------------------------------------------------------------ parsing
@@ -119,11 +115,9 @@ def _part(text: str, row0: int, col0: int) -> tuple[bool, int, bool, int]:
     """``"$C5"`` at anchor (row0, col0) -> (row absolute, row or offset, column absolute, column or offset)."""
     m = _PART_RE.match(text)
     assert m is not None
-    col = 0
-    for ch in m.group(2).upper():
-        col = col * 26 + ord(ch) - 64
+    col = column_number(m.group(2))
     row = int(m.group(4))
-    if row > _MAX_ROW or col > _MAX_COL:
+    if row > MAX_ROW or col > MAX_COL:
         raise UnsupportedError("reference outside the sheet")
     rabs, cabs = bool(m.group(3)), bool(m.group(1))
     return rabs, row if rabs else row - row0, cabs, col if cabs else col - col0
@@ -259,11 +253,9 @@ def _relative_text(text: str, row0: int, col0: int) -> str | None:
     pieces = _REF_IN_TEXT_RE.split(text)  # text, then ($, letters, $, digits, text) per reference
     for k in range(1, len(pieces), 5):
         cabs, letters, rabs, digits = pieces[k:k + 4]
-        col = _COLUMNS.get(letters)
-        if col is None:
-            col = _COLUMNS[letters] = _split_ref(f"{letters.upper()}1")[1]
+        col = column_number(letters)
         row = int(digits)
-        if row > _MAX_ROW or col > _MAX_COL:
+        if row > MAX_ROW or col > MAX_COL:
             return None
         pieces[k:k + 4] = "\0", f"{rabs}{row if rabs else row - row0}", f"{cabs}{col if cabs else col - col0}", "\0"
     return ",".join(pieces)
@@ -544,16 +536,7 @@ class _Book:
         self.formula_cells: list[list[tuple[int, int]]] = []  # per sheet
 
 
-def _letters(col: int) -> str:
-    out = ""
-    while col:
-        col, rest = divmod(col - 1, 26)
-        out = chr(65 + rest) + out
-    return out
-
-
 _FAST_CELL_RE = re.compile(r'<c r="([A-Z]{1,3})([1-9]\d{0,6})"([^>]*?)(?:/>|>(.*?)</c>)', re.S)
-_COLUMNS: dict[str, int] = {}
 
 
 def _cells(text: str) -> Iterator[tuple[int, int, str, str, str]]:
@@ -566,21 +549,19 @@ def _cells(text: str) -> Iterator[tuple[int, int, str, str, str]]:
             letters, digits, head, inner = m.groups()
             if not inner:
                 continue
-            col = _COLUMNS.get(letters)
-            if col is None:
-                col = _COLUMNS[letters] = _split_ref(f"{letters}1")[1]
+            col = column_number(letters)
             found.append((int(digits), col, letters + digits, head, inner))
         if matched == text.count("<c ") + text.count("<c>") + text.count("<c/>"):  # every cell matched
             yield from found
             return
-    for m in _CELL_RE.finditer(text):
+    for m in CELL_ELEMENT.finditer(text):
         head, inner = m.group(2), m.group(3)
         if not inner:
             continue  # an empty cell (style only)
-        ref = _cell_ref(head)
+        ref = cell_ref_attribute(head)
         if ref is None:
             raise UnsupportedError("a cell without its reference")
-        row, col = _split_ref(ref)
+        row, col = split_ref(ref)
         yield row, col, ref, head, inner
 
 
@@ -588,11 +569,11 @@ def _read(path: Path) -> tuple[Recalculation, _Book, list[_Group]]:
     result = Recalculation(path=path)
     book = _Book()
     with zipfile.ZipFile(path) as archive:
-        sheets = _book_sheets(archive)
+        sheets = book_sheets(archive)
         strings_cache: dict[str, list[str]] = {}
 
         def strings() -> list[str]:
-            return _cached_strings(archive, strings_cache)
+            return cached_strings(archive, strings_cache)
 
         groups: dict[tuple[int, int, str], _Group] = {}
         f_cache: dict[str, dict[str, str]] = {}
@@ -610,7 +591,7 @@ def _read(path: Path) -> tuple[Recalculation, _Book, list[_Group]]:
             for row, col, ref, head, inner in _cells(text):
                 t = _T_ATTR_RE.search(head) if "t" in head else None
                 attrs = {"t": t.group(1)} if t else {}
-                f = _F_RE.search(inner) if "f" in inner else None
+                f = FORMULA_ELEMENT.search(inner) if "f" in inner else None
                 if f is None:
                     if t is None and inner.startswith("<v>") and inner.endswith("</v>"):
                         try:
@@ -618,19 +599,19 @@ def _read(path: Path) -> tuple[Recalculation, _Book, list[_Group]]:
                             continue
                         except ValueError:
                             pass
-                    value = _stored_value(attrs, inner, strings)
+                    value = stored_value(attrs, inner, strings)
                     if value is not None:
                         values[(row, col)] = value
                     continue
                 f_head = f.group(2)
                 f_attrs = f_cache.get(f_head)
                 if f_attrs is None:
-                    f_attrs = f_cache[f_head] = _attrs(f_head) if f_head else {}
+                    f_attrs = f_cache[f_head] = attributes(f_head) if f_head else {}
                 positions.append((row, col))
                 formula = _unescape(f.group(3) or "")
                 kind = f_attrs.get("t", "normal")
                 result.formulas[(sheet.name, ref)] = formula
-                result.stored[(sheet.name, ref)] = _stored_value(attrs, inner, strings)
+                result.stored[(sheet.name, ref)] = stored_value(attrs, inner, strings)
                 if kind == "shared":
                     si = f_attrs.get("si", "")
                     if formula.strip():
@@ -697,7 +678,7 @@ def _span(part: tuple[bool, int, bool, int], rows: tuple[int, int], cols: tuple[
     rabs, r, cabs, c = part
     r1, r2 = (r, r) if rabs else (rows[0] + r, rows[1] + r)
     c1, c2 = (c, c) if cabs else (cols[0] + c, cols[1] + c)
-    if r1 < 1 or c1 < 1 or r2 > _MAX_ROW or c2 > _MAX_COL:
+    if r1 < 1 or c1 < 1 or r2 > MAX_ROW or c2 > MAX_COL:
         raise UnsupportedError("a reference moved outside the sheet")
     return r1, c1, r2, c2
 
@@ -996,7 +977,7 @@ def _plain(value: Any) -> Any:
     return _VALUE
 
 
-def recalculate_fast(path: str | os.PathLike[str]) -> Recalculation | None:
+def recalculate_columns(path: str | os.PathLike[str]) -> Recalculation | None:
     """Compute every formula of a workbook with the fast subset; None when it needs the full engine.
 
     The result is the same :class:`~sheetpump.recalc.Recalculation` as the engine gives (values in
@@ -1030,7 +1011,7 @@ def recalculate_fast(path: str | os.PathLike[str]) -> Recalculation | None:
         for number, name in enumerate(book.names):
             values = book.values[number]
             for row, col in sorted(book.formula_cells[number]):
-                computed[(name, f"{_letters(col)}{row}")] = _plain(values[(row, col)])
+                computed[(name, cell_name(row, col))] = _plain(values[(row, col)])
         result.values = computed
         return result
     except (UnsupportedError, InputError, zipfile.BadZipFile, OSError, KeyError, ValueError, UnicodeDecodeError):

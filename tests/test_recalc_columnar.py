@@ -1,4 +1,4 @@
-"""The fast recalculation path (sheetpump.recalc_fast) against the ``formulas`` engine.
+"""The columnar recalculation path (sheetpump.recalc.columnar) against the ``formulas`` engine.
 
 Outside reference: the ``formulas`` package from PyPI (an Excel formula engine), run through
 ``recalculate(path, engine="formulas")``, is the reference every fast result must equal (to 1e-12
@@ -20,7 +20,7 @@ import pytest
 from sheetpump.catalogue import CATALOGUE
 from sheetpump.cli import main
 from sheetpump.recalc import CellError, recalculate
-from sheetpump.recalc_fast import recalculate_fast
+from sheetpump.recalc.columnar import recalculate_columns
 
 
 def _same(a: Any, b: Any) -> bool:
@@ -30,7 +30,7 @@ def _same(a: Any, b: Any) -> bool:
 
 
 def _assert_same_as_engine(path: Path) -> dict[tuple[str, str], Any]:
-    fast = recalculate_fast(path)
+    fast = recalculate_columns(path)
     assert fast is not None, "the fast path should handle this workbook"
     reference = recalculate(path, engine="formulas")
     assert not reference.problems
@@ -199,7 +199,7 @@ def test_outside_the_subset_goes_to_the_engine(tmp_path: Path, formula: str) -> 
     wb.active["B1"] = formula
     path = tmp_path / "odd.xlsx"
     wb.save(path)
-    assert recalculate_fast(path) is None
+    assert recalculate_columns(path) is None
 
 
 def test_problems_still_reported_as_before(tmp_path: Path, capsys: pytest.CaptureFixture[str]) -> None:
@@ -211,7 +211,7 @@ def test_problems_still_reported_as_before(tmp_path: Path, capsys: pytest.Captur
     ws["D1"] = "=2*3"
     source = tmp_path / "loop.xlsx"
     wb.save(source)
-    assert recalculate_fast(source) is None
+    assert recalculate_columns(source) is None
     result = recalculate(source)
     assert {(p.sheet, p.cell) for p in result.problems} == {("Loop", "A1")}
     assert "circular" in result.problems[0].message
@@ -274,7 +274,8 @@ def test_cell_by_cell_columns_equal_the_engine(tmp_path: Path) -> None:
 
 def test_one_parse_per_relative_formula_gives_the_same_trees() -> None:
     # Self-consistency: the parse shared through the relative text equals a parse of each formula.
-    from sheetpump.recalc_fast import UnsupportedError, _parse, _parse_cached
+    from sheetpump.errors import UnsupportedError
+    from sheetpump.recalc.columnar import _parse, _parse_cached
 
     rng = random.Random(7)
     shapes = ["A{r}*B{r}/600", "MAX(C{r},$D$2)*0.9+Data!C{r}", "Q1!A{r}+1", "'My sheet'!b{r}^2",
