@@ -1,7 +1,7 @@
 """Evaluating a measured performance table: the points, the derived displacement and the loss model.
 
 A test bench's log or a supplier's performance table (:class:`MeasuredTable`, read by
-:func:`sheetpump.workbooks.measured.read_measured`) goes through :func:`evaluate_table`, which
+:func:`sheetpump.workbooks.measured_table.read_measured`) goes through :func:`evaluate_table`, which
 
 1. gives each point its oil viscosity: the table's viscosity column, or the oil's viscosity at the
    point's temperature (ASTM D341 through :mod:`sheetpump.physics.fluid`), and its dynamic viscosity

@@ -8,7 +8,7 @@ import pytest
 from sheetpump import cells
 from sheetpump import units as u
 from sheetpump.errors import InputError, Where
-from sheetpump.workbooks.measured import read_measured
+from sheetpump.workbooks.measured_table import read_measured
 from sheetpump.workbooks.readers import convert
 from sheetpump.workbooks.templates import APPLICATION_FIELDS, DATASHEET_FIELDS
 

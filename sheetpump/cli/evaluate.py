@@ -265,7 +265,7 @@ def summary(r: dict[str, Any], e: Any) -> str:
 def run(args: argparse.Namespace) -> int:
     from ..evaluation import evaluate_table
     from ..workbooks.evaluation_book import write_evaluation
-    from ..workbooks.measured import read_measured
+    from ..workbooks.measured_table import read_measured
 
     displacement = _option(args.displacement, DISPLACEMENT, "--displacement")
     density = _option(args.density, DENSITY, "--density")

@@ -60,6 +60,7 @@ from .writer import (
     PAPER_SIZES,
     PCT,
     SIGNED_PCT,
+    book_styles,
     cell_format,
     column_width,
     display_path,
@@ -212,7 +213,7 @@ def _duty_header(book: Any, sheet: Any, cols: dict[str, np.ndarray], shown: dict
         headers.append(f"max pressure [{u[PRESSURE]}]")
         widths.append(column_width(headers[-1], shown["pressure_max"], number_format(shown["pressure_max"])))
         formats.append(cell_format(book, num_format=number_format(shown["pressure_max"])))
-    write_header(sheet, _DUTY_HEADER_ROW, headers, widths, book.styles["header"])
+    write_header(sheet, _DUTY_HEADER_ROW, headers, widths, book_styles(book)["header"])
     for c, (_key, _h, _k, _n, formula) in enumerate(_DUTY_COLUMNS):
         if formula:
             sheet.write_string(_DUTY_HEADER_ROW, c, headers[c], cell_format(book, "header", "info"))
@@ -324,7 +325,7 @@ def _exact_totals(candidate: Candidate, units: str) -> dict[str, float | None]:
 
 def _duty_sheet(book: Any, name: str, candidate: Candidate, units: str, paper: str) -> _DutySheet:
     """Write one candidate's duty sheet; returns where its rows and totals are (for the summary, the charts)."""
-    f = book.styles
+    f = book_styles(book)
     sheet = book.add_worksheet(name)
     cols, labels, note = _resample(candidate)
     app = candidate.result.application
@@ -532,7 +533,7 @@ def _summary_line(book: Any, sheet: Any, row: int, r: _Row, label_fmt: Any, widt
 
 def _summary(book: Any, comp: Comparison, units: str, duty_refs: list[dict[str, str]], paper: str,
              base: str) -> None:
-    f = book.styles
+    f = book_styles(book)
     sheet = book.add_worksheet("Summary")
     app = comp.application
     cands = comp.candidates
@@ -874,7 +875,8 @@ def _curves_and_charts(book: Any, comp: Comparison, units: str, duties: list[_Du
     row_env = row_req + 2 + len(req_labels) + 1
     env_block = 10
     fmts = [cell_format(book, num_format=x) for x in ("#,##0", PCT, PCT, "#,##0.0")]
-    cs = _CurvesSheet(curves, pu, qu, book.styles["header"], group_fmt, fmts, row_env + env_block * len(cands) + 1)
+    cs = _CurvesSheet(curves, pu, qu, book_styles(book)["header"], group_fmt, fmts,
+                      row_env + env_block * len(cands) + 1)
     eff, vol, flow, lowest = _efficiency_curves(book, cs, cands, duties, n_mean, nu_mean)
     if cands:
         _required_flow(cs, app, req_cols, row_req, flow)
@@ -1041,7 +1043,7 @@ def _motor_ratings(book: Any, sheet: Any, r: int, standard: str, label: Any) -> 
 def _assumptions(book: Any, comp: Comparison, inputs: Sequence[str | os.PathLike[str]], paper: str,
                  base: str) -> None:
     """Write the Assumptions sheet: the caution, the settings, the input files and the motor ratings."""
-    f = book.styles
+    f = book_styles(book)
     sheet = book.add_worksheet("Assumptions")
     app = comp.application
     rows = _assumption_rows(comp)

@@ -20,7 +20,7 @@ from xlsxwriter.utility import xl_rowcol_to_cell
 from .. import SAFETY_CAUTION
 from ..catalogue import CATALOGUE
 from ..declarations import Calculation
-from .writer import open_book, write_formula, write_value
+from .writer import book_styles, open_book, write_formula, write_value
 
 __all__ = ["EXAMPLE_SHEET", "RANGES_SHEET", "write_worked_example"]
 
@@ -66,7 +66,7 @@ def write_worked_example(target: str | os.PathLike[str], store_values: bool = Tr
         values, as a script-written workbook would be, for headless recalculation to fill.
     """
     with open_book(target, title="sheetpump worked example") as book:
-        f = book.styles
+        f = book_styles(book)
         sheet = book.add_worksheet(EXAMPLE_SHEET)
         sheet.write_string(0, 0, "sheetpump cell functions: a worked example on an invented pump", f["title"])
         sheet.write_string(1, 0, SAFETY_CAUTION, f["caution"])

@@ -34,6 +34,7 @@ from .writer import (
     LINE_HEIGHT,
     PCT,
     SIGNED_PCT,
+    book_styles,
     cell_format,
     display_path,
     open_book,
@@ -115,7 +116,7 @@ def _size_values(series: str, cand: Candidate, why: str, mine: bool, disp_unit: 
 
 def _sizes_sheet(book: Any, sel: Selection, units: str, paper: str) -> Any:
     """Write the Sizes sheet: one row per size and series, the proposed sizes marked; returns the sheet."""
-    app, f = sel.application, book.styles
+    app, f = sel.application, book_styles(book)
     disp_unit = "cm^3/rev" if units == "metric" else "in^3/rev"
     power_unit = DISPLAY_UNITS[units][POWER]
     formats, proposed_fmt = _sizes_formats(book, units)
@@ -161,7 +162,7 @@ def _sizes_sheet(book: Any, sel: Selection, units: str, paper: str) -> Any:
 
 def _series_sheet(book: Any, sel: Selection, paper: str, base: str, bold: Any) -> None:
     """Write the Series sheet: per series the proposal, the drive speed and the assumptions."""
-    f = book.styles
+    f = book_styles(book)
     series = book.add_worksheet("Series")
     series.write_string(0, 0, "The proposal of each series", f["title"])
     indented = cell_format(book, "wrap", indent=1)  # never runs into the column on its left
@@ -188,7 +189,7 @@ def _series_sheet(book: Any, sel: Selection, paper: str, base: str, bold: Any) -
 def _assumptions_sheet(book: Any, sel: Selection, inputs: Sequence[str | os.PathLike[str]], paper: str,
                        base: str) -> None:
     """Write the Assumptions sheet: the caution, the settings, the standard motor speeds, the input files."""
-    app, f = sel.application, book.styles
+    app, f = sel.application, book_styles(book)
     notes = book.add_worksheet("Assumptions")
     notes.write_string(0, 0, "Assumptions and inputs", f["title"])
     notes.merge_range(1, 0, 1, 1, SAFETY_CAUTION, f["caution"])

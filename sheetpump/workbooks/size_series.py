@@ -42,7 +42,7 @@ from .templates import (
     Field,
     write_top,
 )
-from .writer import open_book, write_value
+from .writer import book_styles, open_book, write_value
 
 __all__ = ["SERIES_FIELDS", "SERIES_SHEET", "is_series_workbook", "read_size_series", "write_series_template"]
 
@@ -100,7 +100,7 @@ def write_series_template(target: str | os.PathLike[str],
         sheet.set_column(0, 0, 28)
         sheet.set_column(1, 1, 11)
         sheet.set_column(2, 1 + sizes, 14)
-        head = book.styles["header"]
+        head = book_styles(book)["header"]
         sheet.write_string(HEADER_ROW, 0, "field", head)
         sheet.write_string(HEADER_ROW, 1, "unit", head)
         for s in range(sizes):
@@ -119,13 +119,13 @@ def write_series_template(target: str | os.PathLike[str],
             sheet.write_comment(row, 0, need + f.help, {"author": "sheetpump", "x_scale": 2})
             unit, given = values.get(f.key, (None, ()))
             if f.units:
-                sheet.write_string(row, 1, unit or f.units[0], book.styles["input"])
+                sheet.write_string(row, 1, unit or f.units[0], book_styles(book)["input"])
                 sheet.data_validation(row, 1, row, 1, {
                     "validate": "list", "source": list(f.units), "error_type": "warning", "error_title": "unit",
                     "error_message": "Not in the list: any unit of this kind that sheetpump knows is read."})
             elif f.label:
                 sheet.write_string(row, 1, f.label)
-            fmt = text_input if f.kind in (TEXT, CHOICE) else book.styles["input"]
+            fmt = text_input if f.kind in (TEXT, CHOICE) else book_styles(book)["input"]
             for s in range(sizes):
                 write_value(sheet, row, 2 + s, given[s] if s < len(given) else None, fmt)
             if f.choices:
@@ -145,7 +145,7 @@ def write_series_template(target: str | os.PathLike[str],
         for i in range(max(len(table), 40)):
             for c in range(len(columns)):
                 value = table[i][c] if i < len(table) and c < len(table[i]) else None
-                write_value(perf, HEADER_ROW + 1 + i, c, value, book.styles["input"])
+                write_value(perf, HEADER_ROW + 1 + i, c, value, book_styles(book)["input"])
         perf.freeze_panes(HEADER_ROW + 1, 0)
     return Path(target)
 

@@ -30,7 +30,7 @@ from ..codes import ROTATIONS
 from ..errors import InputError
 from ..physics.fluid import MINERAL_OIL_DENSITY_15
 from ..units import Kind
-from .writer import PAPER_SIZES, STYLES, open_book, write_value
+from .writer import PAPER_SIZES, STYLES, book_styles, open_book, write_value
 
 __all__ = [
     "APPLICATION_FIELDS",
@@ -326,10 +326,10 @@ def _top(sheet: Any, book: Any, name: str, width: int) -> None:
 
 def write_top(sheet: Any, book: Any, title: str, instructions: str, width: int) -> None:
     """The three top rows of a sheet to fill in: title, the safety caution, the instructions."""
-    sheet.write_string(0, 0, title, book.styles["title"])
-    sheet.merge_range(1, 0, 1, width - 1, SAFETY_CAUTION, book.styles["caution"])
+    sheet.write_string(0, 0, title, book_styles(book)["title"])
+    sheet.merge_range(1, 0, 1, width - 1, SAFETY_CAUTION, book_styles(book)["caution"])
     sheet.set_row(1, 62)
-    sheet.merge_range(2, 0, 2, width - 1, instructions, book.styles["note"])
+    sheet.merge_range(2, 0, 2, width - 1, instructions, book_styles(book)["note"])
     sheet.set_row(2, 32)
 
 
@@ -344,7 +344,7 @@ def _field_sheet(book: Any, name: str, fields: Sequence[Field],
     sheet.set_column(2, 2, 12)
     sheet.set_column(3, 3, 80)
     for col, word in enumerate(FIELD_HEADER):
-        sheet.write_string(HEADER_ROW, col, word, book.styles["header"])
+        sheet.write_string(HEADER_ROW, col, word, book_styles(book)["header"])
     section_fmt = book.add_format({"bold": True, "italic": True, "top": 1})
     text_input = book.add_format({**STYLES["input"], "num_format": "@"})
     row = HEADER_ROW + 1
@@ -356,7 +356,7 @@ def _field_sheet(book: Any, name: str, fields: Sequence[Field],
             row += 1
         sheet.write_string(row, 0, field.key)
         # Text fields are formatted as text so that "18/16/13" never becomes a date.
-        fmt = text_input if field.kind in (TEXT, CHOICE) else book.styles["input"]
+        fmt = text_input if field.kind in (TEXT, CHOICE) else book_styles(book)["input"]
         value, *unit = (values or {}).get(field.key, (None,))
         write_value(sheet, row, 1, value, fmt)
         book.define_name(f"{NAME_PREFIX[name]}.{field.key}", f"='{name}'!{xl_rowcol_to_cell(row, 1, True, True)}")
@@ -368,14 +368,14 @@ def _field_sheet(book: Any, name: str, fields: Sequence[Field],
                 "error_title": field.key, "error_message": "Choose one of: " + ", ".join(field.choices)})
         units = field.units
         if units:
-            sheet.write_string(row, 2, unit[0] if unit else units[0], book.styles["input"])
+            sheet.write_string(row, 2, unit[0] if unit else units[0], book_styles(book)["input"])
             sheet.data_validation(row, 2, row, 2, {
                 "validate": "list", "source": list(units), "error_type": "warning",
                 "error_title": "unit", "error_message": "Not in the list: any unit of this kind that "
                 "sheetpump knows is read (e.g. " + ", ".join(units) + ")."})
         elif field.label:
             sheet.write_string(row, 2, field.label)
-        sheet.write_string(row, 3, need + field.help, book.styles["note"])
+        sheet.write_string(row, 3, need + field.help, book_styles(book)["note"])
         row += 1
     sheet.freeze_panes(HEADER_ROW + 1, 0)
 
@@ -389,7 +389,7 @@ def _table_sheet(book: Any, name: str, columns: Sequence[Column], rows: int,
     rows = max(rows, len(table))
     for col, column in enumerate(columns):
         header = headers[col] if headers and col < len(headers) else column.header
-        sheet.write_string(HEADER_ROW, col, header, book.styles["header"])
+        sheet.write_string(HEADER_ROW, col, header, book_styles(book)["header"])
         need = "Required. " if column.required else ""
         sheet.write_comment(HEADER_ROW, col, need + column.help, {"author": "sheetpump", "x_scale": 2})
         if column.kind is not None:
@@ -400,7 +400,7 @@ def _table_sheet(book: Any, name: str, columns: Sequence[Column], rows: int,
         for row in range(HEADER_ROW + 1, HEADER_ROW + 1 + rows):
             i = row - HEADER_ROW - 1
             value = table[i][col] if i < len(table) and col < len(table[i]) else None
-            write_value(sheet, row, col, value, book.styles["input"])
+            write_value(sheet, row, col, value, book_styles(book)["input"])
     sheet.freeze_panes(HEADER_ROW + 1, 0)
 
 

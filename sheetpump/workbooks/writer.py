@@ -34,9 +34,9 @@ from ..files import atomic_path
 
 __all__ = [
     "LINE_HEIGHT", "MARKERS", "PALETTE", "PAPER_SIZES", "PCT", "SIGNED_PCT", "STYLES", "VERDICT_FILLS", "as_stored",
-    "cell_format", "column_width", "creation_time", "display_path", "header_footer", "header_footer_parts",
-    "number_format", "open_book", "page_setup", "text_lines", "text_width", "write_formula", "write_header",
-    "write_value",
+    "book_styles", "cell_format", "column_width", "creation_time", "display_path", "header_footer",
+    "header_footer_parts", "number_format", "open_book", "page_setup", "text_lines", "text_width", "write_formula",
+    "write_header", "write_value",
 ]
 
 #: Our own verdict colours (RGB hex), the one definition: the fill of a verdict's cell in every workbook
@@ -102,6 +102,15 @@ def number_format(values: Iterable[Any], digits: int = 3, most: int = 4) -> str:
 
 #: The formats :func:`cell_format` made, per open workbook (kept here, not on XlsxWriter's object).
 _FORMATS: weakref.WeakKeyDictionary[Any, dict[tuple[tuple[str, str], ...], Any]] = weakref.WeakKeyDictionary()
+
+
+#: The formats of :data:`STYLES` of each open workbook, by name (ours, not an attribute on XlsxWriter's object).
+_STYLES: weakref.WeakKeyDictionary[Any, dict[str, Any]] = weakref.WeakKeyDictionary()
+
+
+def book_styles(book: Any) -> dict[str, Any]:
+    """The formats of :data:`STYLES`, by name, of a workbook opened by :func:`open_book`."""
+    return _STYLES[book]
 
 
 def cell_format(book: Any, *styles: str | None, num_format: str | None = None, **extra: Any) -> Any:
@@ -274,7 +283,7 @@ def creation_time() -> _dt.datetime:
 def open_book(target: str | os.PathLike[str], title: str = "") -> Iterator[xlsxwriter.Workbook]:
     """Open an XlsxWriter workbook that lands at ``target`` atomically when the block ends.
 
-    The workbook has a ``styles`` attribute: a dict of :data:`STYLES` names to XlsxWriter formats.
+    Its formats of :data:`STYLES`, by name, are :func:`book_styles` of it.
     """
     with atomic_path(Path(target)) as tmp:
         import xlsxwriter
@@ -285,7 +294,7 @@ def open_book(target: str | os.PathLike[str], title: str = "") -> Iterator[xlsxw
              "nan_inf_to_errors": True},
         )
         book.set_properties({"title": title, "author": "sheetpump", "created": creation_time()})
-        book.styles = {name: book.add_format(spec) for name, spec in STYLES.items()}  # type: ignore[attr-defined]
+        _STYLES[book] = {name: book.add_format(spec) for name, spec in STYLES.items()}
         try:
             yield book
         finally:

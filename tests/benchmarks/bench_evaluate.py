@@ -10,7 +10,7 @@ system's temporary directory (``sheetpump-bench``) and reused.
 
 Rows:
 
-* reading and evaluating the table (:func:`~sheetpump.workbooks.measured.read_measured` then
+* reading and evaluating the table (:func:`~sheetpump.workbooks.measured_table.read_measured` then
   :func:`~sheetpump.evaluation.evaluate_table`: per-point efficiencies, every plausibility flag, the
   derived displacement and Wilson's model fitted to all points) against ``pandas.read_csv`` of the
   same file, which only parses it;
@@ -38,7 +38,7 @@ import numpy as np
 from sheetpump.cli import main
 from sheetpump.evaluation import evaluate_table
 from sheetpump.physics.wilson import WilsonModel
-from sheetpump.workbooks.measured import read_measured
+from sheetpump.workbooks.measured_table import read_measured
 
 from .common import compare, row
 
