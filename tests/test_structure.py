@@ -28,6 +28,7 @@ are not seen; they name no module in the source.
 from __future__ import annotations
 
 import ast
+import importlib
 from collections.abc import Iterator
 from dataclasses import dataclass
 from pathlib import Path
@@ -335,3 +336,39 @@ def test_every_lazy_name_of_workbooks_resolves() -> None:
 
     for name, module in workbooks._LAZY.items():
         assert getattr(workbooks, name) is getattr(importlib.import_module(f"sheetpump.workbooks.{module}"), name)
+
+
+def test_physics_reexports_every_public_name_of_its_modules() -> None:
+    # sheetpump.physics re-exports on first use: each module's __all__, from that module, and no module
+    # of the package left out of the list (a new module must be added to MODULES)
+    import importlib
+
+    import sheetpump.physics as physics
+
+    on_disk = {p.stem for p in (PACKAGE / "physics").glob("*.py") if p.stem != "__init__"}
+    assert set(physics.MODULES) == on_disk
+    for module in physics.MODULES:
+        found = importlib.import_module(f"sheetpump.physics.{module}")
+        for name in found.__all__:
+            assert getattr(physics, name) is getattr(found, name), f"{module}.{name}"
+    with pytest.raises(AttributeError):
+        physics.no_such_function  # noqa: B018
+
+
+def test_every_cell_function_reaches_its_formula_in_one_hop() -> None:
+    # the declaration points at a written-out function of sheetpump.physics (no lambda, partial or
+    # factory-made closure) whose docstring states the formula, so `grep "def <name>"` finds the formula
+    # behind any cell function
+    import inspect
+
+    from sheetpump.catalogue import CATALOGUE
+
+    for name, calc in CATALOGUE.items():
+        func = calc.func
+        assert inspect.isfunction(func), f"{name}: {func!r} is not a plain function"
+        assert func.__module__.startswith("sheetpump.physics."), f"{name}: {func.__module__}"
+        assert func.__qualname__ == func.__name__ != "<lambda>", f"{name}: {func.__qualname__}"
+        module = importlib.import_module(func.__module__)
+        assert getattr(module, func.__name__) is func, f"{name}: not the module's {func.__name__}"
+        assert f"def {func.__name__}(" in inspect.getsource(module), name
+        assert (func.__doc__ and ".. math::" in func.__doc__) or "=" in (func.__doc__ or ""), name

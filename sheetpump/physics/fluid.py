@@ -173,7 +173,12 @@ def viscosity_at(temperature: Number, nu1: Number, t1: Number, nu2: Number, t2: 
 
 
 def viscosity_from_points(nu1: Number, t1: Number, nu2: Number, t2: Number, temperature: Number) -> Number:
-    """:func:`viscosity_at` with the two known points first (the argument order of a cell).
+    r"""Kinematic viscosity at a temperature from two known points (ASTM D341), points first.
+
+    .. math:: \nu = 10^{10^{A - B \log_{10} T}} - 0.7
+
+    with ν in mm²/s, T in K and A, B the Walther line through (T1, ν1) and (T2, ν2)
+    (:func:`walther_coefficients`): :func:`viscosity_at` in the argument order of a cell.
 
     Parameters
     ----------
@@ -538,10 +543,14 @@ def oil_points_from_grade(grade: Number, vi: Number) -> tuple[Number, float, Num
 
 
 def vg_viscosity(grade: Number, vi: Number, temperature: Number) -> Number:
-    """Kinematic viscosity at a temperature of an ISO VG oil of a given viscosity index.
+    r"""Kinematic viscosity at a temperature of an ISO VG oil of a given viscosity index.
+
+    .. math:: \nu_{40} = \mathrm{VG}, \qquad \nu_{100} = \nu_{100}(\nu_{40}, \mathrm{VI}), \qquad
+              \nu = 10^{10^{A - B \log_{10} T}} - 0.7
 
     The oil is taken at its grade's mid-point at 40 °C (ISO 3448), ν100 follows from the viscosity index
-    (ASTM D2270), and ASTM D341 gives the viscosity at the temperature.
+    (ASTM D2270, :func:`oil_points_from_grade`), and the ASTM D341 line through the two points
+    (:func:`viscosity_at`) gives the viscosity at the temperature (ν in mm²/s, T in K).
 
     Parameters
     ----------

@@ -1,11 +1,15 @@
 """Workbooks: the templates a user fills in, their readers, and the workbooks sheetpump writes.
 
+* :mod:`.refs` — cell references, column letters and the sheet-XML pieces, in one place;
+* :mod:`.safe` — the one guarded way every reader opens a file;
 * :mod:`.templates` — the datasheet and application formats, declared once, and the blank templates;
 * :mod:`.readers` — ``read_datasheet`` and ``read_application`` (SI dataclasses that remember each
   value's file, sheet and cell);
 * :mod:`.time_series` — ``read_series``: a measured time series (CSV or xlsx) as a duty;
-* :mod:`.safe` — the one guarded way every reader opens a file;
-* :mod:`.writer` and the modules built on it — the workbooks sheetpump writes (XlsxWriter).
+* :mod:`.size_series` — a supplier's series of sizes: its blank template and its reader;
+* :mod:`.measured_table` — a measured performance table (CSV or a sheet);
+* :mod:`.writer` and the ``*_book`` modules built on it — the workbooks sheetpump writes (XlsxWriter);
+  :mod:`.example` — the worked example.
 
 The readers are imported on first use, so ``import sheetpump.workbooks`` stays cheap.
 """
