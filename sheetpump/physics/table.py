@@ -66,7 +66,7 @@ def levels(x: np.ndarray, rel: float = LEVEL_TOLERANCE) -> tuple[np.ndarray, int
 
 
 def count_levels(x: np.ndarray) -> int:
-    """How many levels ``x`` takes (:func:`_levels`), at least 2 where its values spread wider than the
+    """How many levels ``x`` takes (:func:`levels`), at least 2 where its values spread wider than the
     level tolerance: a continuous sweep or a densely logged table chains into one level, yet varies."""
     _, count = levels(x)
     if count == 1 and float(x.max() - x.min()) > LEVEL_TOLERANCE * float(np.abs(x).max()):
