@@ -141,7 +141,8 @@ def fit_performance(
 
     Tries :func:`fit_wilson`; where the table has fewer points than coefficients + 1, a single
     pressure, or terms that cannot be separated, falls back to :func:`interpolate_performance` and
-    says so in ``notes``. Bad values (negative flow, ...) still raise :class:`PhysicsError`.
+    says so in ``notes``. Bad values (negative flow, ...) still raise
+    :class:`~sheetpump.errors.PhysicsError`.
 
     Parameters
     ----------

@@ -212,7 +212,8 @@ def fit_wilson(
     viscosity : array
         Dynamic viscosity μ of the oil at each point [Pa·s] (a single value for the whole table).
     displacement : float, optional
-        Displacement V [m³/rev]; default the derived displacement (:func:`derived_displacement`).
+        Displacement V [m³/rev]; default the derived displacement
+        (:func:`~sheetpump.physics.displacement.derived_displacement`).
 
     Returns
     -------

@@ -14,7 +14,8 @@ Three things the engine does quietly are made loud:
 * a circular reference is cut by the engine (never looped on) and reported with its cells;
 * a formula in an ordinary cell whose result is a range would keep only its first element: it spills
   instead, as a dynamic array does in Excel 365 (see :func:`recalculate_with_engine`), or, when its
-  range is not empty, shows a ``#SPILL!`` text naming the cell in the way (:attr:`Recalculation.blocked`).
+  range is not empty, shows a ``#SPILL!`` text naming the cell in the way
+  (:attr:`~sheetpump.recalc.results.Recalculation.blocked`).
 """
 
 from __future__ import annotations

@@ -76,7 +76,7 @@ class Difference:
 
 @dataclass
 class Recalculation:
-    """What :func:`recalculate` found.
+    """What :func:`~sheetpump.recalc.recalculate` found.
 
     ``values`` holds the computed value of every formula cell (and of every cell an array formula
     covers), ``stored`` the value the file held for the same cells (None where it held none),

@@ -191,9 +191,9 @@ def write_values(source: str | os.PathLike[str], target: str | os.PathLike[str],
     Every package part other than the worksheets that get values is copied unchanged; in those, each
     listed cell gets its ``<v>`` (and type) set, its formula kept; cells an array formula covers that
     the file lacks are added. A formula of ``spills`` (``(sheet, cell) -> range``, as
-    :attr:`Recalculation.spills`) is written as an array formula over its range, so that every
-    spreadsheet program, and a later ``recalc``, sees the same spilled range; the cells it spills into
-    get their values and no formula.
+    :attr:`~sheetpump.recalc.results.Recalculation.spills`) is written as an array formula over its
+    range, so that every spreadsheet program, and a later ``recalc``, sees the same spilled range; the
+    cells it spills into get their values and no formula.
     """
     source, target = Path(source), Path(target)
     check_outputs([(None, target)], [("the workbook", source)])
