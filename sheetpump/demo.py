@@ -7,13 +7,17 @@ loss models with invented coefficients, rounded as a printed datasheet would rou
 
 What the demo is meant to show:
 
-* **Marrow & Tepp MT-G28** — measured at three speeds and two oil viscosities: passes.
+* **Marrow & Tepp MT-G28** — measured at three speeds and two oil viscosities: every duty pressure
+  is within its ratings, but it warns: the press's 250 bar relief setting is above its 230 bar
+  continuous rating, where a stalled press would hold it. Ranked first on cost.
 * **Quillfeather QF-175** (inch-pound datasheet) — its intermittent rating allows only 10 % of the
   cycle above continuous pressure; the press spends 17.5 % there, so it fails although every
-  pressure is inside its intermittent rating.
+  pressure is inside its intermittent rating; and at the cold start its inlet is starved.
 * **Orrin Gearworks OG-22** — cheap, but too small: after its leakage it delivers less than the
-  approach stroke needs.
-* **Sandlow SL-32** — passes with room to spare, at a higher price and more energy.
+  fast approach, the compaction and the return need.
+* **Sandlow SL-32** — passes every rating it states, at a higher price and more energy; it warns
+  because its maximum inlet pressure is not stated and its table (one speed, one viscosity) is
+  extrapolated to the duty.
 
 Two invented series for the same press (:data:`SERIES`, one in inch-pound units) show ``sheetpump select``:
 the demo writes the selection of their sizes beside the comparison of the four pumps
