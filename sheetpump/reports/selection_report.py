@@ -7,7 +7,6 @@ with its verdict, worst rule and margin, motor and yearly energy, why it fails o
 from __future__ import annotations
 
 import json
-import math
 import xml.etree.ElementTree as ET
 from typing import Any
 
@@ -17,10 +16,6 @@ from .formatting import finite
 from .junit import junit_caution
 
 __all__ = ["json_selection", "junit_selection", "text_selection"]
-
-
-def _pct(x: float | None) -> str:
-    return "" if x is None or not math.isfinite(x) else f"{x:+.1%}"
 
 
 def text_selection(sel: Selection) -> str:
