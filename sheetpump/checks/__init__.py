@@ -5,9 +5,10 @@ sample of a measured series), so a series of a million samples costs a handful o
 Python loop. Every rule gives one :class:`Finding` for every pump, always: its stable rule id, severity
 (``fail`` / ``warn`` / ``info`` / ``pass``, or ``not checked`` when a value it needs is not stated, with
 the reason and the cell to fill), what was measured, the limit, the margin as a fraction of the limit
-(positive = inside), the worst segment and how many segments are outside, and the cell to fix. A rule
-that matters for the duty (pressure, speed, flow, inlet, viscosity, temperature, torque) and is not
-checked makes the pump's verdict at best ``warn``: a ``pass`` means every rating was proven.
+(of the pump's temperature range for a temperature; positive = inside), the worst segment and how many
+segments are outside, and the cell to fix. A rule that matters for the duty (pressure, speed, flow,
+inlet, viscosity, temperature, torque) and is not checked makes the pump's verdict at best ``warn``: a
+``pass`` means every rating was proven.
 
 The rooms: each rule is a function declared with :func:`~sheetpump.checks.registry.rule` (its id and
 text, hence :data:`RULES`) in the module of its subject: :mod:`~sheetpump.checks.speed`,

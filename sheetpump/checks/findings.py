@@ -67,10 +67,11 @@ class Finding:
     """The outcome of one rule for one pump.
 
     ``measured`` and ``limit`` are SI numbers of ``kind`` (or text, for a cleanliness code or a
-    rotation); ``unit`` is the unit a report shows them in. ``margin`` is a fraction of the limit,
-    positive inside. ``segment`` names the worst segment (or time range or stretch), ``count`` how many
-    segments or samples are outside and ``share`` their share of the cycle time. ``where`` is the
-    datasheet cell the rule rests on, ``app_where`` the application cell (duty row or setting).
+    rotation); ``unit`` is the unit a report shows them in. ``margin`` is a fraction of the limit (for
+    a temperature, of the pump's temperature range where both ends are stated), positive inside.
+    ``segment`` names the worst segment (or time range or stretch), ``count`` how many segments or
+    samples are outside and ``share`` their share of the cycle time. ``where`` is the datasheet cell
+    the rule rests on, ``app_where`` the application cell (duty row or setting).
     """
 
     rule: str
