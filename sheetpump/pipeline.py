@@ -4,7 +4,7 @@ The command line (``check``, ``compare``, ``select``) and the demo all go throug
 same way, refuse the same bad input with the same message, and guard their outputs alike:
 
 1. **read** the application workbook and each datasheet or series workbook (:func:`read_application`,
-   :func:`read_datasheet`, :func:`read_series`; a folder stands for its workbooks,
+   :func:`read_datasheet`, :func:`read_size_series`; a folder stands for its workbooks,
    :func:`read_candidates`), every error naming the file;
 2. **guard** the outputs: none may be an input or another output (:func:`sheetpump.files.check_outputs`,
    with the inputs of :func:`inputs_of`);
@@ -15,6 +15,7 @@ same way, refuse the same bad input with the same message, and guard their outpu
 
 :func:`check_files`, :func:`compare_files` and :func:`select_files` are the three runs; each returns its
 answer and the report text, so a face only prints it and turns the verdicts into an exit code.
+:func:`evaluate_file` is the same way for a measured performance table: read → evaluate → write.
 """
 
 from __future__ import annotations
@@ -32,12 +33,25 @@ from .files import atomic_write, check_outputs
 if TYPE_CHECKING:
     from .comparison import Comparison
     from .datasheet import Datasheet
-    from .duty import Application
+    from .duty import Application, Oil
+    from .evaluation import Evaluation
     from .selection import Selection, SizeSeries
 
 __all__ = [
-    "CheckRun", "SelectRun", "annotate_target", "check_files", "compare_files", "datasheet_paths", "inputs_of",
-    "proposed_sizes", "read_application", "read_candidates", "read_datasheet", "read_series", "select_files",
+    "CheckRun",
+    "SelectRun",
+    "annotate_target",
+    "check_files",
+    "compare_files",
+    "datasheet_paths",
+    "evaluate_file",
+    "inputs_of",
+    "proposed_sizes",
+    "read_application",
+    "read_candidates",
+    "read_datasheet",
+    "read_size_series",
+    "select_files",
 ]
 
 #: A progress display: ``progress(i, total, file name)`` before reading the i-th of ``total`` files, and
@@ -78,11 +92,11 @@ def read_datasheet(path: str) -> Datasheet:
     return _read(readers.read_datasheet, path, "datasheet workbook")
 
 
-def read_series(path: str) -> SizeSeries:
+def read_size_series(path: str) -> SizeSeries:
     """Read one series workbook (a supplier's sizes); errors name the file."""
-    from .workbooks.size_series import read_size_series
+    from .workbooks import size_series
 
-    return _read(read_size_series, path, "series workbook")
+    return _read(size_series.read_size_series, path, "series workbook")
 
 
 def datasheet_paths(items: Sequence[str], app: str | None = None) -> list[str]:
@@ -112,7 +126,7 @@ def read_candidates(paths: Sequence[str], progress: Progress | None = None) -> l
     for i, path in enumerate(paths, start=1):
         if progress:
             progress(i, len(paths), Path(path).name)
-        items.append(read_series(path) if is_series_workbook(path) else read_datasheet(path))
+        items.append(read_size_series(path) if is_series_workbook(path) else read_datasheet(path))
     if progress:
         progress(len(paths), len(paths), "")
     return items
@@ -265,7 +279,7 @@ def select_files(app_path: str, series_paths: Sequence[str], settings: CheckSett
 
     settings = settings or CheckSettings()
     app = read_application(app_path)
-    series = [read_series(path) for path in series_paths]
+    series = [read_size_series(path) for path in series_paths]
     inputs = inputs_of(app, app_path, []) + [("a series workbook", p) for p in series_paths]
     outputs = [("--output", output), ("--junit", junit), ("--report", report)]
     check_outputs([(option, path) for option, path in outputs if path], inputs)
@@ -278,3 +292,43 @@ def select_files(app_path: str, series_paths: Sequence[str], settings: CheckSett
     if report:
         atomic_write(report, text)
     return SelectRun(sel, text)
+
+
+# --------------------------------------------------------------------------------------------------
+# A measured performance table
+
+def evaluate_file(table_path: str, *, sheet: str | None = None, speed: float | None = None,
+                  displacement: float | None = None, oil: Oil | None = None, density_15: float | None = None,
+                  viscosity: float | None = None, output: str | None = None, paper: str = "A4") -> Evaluation:
+    """Read a measured table (CSV or a sheet), evaluate it and write the evaluation workbook if asked.
+
+    Parameters
+    ----------
+    table_path : str
+        The ``.csv`` or ``.xlsx`` holding the table.
+    sheet : str, optional
+        Sheet of a workbook (default the first holding a table).
+    speed, displacement, density_15, viscosity : float, optional
+        Whole-table values in SI: speed [rev/s], nominal displacement [m³/rev], oil density at 15 °C
+        [kg/m³], kinematic viscosity [m²/s]; None where the table (or a default) gives them.
+    oil : Oil, optional
+        The oil, where the table gives temperature instead of viscosity.
+    output : str, optional
+        The evaluation workbook to write (guarded: never the table itself).
+    paper : str
+        ``"A4"`` or ``"Letter"``.
+    """
+    from .evaluation import evaluate_table
+    from .workbooks.evaluation_book import write_evaluation
+    from .workbooks.measured_table import read_measured
+
+    if output:
+        check_outputs([("--output", output)], [("the measured table", table_path)])
+    try:
+        table = read_measured(table_path, sheet=sheet, speed=speed)
+    except OSError as exc:
+        raise InputError(f"cannot read the table ({exc.strerror or exc})", Where(file=table_path)) from None
+    evaluation = evaluate_table(table, displacement, oil=oil, density_15=density_15, viscosity=viscosity)
+    if output:
+        write_evaluation(evaluation, output, source=table_path, paper=paper)
+    return evaluation
