@@ -39,7 +39,6 @@ from .physics import drive
 
 __all__ = ["Candidate", "Comparison", "compare", "compare_results"]
 
-_J_PER_KWH = 3.6e6
 
 
 @dataclass(frozen=True)
@@ -132,7 +131,7 @@ def _candidate(result: CheckResult, app: Application, settings: CheckSettings) -
         per_cycle = math.nan
     cycles_per_year = app.cycles_per_hour * app.hours_per_year
     per_year = per_cycle * cycles_per_year
-    cost_per_year = per_year / _J_PER_KWH * app.energy_price
+    cost_per_year = per_year / drive.J_PER_KWH * app.energy_price
     price = result.datasheet.price
     if price is None:
         notes.append("no price on the datasheet: ranked after the priced candidates")

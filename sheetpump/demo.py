@@ -34,7 +34,6 @@ from dataclasses import dataclass
 from pathlib import Path
 from typing import Any
 
-from . import SAFETY_CAUTION
 from .physics.wilson import WilsonModel
 from .units import FLOW, POWER, PRESSURE, TORQUE, from_si, to_si
 
@@ -170,6 +169,9 @@ PUMPS: tuple[_Pump, ...] = (
 )
 
 
+#: Density of the suppliers' test oil [kg/m³] (invented), turning their tables' viscosities into μ.
+TEST_OIL_DENSITY = 870.0
+
 def _table(pump: _Pump) -> tuple[list[str], list[list[Any]]]:
     """The performance table: header texts and rows, rounded as a printed datasheet would be."""
     u = pump.units
@@ -179,7 +181,7 @@ def _table(pump: _Pump) -> tuple[list[str], list[list[Any]]]:
                f"speed [{u['speed']}]", f"viscosity [{u['viscosity']}]"]
     rows: list[list[Any]] = []
     for nu_cst in pump.viscosities_cst:
-        mu = nu_cst * 1e-6 * 870.0  # the supplier's test oil, 870 kg/m³ (invented)
+        mu = nu_cst * 1e-6 * TEST_OIL_DENSITY
         for n_rpm in pump.speeds_rpm:
             for p in pump.pressures:
                 p_si = float(to_si(f"{p} {u['pressure']}", PRESSURE, "pressure"))
@@ -273,7 +275,7 @@ def _series_table(series: _Series) -> list[list[Any]]:
         for nu_cst in (20.0, 46.0):
             for n_rpm in (1000.0, 1500.0, 2000.0):
                 for p_bar in (10, 50, 100, 150, 200, 250):
-                    pred = wilson.predict(n_rpm / 60.0, p_bar * 1e5, nu_cst * 1e-6 * 870.0)
+                    pred = wilson.predict(n_rpm / 60.0, p_bar * 1e5, nu_cst * 1e-6 * TEST_OIL_DENSITY)
                     rows.append([model, p_bar, round(float(pred.flow) * 60000, 2),
                                  round(float(pred.input_power) / 1000, 2), None, n_rpm, nu_cst])
     return rows
@@ -340,10 +342,7 @@ def run(folder: str | os.PathLike[str] | None = None) -> DemoResult:
     selection = out / "selection.xlsx"
     sel = select_files(str(inputs[0]), [str(p) for p in series_paths], output=selection).selection
     report = out / "report.txt"
-    text = text_report(comp, strict=False)
-    if SAFETY_CAUTION not in text:
-        text += "\n" + SAFETY_CAUTION + "\n"
-    atomic_write(report, text)
+    atomic_write(report, text_report(comp, strict=False))  # the report ends with the caution
     return DemoResult(out, inputs, comparison, report,
                       {c.datasheet.label: c.result.verdict for c in comp.candidates}, selection,
                       {ch.series.name: ch.choice.datasheet.model if ch.choice else None for ch in sel.choices})

@@ -67,9 +67,14 @@ class InputError(SheetpumpError):
         return text
 
     def at(self, **where: str | None) -> InputError:
-        """Return this error with the missing parts of its place filled in."""
+        """Return this error with the missing parts of its place filled in (its note kept).
+
+        >>> e = InputError("must be positive", Where(cell="C5", note="typed as 12.5 psia"))
+        >>> str(e.at(file="pump.xlsx", cell="Z9"))
+        'pump.xlsx C5 (typed as 12.5 psia): must be positive'
+        """
         merged = Where(
-            **{k: getattr(self.where, k) or where.get(k) for k in ("file", "sheet", "cell", "field")}
+            **{k: getattr(self.where, k) or where.get(k) for k in ("file", "sheet", "cell", "field", "note")}
         )
         return InputError(self.message, merged, self.hint)
 

@@ -48,7 +48,7 @@ class SuctionLine:
     diameter: float  # inner [m]
     length: float  # [m]
     lift: float = 0.0  # inlet above the oil level [m]; negative when flooded
-    reservoir_pressure: float = 101325.0  # absolute [Pa]
+    reservoir_pressure: float = physics.STANDARD_ATMOSPHERE  # absolute [Pa]
     k_re: float = 0.0  # sum of the fittings' laminar coefficients K1 [-]
     k_inf: float = 0.0  # sum of the fittings' high-Re coefficients [-]
     fittings: str = ""  # the fittings as written
@@ -150,5 +150,5 @@ def line_from_fields(got: Mapping[str, object], where: Callable[[str], Where]) -
                                  "give the strainer's pressure drop at that flow and viscosity")
     reservoir = got.get("reservoir_pressure")
     return SuctionLine(diameter, length, float(got["suction_lift"]),  # type: ignore[arg-type]
-                       float(reservoir) if reservoir is not None else 101325.0,  # type: ignore[arg-type]
+                       float(reservoir) if reservoir is not None else physics.STANDARD_ATMOSPHERE,  # type: ignore[arg-type]
                        k_re, k_inf, str(text or ""), strainer, str(got.get("strainer_law") or "laminar"))

@@ -140,7 +140,7 @@ def build_registry(cache_folder: Path | None = None) -> pint.UnitRegistry:
 ureg = build_registry(registry_cache_folder())
 
 _TWO_PI = 2.0 * math.pi
-_ATMOSPHERE = 101325.0  # Pa, standard atmosphere (ISO 2533)
+_ATMOSPHERE = float(ureg.Quantity(1.0, "atm").to("Pa").magnitude)  # pint's standard atmosphere, 101325 Pa
 _GAUGE_UNITS = ("barg", "psig", "kPag")
 _ABSOLUTE_UNITS = ("bara", "psia", "kPaa")
 

@@ -35,7 +35,8 @@ declare(Calculation(
     (_Q, _D, _L, _NU, _RHO,
      Arg("lift", LENGTH, "Height of the pump's inlet above the oil level; negative when flooded", default=0),
      Arg("k", NUMBER, "Sum of the fittings' (and strainer's) loss coefficients K", default=0),
-     Arg("reservoir", ABS_PRESSURE, "Absolute pressure on the oil in the reservoir", default=1.01325)),
+     Arg("reservoir", ABS_PRESSURE, "Absolute pressure on the oil in the reservoir",
+         default=suction.STANDARD_ATMOSPHERE / 1e5)),  # the default is in the kind's unit, bara
     ABS_PRESSURE,
     "Absolute pressure at the pump's inlet: reservoir - density x g x lift - line and fitting losses - "
     "velocity head. A value at or below 0 is below vacuum: the line cannot feed the pump.",

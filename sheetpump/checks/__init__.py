@@ -53,7 +53,7 @@ from ..duty import Application
 from ..errors import InputError, Where
 from ..physics.fluid import viscosity_at
 from . import drive, flow, fluid, inlet, pressure, speed
-from .context import DISPLAY_UNITS, Context
+from .context import DISPLAY_UNITS, Context, display_units
 from .findings import (
     DUTY_SUBJECTS,
     FAIL,
@@ -86,6 +86,7 @@ __all__ = [
     "DriveFigures",
     "Finding",
     "check",
+    "display_units",
     "parse_cleanliness",
     "prepare",
     "size_motor",

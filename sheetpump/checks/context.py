@@ -24,7 +24,7 @@ from ..physics.suction import SuctionTerms
 from ..units import Kind, from_si, pretty_unit
 from .findings import INFO, NOT_CHECKED, CheckSettings, Finding, MotorSizing
 
-__all__ = ["DISPLAY_UNITS", "ColdStart", "Context", "not_applicable", "not_checked"]
+__all__ = ["DISPLAY_UNITS", "ColdStart", "Context", "display_units", "not_applicable", "not_checked"]
 
 #: Units a report shows each kind in ("metric" or "imperial"); findings keep SI numbers.
 DISPLAY_UNITS: dict[str, dict[Kind, str]] = {
@@ -35,6 +35,14 @@ DISPLAY_UNITS: dict[str, dict[Kind, str]] = {
                  u.TORQUE: "lbf*ft", u.TEMPERATURE: "degF", u.VISCOSITY: "mm^2/s", u.DURATION: "s",
                  u.EFFICIENCY: ""},
 }
+
+
+def display_units(system: str) -> dict[Kind, str]:
+    """The unit each kind of quantity is shown in under ``system`` ("metric" or "imperial"; metric else).
+
+    The one lookup of :data:`DISPLAY_UNITS`: messages, reports and workbooks show values through it.
+    """
+    return DISPLAY_UNITS.get(system, DISPLAY_UNITS["metric"])
 
 
 @dataclass(frozen=True)
@@ -73,7 +81,7 @@ class Context:
         """The unit a report shows ``kind`` in ("" for none)."""
         if kind is None:
             return ""
-        return DISPLAY_UNITS.get(self.settings.units, DISPLAY_UNITS["metric"]).get(kind, kind.default)
+        return display_units(self.settings.units).get(kind, kind.default)
 
     def show(self, kind: Kind | None, value: float) -> str:
         """A value in the display unit, for messages."""

@@ -15,8 +15,7 @@ import sys
 
 from ..checks import FAIL, CheckSettings
 from ..physics import drive
-
-EXIT_OK, EXIT_FAIL = 0, 1
+from .exit_codes import EXIT_FAIL, EXIT_OK
 
 
 def settings_from(args: argparse.Namespace) -> CheckSettings:

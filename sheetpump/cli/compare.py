@@ -11,10 +11,9 @@ from __future__ import annotations
 import argparse
 import sys
 
-from ..checks import FAIL, WARN
+from ..checks import FAIL
 from . import check as _check  # the options check, compare and select share
-
-EXIT_OK, EXIT_FAIL = 0, 1
+from .exit_codes import EXIT_FAIL, EXIT_OK
 
 
 def _progress(i: int, total: int, label: str) -> None:
@@ -28,10 +27,9 @@ def _progress(i: int, total: int, label: str) -> None:
     sys.stderr.flush()
 
 
-def exit_code(verdicts: list[str], strict: bool) -> int:
-    if FAIL in verdicts or (strict and WARN in verdicts):
-        return EXIT_FAIL
-    return EXIT_OK
+def exit_code(verdicts: list[str]) -> int:
+    # a verdict is already "fail" for a warning under --strict (CheckSettings.strict)
+    return EXIT_FAIL if FAIL in verdicts else EXIT_OK
 
 
 def run(args: argparse.Namespace) -> int:
@@ -42,7 +40,7 @@ def run(args: argparse.Namespace) -> int:
         rank = f"rank {c.rank}" if c.rank else "not ranked"
         print(f"{c.result.verdict:4}  {c.datasheet.label}  ({rank})")
     print(f"comparison written to {args.output}")
-    return exit_code([c.result.verdict for c in comp.candidates], args.strict)
+    return exit_code([c.result.verdict for c in comp.candidates])
 
 
 def register(sub: argparse._SubParsersAction) -> argparse.ArgumentParser:

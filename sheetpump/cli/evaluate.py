@@ -32,8 +32,7 @@ from ..units import (
     VISCOSITY,
     to_si,
 )
-
-EXIT_OK, EXIT_FLAGGED = 0, 1
+from .exit_codes import EXIT_FAIL, EXIT_OK
 
 
 def _option(value: str | None, kind: Any, name: str) -> float | None:
@@ -105,7 +104,7 @@ def run(args: argparse.Namespace) -> int:
         if args.output:
             sys.stdout.write(f"wrote {args.output}\n")
         sys.stdout.write(summary(results(e, args.table, points=False), e))
-    return EXIT_FLAGGED if e.flagged else EXIT_OK
+    return EXIT_FAIL if e.flagged else EXIT_OK
 
 
 def register(sub: argparse._SubParsersAction) -> argparse.ArgumentParser:

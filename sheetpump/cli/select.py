@@ -15,8 +15,7 @@ import argparse
 import sys
 
 from . import check as _check  # the options check, compare and select share
-
-EXIT_OK, EXIT_FAIL = 0, 1
+from .exit_codes import EXIT_FAIL, EXIT_OK
 
 
 def run(args: argparse.Namespace) -> int:

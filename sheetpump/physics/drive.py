@@ -55,6 +55,7 @@ __all__ = [
     "IE3_4POLE_50HZ",
     "IEC_OVERLOAD_FACTOR",
     "IEC_RATINGS_KW",
+    "J_PER_KWH",
     "NEMA_OVERLOAD_FACTOR",
     "NEMA_PREMIUM_4POLE_ENCLOSED",
     "NEMA_RATINGS_HP",
@@ -79,6 +80,9 @@ Number = float | np.ndarray
 #: 745.699 871 582 270 22 W), as the float pint and fluids compute it, so that "15 hp" converted by
 #: :mod:`sheetpump.units` is exactly 15 × HP.
 HP = 745.6998715822701
+
+#: Joules in a kilowatt-hour (exact): energy in J to the kWh a bill counts.
+J_PER_KWH = 3.6e6
 
 #: IEC rated outputs [kW], IEC 60072-1 output series (from memory). Up to 200 kW these are the rows of
 #: the IEC 60034-30-1 efficiency tables (which also list 0.20 kW and 0.40 kW, left out here as they are

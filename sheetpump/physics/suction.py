@@ -42,9 +42,13 @@ from numpy.typing import ArrayLike
 from ..errors import PhysicsError
 from .validate import non_negative, plain, positive
 
+#: The standard atmosphere [Pa] (ISO 2533): the default pressure on the oil of a vented reservoir.
+STANDARD_ATMOSPHERE = 101325.0
+
 __all__ = [
     "FITTINGS",
     "LAMINAR_RE",
+    "STANDARD_ATMOSPHERE",
     "TURBULENT_RE",
     "Fitting",
     "G",
@@ -552,7 +556,7 @@ class SuctionTerms:
 
 
 def suction_terms(flow: ArrayLike, viscosity: ArrayLike, density: ArrayLike, diameter: float,
-                  length: float, lift: float = 0.0, reservoir_pressure: float = 101325.0,
+                  length: float, lift: float = 0.0, reservoir_pressure: float = STANDARD_ATMOSPHERE,
                   k_re: float = 0.0, k_inf: float = 0.0, strainer: tuple[float, float, float] | None = None,
                   strainer_law: str = "laminar", roughness: float = 0.0) -> SuctionTerms:
     r"""The inlet pressure of a pump fed through a suction line, term by term.
@@ -629,7 +633,7 @@ def suction_terms(flow: ArrayLike, viscosity: ArrayLike, density: ArrayLike, dia
 
 def suction_pressure(flow: ArrayLike, diameter: ArrayLike, length: ArrayLike, viscosity: ArrayLike,
                      density: ArrayLike, lift: ArrayLike = 0.0, k: ArrayLike = 0.0,
-                     reservoir_pressure: ArrayLike = 101325.0) -> Number:
+                     reservoir_pressure: ArrayLike = STANDARD_ATMOSPHERE) -> Number:
     r"""Absolute pressure at a pump's inlet fed through a straight suction line (cell-function form).
 
     .. math:: p_{in} = p_{res} - \rho g z - \left(f \frac{L}{d} + K + 1\right) \frac{\rho v^2}{2}

@@ -5,10 +5,10 @@ from __future__ import annotations
 import math
 from collections.abc import Sequence
 
-from ..checks import DISPLAY_UNITS, FAIL, INFO, NOT_CHECKED, PASS, WARN, CheckSettings, Finding
+from ..checks import FAIL, INFO, NOT_CHECKED, PASS, WARN, Finding
 from ..units import Kind, from_si
 
-__all__ = ["SEVERITY_ORDER", "display_units", "fails", "finite", "in_display_unit", "worst_first"]
+__all__ = ["SEVERITY_ORDER", "fails", "finite", "in_display_unit", "worst_first"]
 
 #: Severities worst first: the order findings are listed in.
 SEVERITY_ORDER = {FAIL: 0, WARN: 1, NOT_CHECKED: 2, INFO: 3, PASS: 4}
@@ -17,11 +17,6 @@ SEVERITY_ORDER = {FAIL: 0, WARN: 1, NOT_CHECKED: 2, INFO: 3, PASS: 4}
 def worst_first(findings: Sequence[Finding]) -> list[Finding]:
     """The findings sorted worst severity first (stable: rules keep their order within a severity)."""
     return sorted(findings, key=lambda f: SEVERITY_ORDER.get(f.severity, 9))
-
-
-def display_units(settings: CheckSettings) -> dict[Kind, str]:
-    """The unit each kind of quantity is shown in under the check's settings (metric when unknown)."""
-    return DISPLAY_UNITS.get(settings.units, DISPLAY_UNITS["metric"])
 
 
 def finite(x: float | None) -> float | None:

@@ -13,11 +13,12 @@ from typing import Any
 import numpy as np
 
 from .. import SAFETY_CAUTION, __version__
-from ..checks import FAIL, PASS, WARN, CheckResult, Finding
+from ..checks import FAIL, PASS, WARN, CheckResult, Finding, display_units
 from ..comparison import Candidate, Comparison
 from ..errors import Where
+from ..physics.drive import J_PER_KWH
 from ..units import FLOW, POWER, TORQUE, VISCOSITY, Kind, from_si
-from .formatting import display_units, fails, finite, in_display_unit
+from .formatting import fails, finite, in_display_unit
 
 __all__ = ["json_report"]
 
@@ -74,7 +75,7 @@ _DRIVE_COLUMNS: tuple[tuple[str, str, Kind | None], ...] = (
 
 
 def _drive_json(r: CheckResult, max_segments: int) -> dict[str, Any]:
-    units = display_units(r.settings)
+    units = display_units(r.settings.units)
     d = r.drive
     out: dict[str, Any] = {"basis": d.basis, "cycle": {}}
     for name, kind in (("peak_torque", TORQUE), ("peak_power", POWER), ("rms_power", POWER),
@@ -83,7 +84,7 @@ def _drive_json(r: CheckResult, max_segments: int) -> dict[str, Any]:
         v = getattr(d, name)
         out["cycle"][name] = _power(v, kind, units)
     out["cycle"]["surplus_path"] = d.surplus_path
-    out["cycle"]["energy_per_cycle"] = {"value": finite(d.energy_per_cycle / 3.6e6), "unit": "kWh",
+    out["cycle"]["energy_per_cycle"] = {"value": finite(d.energy_per_cycle / J_PER_KWH), "unit": "kWh",
                                         "si": finite(d.energy_per_cycle)}
     n = len(d.duration)
     out["units"] = {col: (units[kind] if kind is not None else ("s" if col == "duration" else ""))
@@ -109,7 +110,7 @@ def _power(v: float, kind: Kind, units: dict[Kind, str]) -> dict[str, Any]:
 
 
 def _motor_json(c: Candidate) -> dict[str, Any]:
-    units = display_units(c.result.settings)
+    units = display_units(c.result.settings.units)
     app = c.result.application
     m = c.motor
     out: dict[str, Any] = {"motor": None, "note": c.motor_note}
@@ -122,8 +123,8 @@ def _motor_json(c: Candidate) -> dict[str, Any]:
             "overload_factor": m.overload_factor, "service_factor": m.service_factor, "binding": m.binding,
             "full_load_efficiency": finite(m.efficiency),
         }
-    out["energy"] = {"per_cycle_kwh": finite(c.electrical_energy_per_cycle / 3.6e6),
-                     "per_year_kwh": finite(c.electrical_energy_per_year / 3.6e6),
+    out["energy"] = {"per_cycle_kwh": finite(c.electrical_energy_per_cycle / J_PER_KWH),
+                     "per_year_kwh": finite(c.electrical_energy_per_year / J_PER_KWH),
                      "basis": "the motor's part-load efficiency"}
     out["cost"] = {"currency": app.currency, "price": c.datasheet.price,
                    "energy_per_year": finite(c.energy_cost_per_year),

@@ -11,6 +11,7 @@ import xml.etree.ElementTree as ET
 from typing import Any
 
 from .. import SAFETY_CAUTION
+from ..physics.drive import J_PER_KWH
 from ..selection import Selection, worst
 from .formatting import finite
 from .junit import junit_caution
@@ -32,7 +33,7 @@ def text_selection(sel: Selection) -> str:
         for i, (c, why) in enumerate(zip(ch.candidates, ch.reasons, strict=True)):
             mark = ">>" if i == ch.proposed else "  "
             motor = c.motor.label if c.motor else "no motor"
-            energy = c.electrical_energy_per_year / 3.6e6
+            energy = c.electrical_energy_per_year / J_PER_KWH
             lines.append(f"  {mark} {c.result.verdict:4}  {c.datasheet.model:<14} "
                          f"{c.datasheet.displacement * 1e6:7.2f} cm³/rev  {motor:>8}  "
                          f"{energy:9.0f} kWh/year  {why}")
@@ -48,7 +49,7 @@ def _size(c: Any, why: str, proposed: bool) -> dict[str, Any]:
         "verdict": c.result.verdict, "proposed": proposed,
         "worst_rule": w.rule if w else None, "worst_margin": finite(w.margin) if w else None,
         "flow_margin": finite(c.flow_margin), "motor": c.motor.label if c.motor else None,
-        "energy_kwh_per_year": finite(c.electrical_energy_per_year / 3.6e6), "price": c.datasheet.price,
+        "energy_kwh_per_year": finite(c.electrical_energy_per_year / J_PER_KWH), "price": c.datasheet.price,
         "cost_over_period": finite(c.cost_over_period), "reason": why,
         "failing": [{"rule": f.rule, "margin": finite(f.margin), "message": f.message}
                     for f in c.result.findings if f.severity == "fail"],

@@ -11,10 +11,11 @@ from __future__ import annotations
 import math
 
 from .. import SAFETY_CAUTION
-from ..checks import FAIL, INFO, NOT_CHECKED, PASS, WARN
+from ..checks import FAIL, INFO, NOT_CHECKED, PASS, WARN, display_units
 from ..comparison import Candidate, Comparison
+from ..physics.drive import J_PER_KWH
 from ..units import POWER, TORQUE, Kind, from_si, pretty_unit
-from .formatting import display_units, in_display_unit, worst_first
+from .formatting import in_display_unit, worst_first
 
 __all__ = ["text_report"]
 
@@ -56,14 +57,14 @@ def _money(v: float | None, currency: str) -> str:
 
 def _drive_lines(c: Candidate) -> list[str]:
     r = c.result
-    units = display_units(r.settings)
+    units = display_units(r.settings.units)
     d = r.drive
     app = r.application
     lines = [
         f"  Drive: peak torque {_show(d.peak_torque, TORQUE, units)}, peak power {_show(d.peak_power, POWER, units)}, "
         f"RMS power {_show(d.rms_power, POWER, units)}, mean power {_show(d.mean_power, POWER, units)}",
         "         shaft energy per cycle "
-        + ("unknown" if not math.isfinite(d.energy_per_cycle) else f"{d.energy_per_cycle / 3.6e6:.4g} kWh")
+        + ("unknown" if not math.isfinite(d.energy_per_cycle) else f"{d.energy_per_cycle / J_PER_KWH:.4g} kWh")
         + f" (efficiencies: {d.basis})",
         f"  Heat into the oil, mean: {_show(d.mean_heat, POWER, units)} = pump loss "
         f"{_show(d.mean_power_loss, POWER, units)} + surplus flow {_show(d.mean_surplus_heat, POWER, units)} "
@@ -78,8 +79,8 @@ def _drive_lines(c: Candidate) -> list[str]:
                      f"{c.motor_rms_basis} and peak {_show(peak, POWER, units)}: {c.motor_note}; "
                      f"full-load efficiency {m.efficiency:.1%}")
     price = c.datasheet.price
-    lines.append(f"  Energy: {c.electrical_energy_per_cycle / 3.6e6:.4g} kWh per cycle, "
-                 f"{c.electrical_energy_per_year / 3.6e6:,.0f} kWh per year at the motor's part-load efficiency, "
+    lines.append(f"  Energy: {c.electrical_energy_per_cycle / J_PER_KWH:.4g} kWh per cycle, "
+                 f"{c.electrical_energy_per_year / J_PER_KWH:,.0f} kWh per year at the motor's part-load efficiency, "
                  f"{_money(c.energy_cost_per_year, app.currency)} per year")
     lines.append(f"  Cost: price {_money(price, app.currency)}, over {app.evaluation_years:g} years "
                  f"{_money(c.cost_over_period, app.currency)}; "

@@ -24,9 +24,10 @@ from pathlib import Path
 from typing import Any
 
 from .. import SAFETY_CAUTION, __version__
-from ..checks import DISPLAY_UNITS, INFO, NOT_CHECKED
+from ..checks import INFO, NOT_CHECKED, display_units
 from ..comparison import Candidate
 from ..files import sha256
+from ..physics.drive import J_PER_KWH
 from ..selection import SLIP, STANDARD_POLES, Selection, worst
 from ..units import DISPLACEMENT, POWER, from_si
 from .comparison_book import print_options
@@ -44,10 +45,13 @@ from .writer import (
     write_value,
 )
 
-__all__ = ["write_selection"]
+__all__ = ["PROPOSED_FILL", "write_selection"]
 
 _PRESSURE_RULES = (("pressure.continuous", "continuous"), ("pressure.intermittent", "intermittent"),
                    ("pressure.peak", "peak"), ("pressure.relief", "relief"))
+
+#: Fill of a proposed size (its row on Sizes, its name on Series): a light blue of our own.
+PROPOSED_FILL = "#E8EEF5"
 
 
 def _margin(c: Candidate, rule: str) -> float | str | None:
@@ -77,7 +81,7 @@ def _sizes_formats(book: Any, units: str) -> tuple[dict[str, Any], dict[str, Any
                            **align.get(kind, {"align": "right"}), **extra)
 
     formats = {k: styled(k) for k in numbers}
-    proposed_fmt = {k: styled(k, bold=True, bg_color="#E8EEF5") for k in numbers}
+    proposed_fmt = {k: styled(k, bold=True, bg_color=PROPOSED_FILL) for k in numbers}
     return formats, proposed_fmt
 
 
@@ -109,7 +113,7 @@ def _size_values(series: str, cand: Candidate, why: str, mine: bool, disp_unit: 
         cand.motor.label if cand.motor else "none",
         float(from_si(cand.result.drive.rms_power, POWER, power_unit))
         if math.isfinite(cand.result.drive.rms_power) else None,
-        cand.electrical_energy_per_year / 3.6e6, cand.energy_cost_per_year, ds.price,
+        cand.electrical_energy_per_year / J_PER_KWH, cand.energy_cost_per_year, ds.price,
         cand.cost_over_period, why,
     ]
 
@@ -118,7 +122,7 @@ def _sizes_sheet(book: Any, sel: Selection, units: str, paper: str) -> Any:
     """Write the Sizes sheet: one row per size and series, the proposed sizes marked; returns the sheet."""
     app, f = sel.application, book_styles(book)
     disp_unit = "cm^3/rev" if units == "metric" else "in^3/rev"
-    power_unit = DISPLAY_UNITS[units][POWER]
+    power_unit = display_units(units)[POWER]
     formats, proposed_fmt = _sizes_formats(book, units)
     sheet = book.add_worksheet("Sizes")
     sheet.write_string(0, 0, f"Size selection: {app.name}", f["title"])
@@ -247,7 +251,7 @@ def write_selection(target: str | os.PathLike[str], sel: Selection, inputs: Sequ
     paper = print_options(units, paper, app)
     base = str(Path(target).resolve().parent)
     with open_book(target, title=f"Size selection: {app.name}") as book:
-        bold = book.add_format({"bold": True, "bg_color": "#E8EEF5", "valign": "top"})
+        bold = book.add_format({"bold": True, "bg_color": PROPOSED_FILL, "valign": "top"})
         sheet = _sizes_sheet(book, sel, units, paper)
         _series_sheet(book, sel, paper, base, bold)
         _assumptions_sheet(book, sel, inputs, paper, base)

@@ -42,7 +42,7 @@ from .templates import (
     Field,
     write_top,
 )
-from .writer import book_styles, open_book, write_value
+from .writer import STYLES, book_styles, open_book, write_value
 
 __all__ = ["SERIES_FIELDS", "SERIES_SHEET", "is_series_workbook", "read_size_series", "write_series_template"]
 
@@ -106,8 +106,7 @@ def write_series_template(target: str | os.PathLike[str],
         for s in range(sizes):
             sheet.write_string(HEADER_ROW, 2 + s, f"size {s + 1}", head)
         section_fmt = book.add_format({"bold": True, "italic": True, "top": 1})
-        text_input = book.add_format({"bg_color": "#FFF6D5", "border": 1, "border_color": "#C9B458",
-                                      "num_format": "@"})
+        text_input = book.add_format({**STYLES["input"], "num_format": "@"})  # as the templates' text inputs
         row, section = HEADER_ROW + 1, None
         for f in SERIES_FIELDS:
             if f.section != section:
