@@ -11,7 +11,7 @@ from __future__ import annotations
 import math
 
 from .. import SAFETY_CAUTION
-from ..checks import FAIL, INFO, NOT_CHECKED, PASS, WARN, display_units
+from ..checks import FAIL, INFO, NOT_CHECKED, PASS, WARN, Finding, display_units
 from ..comparison import Candidate, Comparison
 from ..physics.drive import J_PER_KWH
 from ..units import POWER, TORQUE, Kind, from_si, pretty_unit
@@ -88,6 +88,15 @@ def _drive_lines(c: Candidate) -> list[str]:
     return lines
 
 
+def _outside_text(f: Finding) -> str:
+    """The segments outside a limit: how many (unless the message ends saying so), share, names."""
+    share = f"{f.share:.1%} of the cycle" if f.share else ""
+    names = ", ".join(f.segments) + (" …" if f.count > len(f.segments) else "") if f.segments else ""
+    if f.message.endswith(f"; {f.count} outside"):  # said already: the share and the names only
+        return ": ".join(x for x in (share, names) if x)
+    return f"{f.count} outside" + (f" ({share})" if share else "") + (f": {names}" if names else "")
+
+
 def text_report(comparison: Comparison, strict: bool = False) -> str:
     """A readable report, the whole answer: per pump every rule's outcome (``not checked`` ones with their
     reason and the cell to fill), margin, worst segment and the cell to fix; the drive, the heat into the
@@ -123,9 +132,7 @@ def text_report(comparison: Comparison, strict: bool = False) -> str:
                 lines.append(f"        {f.message}")
                 extra = []
                 if f.count > 1 or f.segments:
-                    extra.append(f"{f.count} outside" + (f" ({f.share:.1%} of the cycle)" if f.share else "")
-                                 + (": " + ", ".join(f.segments) + (" …" if f.count > len(f.segments) else "")
-                                    if f.segments else ""))
+                    extra.append(_outside_text(f))
                 if str(f.where) and f.severity != INFO:
                     extra.append(f"{'cell to fill' if f.severity == NOT_CHECKED else 'cell'}: {f.where}")
                 if f.app_where is not None and str(f.app_where):
