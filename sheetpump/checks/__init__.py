@@ -13,8 +13,9 @@ inlet, viscosity, temperature, torque) and is not checked makes the pump's verdi
 The rooms: each rule is a function declared with :func:`~sheetpump.checks.registry.rule` (its id and
 text, hence :data:`RULES`) in the module of its subject: :mod:`~sheetpump.checks.speed`,
 :mod:`~sheetpump.checks.pressure`, :mod:`~sheetpump.checks.flow`, :mod:`~sheetpump.checks.inlet`,
-:mod:`~sheetpump.checks.fluid` (viscosity, temperature, cleanliness) and :mod:`~sheetpump.checks.drive`
-(torque, cold start, rotation, performance basis). :mod:`~sheetpump.checks.findings` holds the result
+:mod:`~sheetpump.checks.fluid` (viscosity, temperature, cleanliness), :mod:`~sheetpump.checks.drive`
+(torque, cold start, rotation) and :mod:`~sheetpump.checks.efficiency` (what the efficiencies rest on:
+``performance.basis``). :mod:`~sheetpump.checks.findings` holds the result
 types and the verdict, :mod:`~sheetpump.checks.limits` the limit arithmetic,
 :mod:`~sheetpump.checks.context` what every rule reads, :mod:`~sheetpump.checks.motor` the drive figures
 and the motor sizing.
@@ -52,7 +53,7 @@ from ..datasheet import Datasheet
 from ..duty import Application
 from ..errors import InputError, Where
 from ..physics.fluid import viscosity_at
-from . import drive, flow, fluid, inlet, pressure, speed
+from . import drive, efficiency, flow, fluid, inlet, pressure, speed
 from .context import DISPLAY_UNITS, Context, display_units
 from .findings import (
     DUTY_SUBJECTS,
@@ -102,7 +103,7 @@ CHECK_ORDER = (
     inlet.inlet_min, inlet.inlet_max, inlet.velocity, inlet.cold_start,
     fluid.viscosity_min, fluid.viscosity_max, fluid.viscosity_cold_start, fluid.temperature_min,
     fluid.temperature_max, fluid.cleanliness,
-    drive.torque_max, drive.torque_relief, drive.rotation, drive.basis, drive.cold_start_torque,
+    drive.torque_max, drive.torque_relief, drive.rotation, efficiency.basis, drive.cold_start_torque,
 )
 
 

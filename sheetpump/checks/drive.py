@@ -17,11 +17,11 @@ from ..errors import InputError, Where
 from ..physics.start import locked_rotor_ratio, rated_torque
 from ..units import PRESSURE, SPEED, TEMPERATURE, TORQUE, VISCOSITY
 from .context import Context, not_checked
-from .findings import FAIL, INFO, PASS, WARN, Finding
+from .findings import FAIL, PASS, WARN, Finding
 from .limits import bound, margin
 from .registry import rule
 
-__all__ = ["basis", "cold_start_torque", "rotation", "torque_max", "torque_relief"]
+__all__ = ["cold_start_torque", "rotation", "torque_max", "torque_relief"]
 
 
 def _no_torque(ctx: Context, rule_id: str) -> Finding | None:
@@ -195,21 +195,3 @@ def _rotation_of(text: str, where: Where) -> str:
         raise InputError(f"{text!r} is not a direction of rotation", where,
                          "write 'clockwise', 'counter-clockwise' or 'either' (seen from the shaft end)")
     return word
-
-
-@rule("performance.basis", "what the efficiencies rest on")
-def basis(ctx: Context) -> Finding:
-    ds, est = ctx.ds, ctx.estimate
-    notes = "; ".join(est.notes)
-    if est.basis == "table":
-        n_extra = int(np.count_nonzero(est.extrapolated))
-        share = float(np.sum(ctx.duty.duration, where=est.extrapolated) / ctx.cycle) if ctx.cycle else 0.0
-        where = ds.performance.where if ds.performance is not None else ds.where("performance")
-        if n_extra:
-            return Finding(rule="performance.basis", severity=WARN, message=f"{notes}; {n_extra} segment(s) "
-                           "outside the table's range (extrapolated)", count=n_extra, share=share,
-                           segments=ctx.listed(est.extrapolated), where=where)
-        return Finding(rule="performance.basis", severity=INFO, message=notes, where=where)
-    field_name = "volumetric_efficiency" if ds.volumetric_efficiency is not None else "total_efficiency"
-    return Finding(rule="performance.basis", severity=WARN, message=notes, segment="all segments",
-                   where=ds.where(field_name))
