@@ -34,6 +34,7 @@ from .physics.measured import DEFAULT_TOLERANCE, PointEvaluation, evaluate_point
 from .physics.prediction import PerformanceModel, fit_performance
 from .physics.table import group_points
 from .physics.wilson import Prediction, WilsonModel
+from .units import TEMPERATURE, VISCOSITY, from_si
 
 __all__ = [
     "COEFFICIENTS",
@@ -210,8 +211,9 @@ def _viscosity(table: MeasuredTable, oil: Oil | None, density_15: float | None, 
 def _oil_text(oil: Oil) -> str:
     if oil.grade is not None:
         return f"ISO VG {oil.grade} of viscosity index {oil.viscosity_index:g}"
-    return (f"{oil.nu1 * 1e6:g} mm²/s at {oil.t1 - 273.15:g} °C and {oil.nu2 * 1e6:g} mm²/s at "
-            f"{oil.t2 - 273.15:g} °C")
+    nu1, nu2 = (float(from_si(nu, VISCOSITY, "mm^2/s")) for nu in (oil.nu1, oil.nu2))
+    t1, t2 = (float(from_si(t, TEMPERATURE, "degC")) for t in (oil.t1, oil.t2))
+    return f"{nu1:g} mm²/s at {t1:g} °C and {nu2:g} mm²/s at {t2:g} °C"
 
 
 def evaluate_table(
