@@ -30,14 +30,14 @@ from typing import Any
 import numpy as np
 from xlsxwriter.utility import xl_rowcol_to_cell
 
-from .. import SAFETY_CAUTION, __version__, performance
-from ..checks import DISPLAY_UNITS, RULES, Finding
-from ..comparison import Candidate, Comparison
-from ..datasheet import Datasheet
-from ..errors import Where
-from ..files import sha256
-from ..physics import drive, fluid, pump
-from ..units import (
+from ... import SAFETY_CAUTION, __version__, performance
+from ...checks import DISPLAY_UNITS, RULES, Finding
+from ...comparison import Candidate, Comparison
+from ...datasheet import Datasheet
+from ...errors import Where
+from ...files import sha256
+from ...physics import drive, fluid, pump
+from ...units import (
     ABS_PRESSURE,
     DISPLACEMENT,
     EFFICIENCY,
@@ -53,7 +53,7 @@ from ..units import (
     Kind,
     from_si,
 )
-from .writer import (
+from ..writer import (
     LINE_HEIGHT,
     MARKERS,
     PALETTE,
@@ -73,6 +73,7 @@ from .writer import (
     write_header,
     write_value,
 )
+from .display import display_unit, show
 
 __all__ = ["MAX_DUTY_ROWS", "write_comparison"]
 
@@ -80,16 +81,6 @@ __all__ = ["MAX_DUTY_ROWS", "write_comparison"]
 MAX_DUTY_ROWS = 1000
 
 _CURVE_POINTS = 25  # points of each efficiency and flow curve
-
-
-def _unit(units: str, kind: Kind) -> str:
-    return DISPLAY_UNITS[units].get(kind, kind.default)
-
-
-def _show(value: float | None, kind: Kind, units: str) -> float | None:
-    if value is None:
-        return None
-    return float(from_si(value, kind, _unit(units, kind)))
 
 
 def _resample(candidate: Candidate) -> tuple[dict[str, np.ndarray], list[str], str]:
@@ -314,13 +305,13 @@ def _write_duty_totals(book: Any, sheet: Any, name: str, totals: list[tuple[str,
 def _exact_totals(candidate: Candidate, units: str) -> dict[str, float | None]:
     """The checker's drive figures over every sample, as the totals of a binned duty sheet show them."""
     fig = candidate.result.drive
-    return {"cycle": float(np.sum(fig.duration)), "peak_power": _show(fig.peak_power, POWER, units),
-            "rms_power": _show(fig.rms_power, POWER, units),
-            "peak_torque": _show(fig.peak_torque, TORQUE, units),
-            "mean_loss": _show(fig.mean_power_loss, POWER, units),
+    return {"cycle": float(np.sum(fig.duration)), "peak_power": show(fig.peak_power, POWER, units),
+            "rms_power": show(fig.rms_power, POWER, units),
+            "peak_torque": show(fig.peak_torque, TORQUE, units),
+            "mean_loss": show(fig.mean_power_loss, POWER, units),
             "energy": fig.energy_per_cycle * float(from_si(1.0, ENERGY, "Wh")),
-            "mean_surplus": _show(fig.mean_surplus_heat, POWER, units),
-            "mean_heat": _show(fig.mean_heat, POWER, units)}
+            "mean_surplus": show(fig.mean_surplus_heat, POWER, units),
+            "mean_heat": show(fig.mean_heat, POWER, units)}
 
 
 def _duty_sheet(book: Any, name: str, candidate: Candidate, units: str, paper: str) -> _DutySheet:
@@ -332,7 +323,7 @@ def _duty_sheet(book: Any, name: str, candidate: Candidate, units: str, paper: s
     sheet.write_string(0, 0, f"{name}: duty of {candidate.datasheet.label} on {app.name}", f["title"])
     sheet.write_string(1, 0, note or "One row per duty segment. Columns with a blue header are live formulas.",
                        cell_format(book, "note", text_wrap=False))
-    u = {k: _unit(units, k) for k in (PRESSURE, SPEED, FLOW, POWER, TORQUE, TEMPERATURE, VISCOSITY)}
+    u = {k: display_unit(units, k) for k in (PRESSURE, SPEED, FLOW, POWER, TORQUE, TEMPERATURE, VISCOSITY)}
     shown, factors = _duty_values(cols, u)
     headers, formats = _duty_header(book, sheet, cols, shown, labels, u)
     first = _DUTY_HEADER_ROW + 1
@@ -388,7 +379,7 @@ def _datasheet_rows(comp: Comparison, units: str, base: str) -> list[_Row]:
     """Summary lines of what each datasheet states, and the pulsation frequency over the duty's speeds."""
     app = comp.application
     ds = [c.datasheet for c in comp.candidates]
-    u = lambda kind: _unit(units, kind)  # noqa: E731
+    u = lambda kind: display_unit(units, kind)  # noqa: E731
     disp_unit = "cm^3/rev" if units == "metric" else "in^3/rev"
     mass_unit = "kg" if units == "metric" else "lb"
     speeds = app.duty.speed
@@ -409,12 +400,12 @@ def _datasheet_rows(comp: Comparison, units: str, base: str) -> list[_Row]:
         _Row(f"displacement [{disp_unit}]", [float(from_si(d.displacement, DISPLACEMENT, disp_unit)) for d in ds],
              "num"),
         _Row(f"speed range [{u(SPEED)}]",
-             [f"{_show(d.speed_min, SPEED, units):.4g} – {_show(d.speed_max, SPEED, units):.4g}" for d in ds]),
-        _Row(f"continuous pressure [{u(PRESSURE)}]", [_show(d.pressure_continuous, PRESSURE, units) for d in ds],
+             [f"{show(d.speed_min, SPEED, units):.4g} – {show(d.speed_max, SPEED, units):.4g}" for d in ds]),
+        _Row(f"continuous pressure [{u(PRESSURE)}]", [show(d.pressure_continuous, PRESSURE, units) for d in ds],
              "int"),
         _Row(f"intermittent pressure [{u(PRESSURE)}]",
-             [_show(d.pressure_intermittent, PRESSURE, units) for d in ds], "int"),
-        _Row(f"peak pressure [{u(PRESSURE)}]", [_show(d.pressure_peak, PRESSURE, units) for d in ds], "int"),
+             [show(d.pressure_intermittent, PRESSURE, units) for d in ds], "int"),
+        _Row(f"peak pressure [{u(PRESSURE)}]", [show(d.pressure_peak, PRESSURE, units) for d in ds], "int"),
         _Row(f"price [{app.currency}]", [d.price for d in ds], "int"),
         _Row(f"mass [{mass_unit}]",
              [None if d.mass is None else float(from_si(d.mass, MASS, mass_unit)) for d in ds], "num"),
@@ -442,7 +433,7 @@ def _verdict_rows(cands: Sequence[Candidate], units: str) -> list[_Row]:
 def _drive_rows(cands: Sequence[Candidate], units: str, duty_refs: list[dict[str, str]]) -> list[_Row]:
     """Summary lines of the drive figures: live links to each duty sheet's totals, the checker's values
     stored."""
-    u = lambda kind: _unit(units, kind)  # noqa: E731
+    u = lambda kind: display_unit(units, kind)  # noqa: E731
     rows = []
     for key, label, kind, attr in (
         ("peak_power", f"peak input power [{u(POWER)}]", POWER, "peak_power"),
@@ -453,7 +444,7 @@ def _drive_rows(cands: Sequence[Candidate], units: str, duty_refs: list[dict[str
          "mean_surplus_heat"),
         ("mean_heat", f"heat into the oil, mean [{u(POWER)}] (pump loss + surplus)", POWER, "mean_heat"),
     ):
-        values = [_show(getattr(c.result.drive, attr), kind, units) for c in cands]
+        values = [show(getattr(c.result.drive, attr), kind, units) for c in cands]
         # a resampled series has no link: the duty sheet's bins are not the whole truth
         formulas: list[str | None] = [f"={refs[key]}" if key in refs else None for refs in duty_refs]
         rows.append(_Row(label, values, "num", formulas))
@@ -464,15 +455,15 @@ def _drive_rows(cands: Sequence[Candidate], units: str, duty_refs: list[dict[str
 def _motor_and_cost_rows(comp: Comparison, units: str) -> list[_Row]:
     """Summary lines of the motor chosen, the energy and its cost, the ranking and the notes."""
     app, cands = comp.application, comp.candidates
-    u = lambda kind: _unit(units, kind)  # noqa: E731
+    u = lambda kind: display_unit(units, kind)  # noqa: E731
     defaults = f"defaults used for: {', '.join(app.defaulted)}" if app.defaulted else ""
     return [
         _Row("motor chosen", [c.motor.label if c.motor else "none" for c in cands],
              [None if c.motor else "fail" for c in cands]),
-        _Row(f"motor sized on: RMS load [{u(POWER)}]", [_show(c.motor_rms, POWER, units) for c in cands], "num"),
+        _Row(f"motor sized on: RMS load [{u(POWER)}]", [show(c.motor_rms, POWER, units) for c in cands], "num"),
         _Row("RMS load taken", [c.motor_rms_basis for c in cands], "wrap"),
         _Row(f"motor sized on: peak load [{u(POWER)}]",
-             [_show(max(c.result.drive.peak_power, c.motor_rms), POWER, units) for c in cands], "num"),
+             [show(max(c.result.drive.peak_power, c.motor_rms), POWER, units) for c in cands], "num"),
         _Row("criterion that binds the motor size", [c.motor.binding if c.motor else "" for c in cands], "wrap"),
         _Row("motor load (of its rating)", [c.motor_note for c in cands], "wrap"),
         _Row("motor full-load efficiency", [c.motor.efficiency if c.motor else None for c in cands], "pct"),
@@ -624,17 +615,17 @@ def _points_style(k: int, size: int = 6) -> dict[str, Any]:
 
 def _suction_rows(cands: Sequence[Candidate], units: str) -> list[tuple[str, list[Any], str]]:
     """Summary rows of the suction side: the computed inlet pressures and the cold start (issue 18)."""
-    pu, tu = _unit(units, ABS_PRESSURE), _unit(units, TORQUE)
+    pu, tu = display_unit(units, ABS_PRESSURE), display_unit(units, TORQUE)
 
     def measured(c: Candidate, rule: str, kind: Kind, limit: bool = False) -> float | None:
         f = next((f for f in c.result.findings if f.rule == rule), None)
         value = None if f is None else (f.limit if limit else f.measured)
-        return _show(value, kind, units) if isinstance(value, float) else None
+        return show(value, kind, units) if isinstance(value, float) else None
 
     rows: list[tuple[str, list[Any], str]] = []
     if any(c.result.suction is not None for c in cands):
         rows.append((f"inlet pressure computed from the suction line, lowest of the duty [{pu}]",
-                     [_show(float(np.min(c.result.suction.inlet)), ABS_PRESSURE, units)
+                     [show(float(np.min(c.result.suction.inlet)), ABS_PRESSURE, units)
                       if c.result.suction is not None else None for c in cands], "num"))
         rows.append((f"inlet pressure at the cold start [{pu}]",
                      [measured(c, "inlet.cold-start", ABS_PRESSURE) for c in cands], "num"))
@@ -863,11 +854,11 @@ def _curves_and_charts(book: Any, comp: Comparison, units: str, duties: list[_Du
     n_mean = float(np.sum(duty.speed * weights))
     t_mean = float(np.sum(duty.temperature * weights))
     nu_mean = float(fluid.viscosity_at(t_mean, oil.nu1, oil.t1, oil.nu2, oil.t2))
-    pu, qu, su = _unit(units, PRESSURE), _unit(units, FLOW), "rpm"
+    pu, qu, su = display_unit(units, PRESSURE), display_unit(units, FLOW), "rpm"
     group_fmt = cell_format(book, "header", text_wrap=False)
     curves.write_string(0, 0, f"Curves at the duty's mean speed {from_si(n_mean, SPEED, 'rpm'):.0f} rpm and "
-                        f"mean oil temperature {from_si(t_mean, TEMPERATURE, _unit(units, TEMPERATURE)):.0f} "
-                        f"{_unit(units, TEMPERATURE)}; below them the required flow and each candidate's "
+                        f"mean oil temperature {from_si(t_mean, TEMPERATURE, display_unit(units, TEMPERATURE)):.0f} "
+                        f"{display_unit(units, TEMPERATURE)}; below them the required flow and each candidate's "
                         "speed-pressure envelope", cell_format(book, "note", text_wrap=False))
     # rows of the three blocks: curves, required flow, envelopes; then chart labels that hold input text
     req_cols, req_labels, _ = _resample(cands[0]) if cands else ({}, [], "")
