@@ -18,7 +18,6 @@ Written with :mod:`sheetpump.workbooks.writer`: deterministic, atomic, text from
 
 from __future__ import annotations
 
-import dataclasses
 import math
 import os
 from collections.abc import Sequence
@@ -32,17 +31,14 @@ from ... import SAFETY_CAUTION, __version__, performance
 from ...checks import DISPLAY_UNITS
 from ...comparison import Candidate, Comparison
 from ...datasheet import Datasheet
-from ...errors import Where
 from ...files import sha256
 from ...physics import drive, fluid
 from ...units import (
-    EFFICIENCY,
     FLOW,
     PRESSURE,
     SPEED,
     TEMPERATURE,
     VISCOSITY,
-    Kind,
     from_si,
 )
 from ..writer import (
@@ -51,12 +47,9 @@ from ..writer import (
     PALETTE,
     PAPER_SIZES,
     PCT,
-    SIGNED_PCT,
     book_styles,
     cell_format,
-    column_width,
     display_path,
-    number_format,
     open_book,
     page_setup,
     text_lines,
@@ -65,6 +58,7 @@ from ..writer import (
 )
 from .display import display_unit
 from .duty import DUTY_COL, MAX_DUTY_ROWS, DutySheet, resample, write_duty_sheet
+from .findings import write_findings
 from .summary import write_summary
 
 __all__ = ["MAX_DUTY_ROWS", "write_comparison"]
@@ -360,74 +354,6 @@ def _curves_and_charts(book: Any, comp: Comparison, units: str, duties: list[Dut
                area=(0, 0, max(cs.next_label, row_env + env_block * len(cands)) - 1, max(4 * len(cands), 8) - 1))
 
 
-#: Columns of the Findings sheet: header, width [characters] (None: from content), wrapped.
-_FINDING_COLUMNS = (("candidate", 18, True), ("rule", None, False), ("severity", None, False),
-                    ("measured", None, False), ("limit", None, False), ("unit", None, False),
-                    ("margin", None, False), ("segment", 14, True), ("segments outside", 9, False),
-                    ("datasheet cell", 26, True), ("application cell", 20, True), ("message", 56, True))
-
-
-def _findings(book: Any, comp: Comparison, units: str, paper: str, base: str) -> None:
-    sheet = book.add_worksheet("Findings")
-    small = {"font_size": 9}
-    rows: list[list[Any]] = []
-    severities: list[str] = []
-    kinds: list[Kind | None] = []
-    for cand in comp.candidates:
-        for fi in cand.result.findings:
-            kinds.append(fi.kind)
-            measured, limit = fi.measured, fi.limit
-            if fi.kind is not None and isinstance(measured, float):
-                measured = float(from_si(measured, fi.kind, fi.unit or None))
-            if fi.kind is not None and isinstance(limit, float):
-                limit = float(from_si(limit, fi.kind, fi.unit or None))
-            where = _where_text(fi.where, base)
-            app_where = _where_text(fi.app_where, base) if fi.app_where is not None else ""
-            rows.append([cand.datasheet.label, fi.rule, fi.severity, measured, limit, fi.unit, fi.margin,
-                         fi.segment, fi.count, where, app_where, fi.message])
-            severities.append(fi.severity)
-    widths = []
-    for c, (head, width, _wrap) in enumerate(_FINDING_COLUMNS):
-        values = [r[c] for r in rows]
-        widths.append(width or column_width(head, values, SIGNED_PCT if head == "margin" else "#,##0.00", most=24))
-    write_header(sheet, 0, [h for h, _w, _x in _FINDING_COLUMNS], widths, cell_format(book, "header", **small))
-    text = cell_format(book, "wrap", indent=1, **small)  # indented: never runs into a number on its left
-    for i, (values, severity) in enumerate(zip(rows, severities, strict=True), start=1):
-        lines = 1
-        # measured and limit share a format: three significant digits of the larger
-        num = number_format([v for v in values[3:5] if isinstance(v, float)])
-        for c, v in enumerate(values):
-            head, width, wrap = _FINDING_COLUMNS[c]
-            if head == "severity":
-                fmt = cell_format(book, severity, **small)
-            elif head == "margin":
-                fmt = cell_format(book, num_format=SIGNED_PCT, **small)
-            elif head == "segments outside":  # centred: never runs into the text of the next column
-                fmt = cell_format(book, num_format="0", align="center", **small)
-            elif isinstance(v, (int, float)) and not isinstance(v, bool):
-                # a share (of the cycle) as a percentage, like the margins
-                fmt = cell_format(book, num_format=PCT if kinds[i - 1] is EFFICIENCY else num, **small)
-            else:
-                fmt = text
-                if wrap:
-                    lines = max(lines, text_lines(v, widths[c] * 1.15))
-            write_value(sheet, i, c, v, fmt)
-        if lines > 1:
-            sheet.set_row(i, 12.0 * lines)
-    last = max(len(rows), 1)
-    sheet.autofilter(0, 0, last, len(_FINDING_COLUMNS) - 1)
-    sheet.freeze_panes(1, 0)
-    page_setup(sheet, comp.application.name, paper=paper, title_rows=(0, 0),
-               area=(0, 0, last, len(_FINDING_COLUMNS) - 1))
-
-
-def _where_text(where: Where, base: str) -> str:
-    """A place as text, its file relative to the output's folder (never an absolute path)."""
-    if where.file:
-        where = dataclasses.replace(where, file=display_path(where.file, base))
-    return str(where)
-
-
 def _assumption_rows(comp: Comparison) -> list[tuple[str, Any, str | None]]:
     """The Assumptions sheet's settings: label, value, number format (a share shows as a percentage)."""
     app, oil = comp.application, comp.application.oil
@@ -571,7 +497,7 @@ def write_comparison(target: str | os.PathLike[str], comp: Comparison,
         summary = book.worksheets_objs.pop()
         book.worksheets_objs.insert(0, summary)
         _curves_and_charts(book, comp, units, duties, paper)
-        _findings(book, comp, units, paper, base)
+        write_findings(book, comp, units, paper, base)
         _assumptions(book, comp, inputs, paper, base)
         for i, ws in enumerate(book.worksheets_objs):
             ws.index = i
