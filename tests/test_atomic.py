@@ -64,7 +64,7 @@ def test_compare_crashing_mid_write_keeps_the_old_comparison(inputs, old_output,
         raise RuntimeError("writer crashed half-way")
 
     # the Findings sheet is written after the Summary, duty, curve and chart sheets: half-way
-    monkeypatch.setattr(comparison, "_findings", crash)
+    monkeypatch.setattr(comparison, "write_findings", crash)
     with pytest.raises(RuntimeError):
         main(["compare", "--app", str(inputs[0]), *map(str, inputs[1:]), "-o", str(old_output)])
     assert sha256(old_output) == before
