@@ -54,7 +54,7 @@ from ..duty import Application
 from ..errors import InputError, Where
 from ..physics.fluid import viscosity_at
 from . import drive, efficiency, flow, fluid, inlet, pressure, speed
-from .context import DISPLAY_UNITS, Context, display_units
+from .context import DISPLAY_UNITS, Context, display_unit, display_units
 from .findings import (
     DUTY_SUBJECTS,
     FAIL,
@@ -87,6 +87,7 @@ __all__ = [
     "DriveFigures",
     "Finding",
     "check",
+    "display_unit",
     "display_units",
     "parse_cleanliness",
     "prepare",

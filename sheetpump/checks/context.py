@@ -24,7 +24,7 @@ from ..physics.suction import SuctionTerms
 from ..units import Kind, from_si, pretty_unit
 from .findings import INFO, NOT_CHECKED, CheckSettings, Finding, MotorSizing
 
-__all__ = ["DISPLAY_UNITS", "ColdStart", "Context", "display_units", "not_applicable", "not_checked"]
+__all__ = ["DISPLAY_UNITS", "ColdStart", "Context", "display_unit", "display_units", "not_applicable", "not_checked"]
 
 #: Units a report shows each kind in ("metric" or "imperial"); findings keep SI numbers.
 DISPLAY_UNITS: dict[str, dict[Kind, str]] = {
@@ -43,6 +43,16 @@ def display_units(system: str) -> dict[Kind, str]:
     The one lookup of :data:`DISPLAY_UNITS`: messages, reports and workbooks show values through it.
     """
     return DISPLAY_UNITS.get(system, DISPLAY_UNITS["metric"])
+
+
+def display_unit(system: str, kind: Kind) -> str:
+    """The unit ``kind`` is shown in under ``system``: the system's unit for it, else the kind's default.
+
+    >>> from sheetpump.units import PRESSURE, VISCOSITY
+    >>> display_unit("metric", PRESSURE), display_unit("imperial", PRESSURE), display_unit("imperial", VISCOSITY)
+    ('bar', 'psi', 'mm^2/s')
+    """
+    return display_units(system).get(kind, kind.default)
 
 
 @dataclass(frozen=True)
@@ -81,7 +91,7 @@ class Context:
         """The unit a report shows ``kind`` in ("" for none)."""
         if kind is None:
             return ""
-        return display_units(self.settings.units).get(kind, kind.default)
+        return display_unit(self.settings.units, kind)
 
     def show(self, kind: Kind | None, value: float) -> str:
         """A value in the display unit, for messages."""

@@ -17,6 +17,7 @@ from typing import Any
 import numpy as np
 
 from ... import performance
+from ...checks import display_unit
 from ...comparison import Candidate, Comparison
 from ...datasheet import Datasheet
 from ...physics import fluid
@@ -33,7 +34,6 @@ from ..writer import (
     write_header,
     write_value,
 )
-from .display import display_unit
 from .duty import DUTY_COL, DutySheet, resample
 
 __all__ = ["write_curves_and_charts"]

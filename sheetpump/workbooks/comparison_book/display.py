@@ -1,26 +1,15 @@
-"""The display units of the comparison workbook: the unit a kind of quantity is shown in, and a value in it.
+"""A value of the comparison workbook in its display unit.
 
 Every sheet of the workbook shows its figures in the units the user asked for (``"metric"`` or
-``"imperial"``, :data:`sheetpump.checks.DISPLAY_UNITS`); these two helpers are the one way they do.
+``"imperial"``): the unit is :func:`sheetpump.checks.display_unit`'s, the value :func:`show`'s.
 """
 
 from __future__ import annotations
 
-from ...checks import DISPLAY_UNITS
+from ...checks import display_unit
 from ...units import Kind, from_si
 
-__all__ = ["display_unit", "show"]
-
-
-def display_unit(units: str, kind: Kind) -> str:
-    """The unit ``kind`` is shown in under the display system ``units`` (``"metric"`` or ``"imperial"``):
-    the system's unit for it, else the kind's default unit.
-
-    >>> from sheetpump.units import PRESSURE, VISCOSITY
-    >>> display_unit("metric", PRESSURE), display_unit("imperial", PRESSURE), display_unit("imperial", VISCOSITY)
-    ('bar', 'psi', 'mm^2/s')
-    """
-    return DISPLAY_UNITS[units].get(kind, kind.default)
+__all__ = ["show"]
 
 
 def show(value: float | None, kind: Kind, units: str) -> float | None:

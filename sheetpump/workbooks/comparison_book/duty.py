@@ -17,6 +17,7 @@ from typing import Any
 import numpy as np
 from xlsxwriter.utility import xl_rowcol_to_cell
 
+from ...checks import display_unit
 from ...comparison import Candidate
 from ...units import ENERGY, FLOW, POWER, PRESSURE, SPEED, TEMPERATURE, TORQUE, VISCOSITY, Kind, from_si
 from ..writer import (
@@ -31,7 +32,7 @@ from ..writer import (
     write_header,
     write_value,
 )
-from .display import display_unit, show
+from .display import show
 
 __all__ = ["DUTY_COL", "MAX_DUTY_ROWS", "DutySheet", "resample", "write_duty_sheet"]
 

@@ -14,9 +14,10 @@ from typing import Any
 import numpy as np
 
 from ... import SAFETY_CAUTION
-from ...checks import RULES, Finding
+from ...checks import RULES, Finding, display_unit
 from ...comparison import Candidate, Comparison
 from ...physics import pump
+from ...physics.drive import J_PER_KWH
 from ...units import ABS_PRESSURE, DISPLACEMENT, MASS, POWER, PRESSURE, SPEED, TORQUE, Kind, from_si
 from ..writer import (
     LINE_HEIGHT,
@@ -32,7 +33,7 @@ from ..writer import (
     write_formula,
     write_value,
 )
-from .display import display_unit, show
+from .display import show
 
 __all__ = ["write_summary"]
 
@@ -160,7 +161,7 @@ def _motor_and_cost_rows(comp: Comparison, units: str) -> list[_Row]:
         _Row("motor full-load efficiency", [c.motor.efficiency if c.motor else None for c in cands], "pct"),
         _Row("electrical energy per cycle [Wh] (at the motor's part-load efficiency)",
              [c.electrical_energy_per_cycle / 3600.0 for c in cands], "num"),
-        _Row("electrical energy per year [kWh]", [c.electrical_energy_per_year / 3.6e6 for c in cands], "int"),
+        _Row("electrical energy per year [kWh]", [c.electrical_energy_per_year / J_PER_KWH for c in cands], "int"),
         _Row(f"energy cost per year [{app.currency}]", [c.energy_cost_per_year for c in cands], "int"),
         _Row(f"cost over {app.evaluation_years:g} years [{app.currency}]", [c.cost_over_period for c in cands],
              "int"),
