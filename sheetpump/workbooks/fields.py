@@ -8,8 +8,8 @@ sheetpump reads.
 
 A value cell holds a bare number in the unit of its unit cell (empty unit cell: the kind's default
 unit), or a text with its own unit (``"3000 psi"``; a different unit in the unit cell is then an error).
-A formula's cached value is read; a formula without one (a file written by a script) is evaluated by
-:mod:`sheetpump.recalc` when available, and refused otherwise: it is never read as empty.
+Cells are read by :class:`~sheetpump.workbooks.book.Book` (a formula without its stored value is
+evaluated or refused, never read as empty).
 
 Fields are found by the words in the ``field`` column (rows may be moved or sorted), falling back to the
 template's defined names (``pump.<field>``, ``machine.<field>``) for a field whose row lost its word. A
@@ -22,23 +22,16 @@ from __future__ import annotations
 
 import datetime as _dt
 import difflib
-import functools
 import math
-import os
 import re
-import zipfile
-from collections.abc import Callable, Sequence
-from pathlib import Path
+from collections.abc import Sequence
 from typing import Any
 
-import numpy as np
-
 from ..codes import cleanliness_parts, rotation_word
-from ..datasheet import PerformanceTable
 from ..errors import InputError, Where
 from ..units import Kind, check_span, physical_unit, split_number, unit_factor
-from .refs import CELL_REF, column_letter, split_ref
-from .safe import holds_formulas, open_workbook
+from .book import Book, header_row
+from .refs import column_letter
 from .templates import (
     CHOICE,
     COUNT,
@@ -47,172 +40,12 @@ from .templates import (
     INTEGER,
     NAME_PREFIX,
     TEXT,
-    Column,
     Field,
 )
-from .time_series import match_columns, parse_header
 
-__all__ = [
-    "MAX_TABLE_ROWS",
-    "Book",
-    "Fields",
-    "cell_text",
-    "column_span",
-    "convert",
-    "header_row",
-    "performance_table",
-    "read_table",
-    "split_value",
-    "table_column",
-]
+__all__ = ["Fields", "cell_text", "convert", "split_value"]
 
-_MAX_HEADER_SCAN = 60  # rows searched for a header row
 _MAX_ROWS = 20_000  # rows read below the header of a field sheet: one row per field is far smaller
-# Rows below the header of a table (segments, performance points). Every row is read, none is dropped;
-# the bound is only against hostile sizes. A long measured log belongs in a series file (duty_series).
-MAX_TABLE_ROWS = 100_000
-_EXCEL_ERRORS = ("#NULL!", "#DIV/0!", "#VALUE!", "#REF!", "#NAME?", "#NUM!", "#N/A", "#GETTING_DATA",
-                 "#SPILL!", "#CALC!")
-# What the evaluator may raise on a package it cannot parse besides its InputError: a damaged zip
-# member (zipfile.BadZipFile, OSError), text that is not UTF-8 (ValueError), XML that does not parse
-# (SyntaxError: ElementTree.ParseError), a missing part (KeyError).
-_EVALUATION_ERRORS = (OSError, ValueError, KeyError, SyntaxError, zipfile.BadZipFile)
-
-
-def _is_error_text(value: Any) -> bool:
-    # Excel's error values, and the "#SP! ..." text a sheetpump cell function shows for bad input.
-    return isinstance(value, str) and (value.strip() in _EXCEL_ERRORS or value.startswith("#SP!"))
-
-
-class Book:
-    """A workbook opened twice (cached values and formulas), with the cell rules of every reader.
-
-    The formulas are opened only when a cell has no cached value and some worksheet holds a formula
-    (:func:`~sheetpump.workbooks.safe.holds_formulas`): a filled-in template usually holds none.
-    """
-
-    def __init__(self, path: str | os.PathLike[str]) -> None:
-        self.path = Path(path)
-        self.file = str(path)
-        self.values = open_workbook(self.path, data_only=True, max_uncompressed=64 * 1024**2)
-        self._evaluated: dict[tuple[str, str], Any] | None = None
-        self._merged: dict[str, list[Any]] = {}
-
-    @functools.cached_property
-    def formulas(self) -> Any:
-        return open_workbook(self.path, data_only=False, max_uncompressed=64 * 1024**2)
-
-    @functools.cached_property
-    def holds_formulas(self) -> bool:
-        return holds_formulas(self.path)
-
-    def sheet(self, name: str, *, required: bool = True) -> Any:
-        names = self.values.sheetnames
-        match = [n for n in names if n == name] or [n for n in names if n.strip().lower() == name.lower()]
-        if not match:
-            if required:
-                raise InputError(f"no sheet {name!r}", Where(self.file),
-                                 f"sheets found: {', '.join(names)}; start from `sheetpump template`")
-            return None
-        return self.values[match[0]]
-
-    def where(self, sheet: Any, coord: str, field: str | None = None) -> Where:
-        return Where(self.file, sheet.title, coord, field)
-
-    def merged(self, sheet: Any, coord: str) -> bool:
-        ranges = self._merged.get(sheet.title)
-        if ranges is None:  # (first row, last row, first column, last column): compared as numbers
-            ranges = self._merged[sheet.title] = [(r.min_row, r.max_row, r.min_col, r.max_col)
-                                                  for r in sheet.merged_cells.ranges]
-        if not ranges:
-            return False
-        row, col = split_ref(coord)
-        return any(r0 <= row <= r1 and c0 <= col <= c1 for r0, r1, c0, c1 in ranges)
-
-    def value(self, sheet: Any, coord: str, field: str | None = None, *, value_cell: bool = True) -> Any:
-        """The value of a cell: cached value of a formula, evaluated where missing, never a silent blank."""
-        if value_cell and self.merged(sheet, coord):
-            raise InputError("the value cell is part of merged cells", self.where(sheet, coord, field),
-                             "unmerge the cells (Home > Merge > Unmerge) and enter the value in one cell")
-        cell = sheet[coord]
-        value = cell.value
-        if cell.data_type == "e" or _is_error_text(value):
-            raise InputError(f"the cell shows the error {value}", self.where(sheet, coord, field),
-                             "fix the formula or enter the value")
-        if value is None and self.holds_formulas:
-            raw = self.formulas[sheet.title][coord]
-            if raw.data_type == "f" or (isinstance(raw.value, str) and raw.value.startswith("=")):
-                value = self._evaluate(sheet, coord, field, raw.value)
-        if isinstance(value, str):
-            value = value.strip()
-            if not value:
-                return None
-        return value
-
-    def _evaluate(self, sheet: Any, coord: str, field: str | None, formula: Any) -> Any:
-        if self._evaluated is None:
-            try:  # imported here: only a workbook with formulas lacking their values needs the engine
-                from ..recalc import evaluate_workbook
-            except ImportError:  # no evaluator importable: the formula is refused below, never read as empty
-                self._evaluated = {}
-            else:
-                try:
-                    self._evaluated = dict(evaluate_workbook(self.path))
-                except InputError as exc:
-                    if exc.where.sheet == sheet.title and exc.where.cell == coord:
-                        raise exc.at(field=field) from None  # this very cell: name its field too
-                    raise
-                except _EVALUATION_ERRORS as exc:  # a part the evaluator cannot parse: the formula's problem
-                    raise InputError(f"the formula {formula} has no stored value and could not be "
-                                     f"evaluated ({exc})", self.where(sheet, coord, field),
-                                     "open and save the workbook in a spreadsheet program") from None
-        for key in ((sheet.title, coord), (sheet.title, coord.replace("$", ""))):
-            if key in self._evaluated:
-                value = self._evaluated[key]
-                if type(value).__name__ == "CellError" or _is_error_text(value):
-                    raise InputError(f"the formula gives {value}", self.where(sheet, coord, field),
-                                     "fix the formula or enter the value")
-                if value is None:
-                    break
-                return value
-        raise InputError(f"the formula {formula} has no stored value (the file was written without "
-                         "calculating it)", self.where(sheet, coord, field),
-                         "open and save the workbook in a spreadsheet program, or enter the value")
-
-    def defined(self, name: str) -> tuple[str, str, int] | None:
-        """``(sheet, column letters, row)`` of the one cell a workbook-level defined name points to.
-
-        ``None`` for anything else: no such name, a range, or a name a spreadsheet program broke when
-        it deleted the row it pointed to (``#REF!``, ``'Pump'!#REF!``), which is no error of the user's.
-        """
-        names = self.values.defined_names
-        entry = names.get(name) if hasattr(names, "get") else None
-        if entry is None:
-            return None
-        try:
-            destinations = list(entry.destinations)
-        except Exception:  # openpyxl's tokenizer fails on some broken references: a broken name
-            return None
-        if len(destinations) != 1:
-            return None
-        title, coord = destinations[0]
-        match = CELL_REF.match(str(coord))
-        if not match:
-            return None
-        return title, match.group(1).upper(), int(match.group(2))
-
-
-def header_row(book: Book, sheet: Any, test: Callable[[list[Any]], bool], what: str) -> tuple[int, list[Any]]:
-    limit = min(sheet.max_row, _MAX_HEADER_SCAN)
-    width = min(sheet.max_column, 64)
-    for r, row in enumerate(sheet.iter_rows(min_row=1, max_row=limit, max_col=width, values_only=True), 1):
-        if test(list(row)):
-            return r, list(row)
-    raise InputError(f"no header row {what} found", Where(book.file, sheet.title),
-                     "keep the template's header row")
-
-
-# --- field sheets -----------------------------------------------------------------------------------
 
 
 class Fields:
@@ -321,6 +154,11 @@ class Fields:
 
 
 def cell_text(value: Any) -> str:
+    """A cell's value as a text: a whole float without its ``.0``, other values stripped.
+
+    >>> cell_text(12.0), cell_text(" 18/16/13 ")
+    ('12', '18/16/13')
+    """
     if isinstance(value, float) and value.is_integer():
         return str(int(value))
     return str(value).strip()
@@ -513,140 +351,3 @@ def _checked(field: Field, si: float, where: Where, shown: str = "") -> float:
         raise InputError("must be a share above 0 and at most 100 %", where,
                          "write e.g. 10 with unit '%', or 0.1 with unit 'fraction'")
     return si
-
-
-# --- tables ------------------------------------------------------------------------------------------
-
-
-def read_table(book: Book, sheet: Any, columns: Sequence[Column]) -> tuple[
-        list[tuple[int, dict[str, Any]]], dict[str, str], int]:
-    """Rows of a table sheet: ``[(row number, {key: SI value or None})]``, column letters, header row."""
-    words = {w for c in columns if c.required for w in c.words}
-
-    def is_header(row: list[Any]) -> bool:
-        return any(parse_header(c)[0] in words for c in row if c is not None)
-
-    header, cells = header_row(book, sheet, is_header, "naming the columns")
-    while cells and (cells[-1] is None or not str(cells[-1]).strip()):
-        cells.pop()
-    found = match_columns(cells, columns, file=book.file, sheet=sheet.title, header_row=header, strict=True)
-    letters = {key: column_letter(i) for key, (i, _, _) in found.items()}
-    _nothing_above(book, sheet, header, len(cells))
-    if sheet.max_row - header > MAX_TABLE_ROWS:
-        raise InputError(f"the sheet reaches row {sheet.max_row}: more than {MAX_TABLE_ROWS:,} rows below "
-                         "its header are not read", Where(book.file, sheet.title),
-                         "give a long measured log as a series file (duty_series on the Machine sheet), "
-                         "or delete what lies below the table")
-    by_key = {c.key: c for c in columns}
-    out: list[tuple[int, dict[str, Any]]] = []
-    last = sheet.max_row
-    for r in range(header + 1, last + 1):
-        row: dict[str, Any] = {}
-        for key, (_i, factor, offset) in found.items():
-            coord = f"{letters[key]}{r}"
-            value = book.value(sheet, coord, key)
-            if value is None:
-                row[key] = None
-                continue
-            column = by_key[key]
-            where = book.where(sheet, coord, key)
-            if column.kind is None:
-                row[key] = cell_text(value)
-                continue
-            field = Field(key, column.kind, column.help, check="")
-            number, unit_text = split_value(value, None, field, where, where)
-            if unit_text:
-                try:
-                    f2, o2 = unit_factor(unit_text, column.kind)
-                except InputError as exc:
-                    raise exc.at(**vars(where)) from None
-                row[key] = number * f2 + o2
-            else:
-                row[key] = number * factor + offset
-            if not math.isfinite(row[key]):
-                raise InputError("not a finite number", where)
-            _in_span(row[key], column.kind, number, unit_text or parse_header(cells[found[key][0]])[1] or "",
-                     where)
-        if any(v is not None for v in row.values()):
-            out.append((r, row))
-    return out, letters, header
-
-
-def _in_span(si: float, kind: Kind, number: float, unit_text: str, where: Where) -> None:
-    try:
-        check_span(si, kind, f"{number:g} {unit_text}".strip())
-    except InputError as exc:
-        raise exc.at(**vars(where)) from None
-
-
-def _number_text(text: str) -> bool:
-    """Whether a text reads as a number, with or without a unit (an ambiguous comma counts as one)."""
-    try:
-        return split_number(text) is not None
-    except InputError:
-        return True
-
-
-def _nothing_above(book: Book, sheet: Any, header: int, width: int) -> None:
-    """Refuse a row of numbers above a table's header row: it would be a row of the table dropped unseen.
-
-    Two numbers make a row (every table needs at least two columns of numbers); a note with one number
-    above the header is left alone.
-    """
-    for r, row in enumerate(sheet.iter_rows(min_row=1, max_row=header - 1, max_col=max(width, 1),
-                                            values_only=True), 1):
-        numbers = [i for i, value in enumerate(row)
-                   if isinstance(value, (int, float, _dt.date, _dt.time, _dt.timedelta))
-                   or (isinstance(value, str) and _number_text(value))]
-        if len(numbers) >= 2:
-            raise InputError(f"row {r} holds values above the header row (row {header})",
-                             book.where(sheet, f"{column_letter(numbers[0])}{r}"),
-                             "move the header row above the first row of the table")
-
-
-def column_span(letters: dict[str, str]) -> tuple[str, str]:
-    order = sorted(letters.values(), key=lambda s: (len(s), s))
-    return order[0], order[-1]
-
-
-def table_column(rows: list[tuple[int, dict[str, Any]]], key: str, default: float | None, book: Book, sheet: Any,
-            letters: dict[str, str], hint: str, rule: str = "non_negative") -> np.ndarray:
-    values = np.empty(len(rows))
-    for i, (r, row) in enumerate(rows):
-        value = row.get(key)
-        coord = f"{letters.get(key, 'A')}{r}"
-        if value is None:
-            if default is None:
-                raise InputError("missing value", Where(book.file, sheet.title, coord if key in letters else
-                                                        f"row {r}", key), hint)
-            value = default
-        elif rule == "positive" and not value > 0:  # (value is SI here: not shown, the cell is named)
-            raise InputError("must be greater than zero", book.where(sheet, coord, key))
-        elif rule == "non_negative" and value < 0:
-            raise InputError("must not be negative", book.where(sheet, coord, key))
-        values[i] = value
-    return values
-
-
-
-def performance_table(book: Book, sheet: Any, rows: list[tuple[int, dict[str, Any]]], letters: dict[str, str],
-                      header: int, speed: float | None, viscosity: float | None) -> PerformanceTable:
-    """A :class:`~sheetpump.datasheet.PerformanceTable` from rows read by :func:`read_table` (speed and
-    viscosity [SI]: the values of points that give none)."""
-    first, last = column_span(letters)
-    where = Where(book.file, sheet.title, f"{first}{header}:{last}{rows[-1][0]}")
-    pressure = table_column(rows, "pressure", None, book, sheet, letters, "give the pressure of each point")
-    flow = table_column(rows, "flow", None, book, sheet, letters, "give the flow of each point")
-    n = table_column(rows, "speed", speed, book, sheet, letters,
-                "give a speed column or performance_speed on the Pump sheet", rule="positive")
-    nu = table_column(rows, "viscosity", viscosity, book, sheet, letters,
-                 "give a viscosity column or performance_viscosity on the Pump sheet", rule="positive")
-    power = torque = None
-    if "input_power" in letters and any(row.get("input_power") is not None for _, row in rows):
-        power = table_column(rows, "input_power", None, book, sheet, letters, "give the power of every point",
-                        rule="positive")
-    if "torque" in letters and any(row.get("torque") is not None for _, row in rows):
-        torque = table_column(rows, "torque", None, book, sheet, letters, "give the torque of every point",
-                         rule="positive")
-    return PerformanceTable(pressure=pressure, flow=flow, speed=n, viscosity=nu, input_power=power,
-                            torque=torque, where=where)

@@ -19,7 +19,9 @@ from ..duty import Application, Duty, Oil
 from ..errors import InputError, PhysicsError, Where, as_input_error
 from ..physics.fluid import MINERAL_OIL_DENSITY_15
 from ..suction import line_from_fields
-from .fields import Book, Fields, column_span, performance_table, read_table, table_column
+from .book import Book
+from .fields import Fields
+from .tables import column_span, performance_table, read_table, table_column
 from .templates import (
     APPLICATION_FIELDS,
     DATASHEET_FIELDS,

@@ -29,9 +29,11 @@ import numpy as np
 from ..datasheet import Datasheet, PerformanceTable
 from ..errors import InputError, Where
 from ..selection import SizeSeries
-from .fields import Book, convert, performance_table, read_table
+from .book import Book
+from .fields import convert
 from .readers import check_datasheet_fields, datasheet_from_fields
 from .refs import column_letter
+from .tables import performance_table, read_table
 from .templates import (
     CHOICE,
     DATASHEET_FIELDS,
