@@ -16,7 +16,7 @@ import pytest
 from sheetpump import demo
 from sheetpump.cli import main
 from sheetpump.files import sha256
-from sheetpump.workbooks import read_application, read_datasheet, readers
+from sheetpump.workbooks import read_application, read_datasheet, tables
 from sheetpump.workbooks.templates import DUTY_COLUMNS, write_template
 
 DEMO = Path(__file__).resolve().parents[1] / "workbooks" / "demo"
@@ -133,14 +133,14 @@ def test_every_row_of_a_long_duty_is_checked(tmp_path, capsys):
 
 
 def test_a_table_beyond_the_bound_is_refused_naming_the_limit(tmp_path, capsys, monkeypatch):
-    monkeypatch.setattr(readers, "MAX_TABLE_ROWS", 50)  # the bound, scaled down: the rule is the same
+    monkeypatch.setattr(tables, "MAX_TABLE_ROWS", 50)  # the bound, scaled down: the rule is the same
     app = good_application(tmp_path / "app.xlsx", duty=[["s", 1, 100, 10, None, 50, None]] * 51)
     line = refused(["check", "--app", str(app), str(DATASHEET)], capsys)
     assert "sheet 'Duty'" in line and "more than 50 rows" in line and "duty_series" in line
 
 
 def test_a_table_at_the_bound_is_read(tmp_path, monkeypatch):
-    monkeypatch.setattr(readers, "MAX_TABLE_ROWS", 60)  # the template's 60 rows are within it
+    monkeypatch.setattr(tables, "MAX_TABLE_ROWS", 60)  # the template's 60 rows are within it
     app = good_application(tmp_path / "app.xlsx", duty=[["s", 1, 100, 10, None, 50, None]] * 60)
     assert len(read_application(app).duty.duration) == 60
 

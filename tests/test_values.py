@@ -8,8 +8,8 @@ import pytest
 from sheetpump import cells
 from sheetpump import units as u
 from sheetpump.errors import InputError, Where
+from sheetpump.workbooks.fields import convert
 from sheetpump.workbooks.measured_table import read_measured
-from sheetpump.workbooks.readers import convert
 from sheetpump.workbooks.templates import APPLICATION_FIELDS, DATASHEET_FIELDS
 
 # An independent pint registry (not sheetpump's) is the outside reference for every conversion.

@@ -3,6 +3,10 @@
 * :mod:`.refs` — cell references, column letters and the sheet-XML pieces, in one place;
 * :mod:`.safe` — the one guarded way every reader opens a file;
 * :mod:`.templates` — the datasheet and application formats, declared once, and the blank templates;
+* :mod:`.book` — the opened workbook and its cells (cached values, formulas evaluated where a value is
+  missing, defined names, merged cells, header rows);
+* :mod:`.fields` — field sheets, and a value with its unit to SI, with every refusal message;
+* :mod:`.tables` — tables under a header row (segments, performance points);
 * :mod:`.readers` — ``read_datasheet`` and ``read_application`` (SI dataclasses that remember each
   value's file, sheet and cell);
 * :mod:`.time_series` — ``read_series``: a measured time series (CSV or xlsx) as a duty;

@@ -10,7 +10,7 @@ the datasheet's performance columns plus ``model``, the size a point belongs to.
 its own takes the table of a size of the same frame, scaled by displacement (an assumption, said wherever
 it is used).
 
-Every value goes through the datasheet reader's conversion (:func:`sheetpump.workbooks.readers.convert`)
+Every value goes through the datasheet reader's conversion (:func:`sheetpump.workbooks.fields.convert`)
 and cross-field checks (:func:`~sheetpump.workbooks.readers.check_datasheet_fields`), and remembers its
 file, sheet and cell.
 """
@@ -29,8 +29,11 @@ import numpy as np
 from ..datasheet import Datasheet, PerformanceTable
 from ..errors import InputError, Where
 from ..selection import SizeSeries
-from .readers import Book, check_datasheet_fields, convert, datasheet_from_fields, performance_table, read_table
+from .book import Book
+from .fields import convert
+from .readers import check_datasheet_fields, datasheet_from_fields
 from .refs import column_letter
+from .tables import performance_table, read_table
 from .templates import (
     CHOICE,
     DATASHEET_FIELDS,
