@@ -17,7 +17,11 @@ from __future__ import annotations
 
 import re
 
-__all__ = ["ROTATIONS", "cleanliness_numbers", "cleanliness_parts", "rotation_word"]
+from .errors import InputError, Where
+
+__all__ = [
+    "ROTATIONS", "cleanliness_code", "cleanliness_numbers", "cleanliness_parts", "rotation", "rotation_word",
+]
 
 #: The three directions of rotation (seen from the shaft end), as sheetpump writes them.
 ROTATIONS = ("clockwise", "counter-clockwise", "either")
@@ -78,3 +82,33 @@ def rotation_word(text: object) -> str | None:
     """
     key = str(text).strip().lower().replace("_", "-").replace(" ", "-")
     return _ROTATION_WORDS.get(key)
+
+
+def cleanliness_code(code: object, where: Where | None = None) -> tuple[int | None, int | None, int | None]:
+    """:func:`cleanliness_numbers` of ``code``, refusing a text that is not an ISO 4406 code (naming ``where``).
+
+    >>> cleanliness_code("16/13")
+    (None, 16, 13)
+    >>> cleanliness_code("NAS 7", Where(cell="B30"))
+    Traceback (most recent call last):
+    ...
+    sheetpump.errors.InputError: B30: 'NAS 7' is not an ISO 4406 cleanliness code (write two or three ...
+    """
+    numbers = cleanliness_numbers(code)
+    if numbers is None:
+        raise InputError(f"{str(code)!r} is not an ISO 4406 cleanliness code", where or Where(),
+                         "write two or three scale numbers such as '18/16/13'")
+    return numbers
+
+
+def rotation(text: object, where: Where | None = None) -> str:
+    """:func:`rotation_word` of ``text``, refusing a text that names no direction of rotation (naming ``where``).
+
+    >>> rotation("CW")
+    'clockwise'
+    """
+    word = rotation_word(text)
+    if word is None:
+        raise InputError(f"{str(text)!r} is not a direction of rotation", where or Where(),
+                         "write 'clockwise', 'counter-clockwise' or 'either' (seen from the shaft end)")
+    return word

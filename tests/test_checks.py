@@ -16,7 +16,8 @@ import pint
 import pytest
 
 from sheetpump import performance
-from sheetpump.checks import FAIL, INFO, PASS, WARN, CheckSettings, check, parse_cleanliness, stretches
+from sheetpump.checks import FAIL, INFO, PASS, WARN, CheckSettings, check, stretches
+from sheetpump.codes import cleanliness_code
 from sheetpump.datasheet import Datasheet, PerformanceTable
 from sheetpump.duty import Application, Duty, Oil
 from sheetpump.errors import InputError, Where
@@ -282,7 +283,7 @@ def test_cleanliness_requirement_without_first_number():
 
 
 def test_cleanliness_parse_and_bad_code():
-    assert parse_cleanliness("20/18/15") == (20, 18, 15)
+    assert cleanliness_code("20/18/15") == (20, 18, 15)
     ds = metric_pump(cleanliness="NAS 7", sources={"cleanliness": Where("gz28.xlsx", "Ratings", "C20")})
     with pytest.raises(InputError) as exc:
         check(ds, app_for(duty(quiet(ds))))

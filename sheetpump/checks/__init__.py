@@ -67,7 +67,6 @@ from .findings import (
     DriveFigures,
     Finding,
 )
-from .fluid import parse_cleanliness
 from .limits import stretches
 from .motor import drive_figures, size_motor, sized_motor
 from .registry import NOT_CHECKED_WHEN, RULES
@@ -89,7 +88,6 @@ __all__ = [
     "check",
     "display_unit",
     "display_units",
-    "parse_cleanliness",
     "prepare",
     "size_motor",
     "stretches",

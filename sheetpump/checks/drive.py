@@ -12,8 +12,8 @@ import dataclasses
 import numpy as np
 
 from .. import performance
-from ..codes import rotation_word
-from ..errors import InputError, Where
+from ..codes import rotation as rotation_of
+from ..errors import Where
 from ..physics.start import locked_rotor_ratio, rated_torque
 from ..units import PRESSURE, SPEED, TEMPERATURE, TORQUE, VISCOSITY
 from .context import Context, not_checked
@@ -179,19 +179,11 @@ def rotation(ctx: Context) -> Finding:
         return not_checked(ctx, "rotation", "the datasheet states no direction of rotation", where, app_where)
     if app.rotation is None:
         return not_checked(ctx, "rotation", "the application states no direction of rotation", where, app_where)
-    pump = _rotation_of(ds.rotation, where)
-    drive_dir = _rotation_of(app.rotation, app_where)
+    pump = rotation_of(ds.rotation, where)
+    drive_dir = rotation_of(app.rotation, app_where)
     # a one-way pump on a drive that turns both ways does not match
     ok = pump == "either" or pump == drive_dir
     return Finding(rule="rotation", severity=PASS if ok else FAIL,
                    message=f"pump {ds.rotation}, drive {app.rotation}: {'matches' if ok else 'does not match'}",
                    measured=app.rotation, limit=ds.rotation, segment="shaft", count=0 if ok else 1, where=where,
                    app_where=app_where)
-
-
-def _rotation_of(text: str, where: Where) -> str:
-    word = rotation_word(text)
-    if word is None:
-        raise InputError(f"{text!r} is not a direction of rotation", where,
-                         "write 'clockwise', 'counter-clockwise' or 'either' (seen from the shaft end)")
-    return word

@@ -11,8 +11,7 @@ import dataclasses
 
 import numpy as np
 
-from ..codes import cleanliness_numbers
-from ..errors import InputError, Where
+from ..codes import cleanliness_code
 from ..physics.fluid import viscosity_at
 from ..units import TEMPERATURE, VISCOSITY
 from .context import Context, not_checked
@@ -21,7 +20,7 @@ from .limits import bound, margin
 from .registry import rule
 
 __all__ = [
-    "cleanliness", "parse_cleanliness", "temperature_max", "temperature_min", "viscosity_cold_start",
+    "cleanliness", "temperature_max", "temperature_min", "viscosity_cold_start",
     "viscosity_max", "viscosity_min",
 ]
 
@@ -130,22 +129,6 @@ def temperature_max(ctx: Context) -> Finding:
                                TEMPERATURE, ds.where("temperature_max")))
 
 
-def parse_cleanliness(code: str, where: Where | None = None) -> tuple[int | None, int | None, int | None]:
-    """ISO 4406 code as three scale numbers (≥4, ≥6, ≥14 µm(c)); ``None`` for a ``-`` or ``*``.
-
-    A two-number code (``"16/13"``) gives the ≥6 and ≥14 µm(c) numbers (ISO 4406: the first number
-    may be left out when counting with a microscope).
-
-    >>> parse_cleanliness("18/16/13"), parse_cleanliness("-/15/12"), parse_cleanliness("16/13")
-    ((18, 16, 13), (None, 15, 12), (None, 16, 13))
-    """
-    numbers = cleanliness_numbers(code)
-    if numbers is None:
-        raise InputError(f"{code!r} is not an ISO 4406 cleanliness code", where or Where(),
-                         "write three scale numbers such as '18/16/13'")
-    return numbers
-
-
 @rule("cleanliness", "system cleanliness (ISO 4406) no worse than the pump needs",
       not_checked="no cleanliness code on the datasheet or in the application")
 def cleanliness(ctx: Context) -> Finding:
@@ -154,12 +137,12 @@ def cleanliness(ctx: Context) -> Finding:
     if ds.cleanliness is None:
         return not_checked(ctx, "cleanliness", "the datasheet states no cleanliness code (ISO 4406)", where,
                            app_where)
-    need = parse_cleanliness(ds.cleanliness, where)
+    need = cleanliness_code(ds.cleanliness, where)
     if app.cleanliness is None:
         return Finding(rule="cleanliness", severity=NOT_CHECKED, message=f"not checked: the pump needs "
                        f"{ds.cleanliness} (ISO 4406) but the application states no cleanliness code",
                        limit=ds.cleanliness, segment="system", where=where, app_where=app_where)
-    have = parse_cleanliness(app.cleanliness, app_where)
+    have = cleanliness_code(app.cleanliness, app_where)
     pairs = [(h, r) for h, r in zip(have, need, strict=True) if r is not None and h is not None]
     missing = any(r is not None and h is None for h, r in zip(have, need, strict=True))
     worse = [h > r for h, r in pairs]

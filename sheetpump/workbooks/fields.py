@@ -27,7 +27,7 @@ import re
 from collections.abc import Sequence
 from typing import Any
 
-from ..codes import cleanliness_parts, rotation_word
+from ..codes import cleanliness_code, cleanliness_parts, rotation_word
 from ..errors import InputError, Where
 from ..units import Kind, check_span, physical_unit, split_number, unit_factor
 from .book import Book, header_row
@@ -187,14 +187,12 @@ def convert(field: Field, value: Any, unit: Any, where: Where, unit_where: Where
     if kind == TEXT:
         text = cell_text(value)
         if field.key == "cleanliness":
-            parts = cleanliness_parts(text)
-            if parts is None:
-                raise InputError(f"{text!r} is not an ISO 4406 code", where, "write e.g. '18/16/13'")
-            text = "/".join(parts)
+            cleanliness_code(text, where)  # refuses a text that is not a code
+            text = "/".join(cleanliness_parts(text) or ())
         return text
     if kind == CHOICE:
         text = cell_text(value)
-        if field.key == "rotation":
+        if field.key == "rotation":  # every trade spelling of a direction; a choice's message else
             chosen = rotation_word(text)
         else:
             chosen = next((c for c in field.choices if c.lower() == text.lower()), None)
