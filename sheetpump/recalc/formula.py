@@ -22,6 +22,8 @@ column's formula once.
 'bin'
 >>> parse('A2*2', 2, 3)
 ('bin', '*', ('ref', None, (False, 0, False, -2)), ('const', 2.0))
+>>> parse('1-2-3^-4', 1, 1)  # equal levels group from the left; a unary minus binds before ^
+('bin', '-', ('bin', '-', ('const', 1.0), ('const', 2.0)), ('bin', '^', ('const', 3.0), ('neg', ('const', 4.0))))
 >>> parse('FROBNICATE(A1)', 1, 1)
 Traceback (most recent call last):
 ...
@@ -37,13 +39,14 @@ from ..catalogue import CATALOGUE
 from ..errors import UnsupportedError
 from ..workbooks.refs import MAX_COL, MAX_ROW, column_number
 
-__all__ = ["AGGREGATES", "COMPARISONS", "parse", "parse_cached", "references", "relative_text"]
+__all__ = ["AGGREGATES", "parse", "parse_cached", "references", "relative_text"]
 
 #: The functions that reduce over ranges.
 AGGREGATES = {"SUM", "MIN", "MAX", "AVERAGE"}
 _SIMPLE = {"ABS", "SQRT", "ROUND", "IF"}
-#: The comparison operators.
-COMPARISONS = {"=", "<>", "<", ">", "<=", ">="}
+#: How tightly each binary operator binds (its level), as in Excel: comparisons loosest, then ``&``,
+#: ``+ -``, ``* /``, ``^``; a unary minus binds tighter still (``-2^2`` is 4).
+_BINDING = {"=": 0, "<>": 0, "<": 0, ">": 0, "<=": 0, ">=": 0, "&": 1, "+": 2, "-": 2, "*": 3, "/": 3, "^": 4}
 
 _TOKEN_RE = re.compile(
     r"""\s*(?:
@@ -113,39 +116,25 @@ class _Parser:
         return None
 
     def parse(self) -> tuple:
-        node = self.comparison()
+        node = self.binary()
         if self.i != len(self.t):
             raise UnsupportedError("unexpected text after the formula")
         return node
 
-    def comparison(self) -> tuple:
-        node = self.concat()
-        while (op := self.take_op(COMPARISONS)) is not None:
-            node = ("bin", op, node, self.concat())
-        return node
+    def binary(self, floor: int = 0) -> tuple:
+        """Operands joined by the binary operators that bind at least as tightly as level ``floor``.
 
-    def concat(self) -> tuple:
-        node = self.additive()
-        while self.take_op(("&",)):
-            node = ("bin", "&", node, self.additive())
-        return node
-
-    def additive(self) -> tuple:
-        node = self.mult()
-        while (op := self.take_op(("+", "-"))) is not None:
-            node = ("bin", op, node, self.mult())
-        return node
-
-    def mult(self) -> tuple:
-        node = self.power()
-        while (op := self.take_op(("*", "/"))) is not None:
-            node = ("bin", op, node, self.power())
-        return node
-
-    def power(self) -> tuple:
+        Precedence climbing: an operator of level ``n`` takes as its right operand everything that binds
+        more tightly (level ``n + 1`` up), so equal levels group from the left (``1-2-3`` is
+        ``(1-2)-3``) and ``1+2*3`` is ``1+(2*3)``.
+        """
         node = self.unary()
-        while self.take_op(("^",)):
-            node = ("bin", "^", node, self.unary())
+        while (tok := self.peek()) is not None and tok[0] == "op":
+            level = _BINDING.get(tok[1])
+            if level is None or level < floor:
+                break
+            self.i += 1
+            node = ("bin", tok[1], node, self.binary(level + 1))
         return node
 
     def unary(self) -> tuple:
@@ -183,14 +172,14 @@ class _Parser:
             args: list[tuple] = []
             if not self.take_op((")",)):
                 while True:
-                    args.append(self.comparison())
+                    args.append(self.binary())
                     if self.take_op((")",)):
                         break
                     if not self.take_op((",",)):
                         raise UnsupportedError("bad argument list")
             return ("call", name, tuple(args))
         if kind == "op" and value == "(":
-            node = self.comparison()
+            node = self.binary()
             if not self.take_op((")",)):
                 raise UnsupportedError("unbalanced parentheses")
             return node
