@@ -43,6 +43,19 @@ def _first_error(*values: Any) -> CellError | None:
     return None
 
 
+def _two_numbers(x: Any, y: Any) -> tuple[float, float] | CellError:
+    """Two arguments as numbers (an empty cell as 0); else the first error among them, or ``#VALUE!``."""
+    x = 0.0 if x is None else x
+    y = 0.0 if y is None else y
+    err = _first_error(x, y)
+    if err is not None:
+        return err
+    try:
+        return float(x), float(y)
+    except (ValueError, TypeError):
+        return _VALUE
+
+
 def _pow(x: float, y: float) -> float:
     try:
         r = x ** y
@@ -55,15 +68,10 @@ def _pow(x: float, y: float) -> float:
 
 def arithmetic(op: str, x: Any, y: Any) -> Any:
     """``x op y`` for ``op`` in ``+ - * / ^``: numbers (or texts of numbers, TRUE as 1) to a finite number."""
-    x = 0.0 if x is None else x
-    y = 0.0 if y is None else y
-    err = _first_error(x, y)
-    if err is not None:
-        return err
-    try:
-        fx, fy = float(x), float(y)
-    except (ValueError, TypeError):
-        return _VALUE
+    numbers = _two_numbers(x, y)
+    if isinstance(numbers, CellError):
+        return numbers
+    fx, fy = numbers
     if op == "+":
         r = fx + fy
     elif op == "-":
@@ -156,15 +164,10 @@ def abs_or_sqrt(name: str, x: Any) -> Any:
 
 def round_value(x: Any, d: Any) -> Any:
     """ROUND(x, d): to ``d`` decimals, a half away from zero, on the exact decimal value of ``x * 10**d``."""
-    x = 0.0 if x is None else x
-    d = 0.0 if d is None else d
-    err = _first_error(x, d)
-    if err is not None:
-        return err
-    try:
-        fx, fd = float(x), float(d)
-    except (ValueError, TypeError):
-        return _VALUE
+    numbers = _two_numbers(x, d)
+    if isinstance(numbers, CellError):
+        return numbers
+    fx, fd = numbers
     try:  # the engine's ROUND: half away from zero on the exact decimal value
         scale = 10 ** int(fd)
         v = float(Decimal(abs(fx * scale)).quantize(0, rounding=ROUND_HALF_UP)) / scale
