@@ -275,7 +275,7 @@ def test_cell_by_cell_columns_equal_the_engine(tmp_path: Path) -> None:
 def test_one_parse_per_relative_formula_gives_the_same_trees() -> None:
     # Self-consistency: the parse shared through the relative text equals a parse of each formula.
     from sheetpump.errors import UnsupportedError
-    from sheetpump.recalc.columnar import _parse, _parse_cached
+    from sheetpump.recalc.formula import parse, parse_cached
 
     rng = random.Random(7)
     shapes = ["A{r}*B{r}/600", "MAX(C{r},$D$2)*0.9+Data!C{r}", "Q1!A{r}+1", "'My sheet'!b{r}^2",
@@ -293,7 +293,7 @@ def test_one_parse_per_relative_formula_gives_the_same_trees() -> None:
         shape = rng.choice(shapes)
         row, col = rng.randint(1, 3000), rng.randint(1, 30)
         text = shape.format(r=row + rng.choice([-1, 0, 0, 1]) if row > 1 else row, s=row + 2)
-        direct = outcome(_parse, text, row, col)
-        cached = outcome(_parse_cached, text, row, col, cache)
+        direct = outcome(parse, text, row, col)
+        cached = outcome(parse_cached, text, row, col, cache)
         cached = cached[0] if isinstance(cached, tuple) else cached
         assert cached == direct, (text, row, col)

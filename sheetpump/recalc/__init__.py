@@ -3,7 +3,11 @@
 The public face of the package; its rooms:
 
 * :mod:`.columnar` computes the common subset of formulas a column at a time with numpy (a
-  filled-down column of 20,000 cells in one vectorised call);
+  filled-down column of 20,000 cells in one vectorised call): it reads the cells, groups and orders the
+  formulas and decides what falls back to the engine; :mod:`.formula` reads a formula into a tree
+  (references as offsets from its cell), :mod:`.columns` evaluates a tree over a column with numpy,
+  :mod:`.cell_rules` holds the spreadsheet's rules for one cell's values (the engine's arithmetic,
+  comparisons, ROUND, IF, SUM/MIN/MAX/AVERAGE, error passing);
 * :mod:`.engine` computes everything else with the ``formulas`` package, the correctness reference the
   columnar path is tested against, and reports what cannot be computed (unsupported functions, failing
   functions, circular references, spills without room);
