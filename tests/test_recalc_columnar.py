@@ -57,7 +57,8 @@ MIXED = [
     "A1/0", "A3*2", "A4+1", "A5+1", "A6+1", '"3"+1', "A1>A2", "A1=A3", "A3>1", "A5>A1", 'A3="TEXT"',
     "A4<>0", "A8=1", 'IF(A1>1,"big","small")', "IF(A3,1,2)", "IF(A4,1,2)", "IF(A5,A1,A3)", "IF(0,1)",
     "IF(A8,1,2)", "ABS(-A1)", "SQRT(A1)", "SQRT(-1)", "ROUND(A1/3,2)", "ROUND(2.5,0)", "ROUND(-2.5,0)",
-    "ROUND(1234.5,-2)", "SUM(A1:A6)", "SUM(A1:B6)", "SUM(A1:A8)", "MIN(A1:A2)", "MAX(A1:B2)", "AVERAGE(A1:A2)",
+    "ROUND(1234.5,-2)", "ROUND(A1,400)", "ROUND(-A1,-400)", "ROUND(A1,1E+20)", "ROUND(A1,-1E+20)",
+    "SUM(A1:A6)", "SUM(A1:B6)", "SUM(A1:A8)", "MIN(A1:A2)", "MAX(A1:B2)", "AVERAGE(A1:A2)",
     "AVERAGE(A4)", "SUM(A1,A2,5)", "SP_HYDRAULIC_POWER(A1,A2)", "SP_HYDRAULIC_POWER(A3,A2)",
     "SP_HYDRAULIC_POWER(A4,A2)", "SP_HYDRAULIC_POWER(A5,A2)", "SP_HYDRAULIC_POWER(A8,A2)",
     "SP_HYDRAULIC_POWER(-5,A2)", 'SP_HYDRAULIC_POWER(A1,A2,"hp")', 'SP_HYDRAULIC_POWER("3000 psi","10 gpm","hp")',
@@ -297,3 +298,21 @@ def test_one_parse_per_relative_formula_gives_the_same_trees() -> None:
         cached = outcome(parse_cached, text, row, col, cache)
         cached = cached[0] if isinstance(cached, tuple) else cached
         assert cached == direct, (text, row, col)
+
+
+def test_round_with_huge_digits_answers_as_libreoffice_and_does_not_hang(tmp_path: Path) -> None:
+    # LibreOffice 7.4 headless (soffice --convert-to csv, checked): ROUND(1234.5678, 400) = 1234.5678,
+    # ROUND(1234.5678, -400) = 0, ROUND(1234.5678, 1E20) = Err:502 (an invalid argument: #NUM! here).
+    # Computing 10**1E20 instead would hang both the columnar path and the formulas engine.
+    wb = openpyxl.Workbook()
+    ws = wb.active
+    ws.title = "S"
+    ws["A1"] = 1234.5678
+    for row, digits in enumerate(("400", "-400", "1E+20", "-1E+20", "2"), start=1):
+        ws.cell(row, 2, f"=ROUND(A1,{digits})")
+    path = tmp_path / "round.xlsx"
+    wb.save(path)
+    for values in (recalculate_columns(path).values, recalculate(path, engine="formulas").values):
+        got = [values[("S", f"B{row}")] for row in range(1, 6)]
+        assert got[0] == pytest.approx(1234.5678, rel=1e-15) and got[1] == 0.0 and got[4] == pytest.approx(1234.57)
+        assert got[2] == CellError("#NUM!") and got[3] == CellError("#NUM!")

@@ -28,8 +28,22 @@ from ..declarations import Calculation
 from ..errors import UnsupportedError
 from .results import CellError
 
-__all__ = ["COMPARATORS", "abs_or_sqrt", "aggregate", "arithmetic", "catalogue_cell", "comparison",
-           "concatenation", "if_value", "round_value", "shown_value", "unary"]
+__all__ = [
+    "COMPARATORS",
+    "DIGITS_LIMIT",
+    "MOST_DIGITS",
+    "abs_or_sqrt",
+    "aggregate",
+    "arithmetic",
+    "catalogue_cell",
+    "comparison",
+    "concatenation",
+    "if_value",
+    "round_beyond",
+    "round_value",
+    "shown_value",
+    "unary",
+]
 
 _VALUE = CellError("#VALUE!")
 _DIV0 = CellError("#DIV/0!")
@@ -162,12 +176,38 @@ def abs_or_sqrt(name: str, x: Any) -> Any:
     return r if math.isfinite(r) else _NUM
 
 
+#: ROUND's digits past which a double has nothing left to round: LibreOffice 7.4 headless gives x itself
+#: at 400 digits and 0 at -400 (checked).
+MOST_DIGITS = 308
+#: Digits ROUND takes at all: LibreOffice 7.4 refuses 1E20 digits (Err:502, an invalid argument; checked).
+DIGITS_LIMIT = 2.0**31
+
+
+def round_beyond(x: float, d: float) -> float | CellError | None:
+    """ROUND(x, d) where the digits leave nothing to compute (None where they do): never ``10**d`` for a
+    huge ``d`` (a hostile ``=ROUND(A1, 1E20)`` must not hang the recalculation).
+
+    >>> round_beyond(1.5, 400), round_beyond(1.5, -400), round_beyond(1.5, 1e20), round_beyond(1.5, 2)
+    (1.5, 0.0, CellError('#NUM!'), None)
+    """
+    if not abs(d) < DIGITS_LIMIT:
+        return _NUM
+    if d > MOST_DIGITS:
+        return x
+    if d < -MOST_DIGITS:
+        return 0.0
+    return None
+
+
 def round_value(x: Any, d: Any) -> Any:
     """ROUND(x, d): to ``d`` decimals, a half away from zero, on the exact decimal value of ``x * 10**d``."""
     numbers = _two_numbers(x, d)
     if isinstance(numbers, CellError):
         return numbers
     fx, fd = numbers
+    beyond = round_beyond(fx, fd)
+    if beyond is not None:
+        return beyond
     try:  # the engine's ROUND: half away from zero on the exact decimal value
         scale = 10 ** int(fd)
         v = float(Decimal(abs(fx * scale)).quantize(0, rounding=ROUND_HALF_UP)) / scale

@@ -38,6 +38,7 @@ from ..catalogue import CATALOGUE
 from ..declarations import Calculation
 from ..errors import InputError, Where
 from ..workbooks.refs import MAX_COL, MAX_ROW, cell_name, range_cells, split_ref
+from .cell_rules import round_beyond
 from .results import SPILL_PREFIX, Cell, CellError, Problem, Recalculation, place
 from .sheets import Sheet, scan
 from .writer import Rewrite, copy_package
@@ -143,7 +144,28 @@ def register_functions() -> dict[str, Any]:
         func = _cell_function(calc)
         table[name] = func
         table[f"_XLUDF.{name}"] = func
+    table.update(_bounded_rounding())
     return table
+
+
+def _bounded_rounding() -> dict[str, Any]:
+    """The engine's ROUND, ROUNDDOWN and ROUNDUP, answering huge digits as :func:`.cell_rules.round_beyond`
+    does instead of computing ``10**d`` (which hangs for ``=ROUND(A1, 1E20)``)."""
+    from formulas.functions import math as engine_math
+    from formulas.functions import wrap_ufunc
+    from formulas.tokens.operand import Error
+
+    def bounded(rounder: Any) -> Any:
+        def rounded(x: float, d: float) -> Any:
+            beyond = round_beyond(x, d)
+            if beyond is None:
+                return rounder(x, d)
+            return Error.errors[str(beyond)] if isinstance(beyond, CellError) else beyond
+        return wrap_ufunc(rounded)
+
+    return {"ROUND": bounded(engine_math.xround),
+            "ROUNDDOWN": bounded(functools.partial(engine_math.xround, func=math.floor)),
+            "ROUNDUP": bounded(functools.partial(engine_math.xround, func=math.ceil))}
 
 
 def _functions_used(formula: str) -> list[str]:
