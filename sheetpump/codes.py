@@ -20,7 +20,8 @@ import re
 from .errors import InputError, Where
 
 __all__ = [
-    "ROTATIONS", "cleanliness_code", "cleanliness_numbers", "cleanliness_parts", "rotation", "rotation_word",
+    "ROTATIONS", "cleanliness_code", "cleanliness_numbers", "cleanliness_parts", "cleanliness_text", "rotation",
+    "rotation_word",
 ]
 
 #: The three directions of rotation (seen from the shaft end), as sheetpump writes them.
@@ -84,6 +85,24 @@ def rotation_word(text: object) -> str | None:
     return _ROTATION_WORDS.get(key)
 
 
+def _not_a_code(code: object, where: Where | None) -> InputError:
+    return InputError(f"{str(code)!r} is not an ISO 4406 cleanliness code", where or Where(),
+                      "write two or three scale numbers such as '18/16/13'")
+
+
+def cleanliness_text(code: object, where: Where | None = None) -> str:
+    """An ISO 4406 code as sheetpump writes it (its scale numbers joined by ``/``), refusing a text that is
+    not a code (naming ``where``).
+
+    >>> cleanliness_text(" 18 / 16 / 13 "), cleanliness_text("-/15/12")
+    ('18/16/13', '-/15/12')
+    """
+    parts = cleanliness_parts(code)
+    if parts is None:
+        raise _not_a_code(code, where)
+    return "/".join(parts)
+
+
 def cleanliness_code(code: object, where: Where | None = None) -> tuple[int | None, int | None, int | None]:
     """:func:`cleanliness_numbers` of ``code``, refusing a text that is not an ISO 4406 code (naming ``where``).
 
@@ -96,8 +115,7 @@ def cleanliness_code(code: object, where: Where | None = None) -> tuple[int | No
     """
     numbers = cleanliness_numbers(code)
     if numbers is None:
-        raise InputError(f"{str(code)!r} is not an ISO 4406 cleanliness code", where or Where(),
-                         "write two or three scale numbers such as '18/16/13'")
+        raise _not_a_code(code, where)
     return numbers
 
 

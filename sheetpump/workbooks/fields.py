@@ -27,7 +27,7 @@ import re
 from collections.abc import Sequence
 from typing import Any
 
-from ..codes import cleanliness_code, cleanliness_parts, rotation_word
+from ..codes import cleanliness_text, rotation_word
 from ..errors import InputError, Where
 from ..units import Kind, check_span, physical_unit, split_number, unit_factor
 from .book import Book, header_row
@@ -187,8 +187,7 @@ def convert(field: Field, value: Any, unit: Any, where: Where, unit_where: Where
     if kind == TEXT:
         text = cell_text(value)
         if field.key == "cleanliness":
-            cleanliness_code(text, where)  # refuses a text that is not a code
-            text = "/".join(cleanliness_parts(text) or ())
+            text = cleanliness_text(text, where)
         return text
     if kind == CHOICE:
         text = cell_text(value)
