@@ -16,15 +16,15 @@ from .. import __version__
 from ..errors import SheetpumpError
 from .exit_codes import EXIT_INPUT
 
+#: Modules of this package that are not commands.
+_NOT_COMMANDS = ("exit_codes",)
+
 
 def _commands() -> list[str]:
     # Each submodule is one command: it defines register(subparsers), which sets ``run``.
     return sorted(m.name for m in pkgutil.iter_modules(__path__)
                   if not m.name.startswith("_") and m.name not in _NOT_COMMANDS)
 
-
-#: Modules of this package that are not commands.
-_NOT_COMMANDS = ("exit_codes",)
 
 
 def build_parser(argv: Sequence[str] | None = None) -> argparse.ArgumentParser:
